@@ -1,0 +1,105 @@
+# Shared shell functions for deploy/start.sh and deploy/test.sh. Source it; do not run it.
+# Everything here is idempotent: a second call finds what the first one made.
+
+SF_ROOT="$(cd "$(dirname "${BASH_SOURCE[0]}")/.." && pwd)"
+PG_BIN="${PG_BIN:-/usr/lib/postgresql/15/bin}"
+
+sf_log() { printf '\033[1;36m[sigmaflow]\033[0m %s\n' "$*" >&2; }
+sf_die() { printf '\033[1;31m[sigmaflow]\033[0m %s\n' "$*" >&2; exit 1; }
+
+as_root() { if [ "$(id -u)" = 0 ]; then "$@"; else sudo "$@"; fi; }
+
+# Installs the Debian packages listed in deploy/apt-packages.txt that are missing.
+sf_ensure_debian_packages() {
+  local wanted missing=()
+  mapfile -t wanted < <(grep -Ev '^\s*(#|$)' "$SF_ROOT/deploy/apt-packages.txt")
+  for pkg in "${wanted[@]}"; do
+    dpkg-query -W -f='${Status}' "$pkg" 2>/dev/null | grep -q "install ok installed" || missing+=("$pkg")
+  done
+  [ ${#missing[@]} -eq 0 ] && return 0
+  sf_log "installing Debian packages: ${missing[*]}"
+  as_root env DEBIAN_FRONTEND=noninteractive apt-get update -qq
+  as_root env DEBIAN_FRONTEND=noninteractive apt-get install -y -qq --no-install-recommends "${missing[@]}" >/dev/null
+}
+
+# Runs `npm ci` when node_modules is missing or older than the lock file.
+sf_ensure_node_modules() {
+  local stamp="$SF_ROOT/node_modules/.sigmaflow-lock-stamp"
+  if [ -f "$stamp" ] && cmp -s "$stamp" "$SF_ROOT/package-lock.json"; then return 0; fi
+  sf_log "installing npm packages (npm ci)"
+  (cd "$SF_ROOT" && npm ci --no-audit --no-fund --loglevel=error) || sf_die "npm ci failed"
+  cp "$SF_ROOT/package-lock.json" "$stamp"
+}
+
+# A free TCP port on 127.0.0.1.
+sf_free_port() {
+  node -e 'const s=require("net").createServer();s.listen(0,"127.0.0.1",()=>{console.log(s.address().port);s.close()})'
+}
+
+sf_wait_for_port() { # port, name, seconds
+  local port=$1 name=$2 seconds=${3:-30} i
+  for ((i = 0; i < seconds * 10; i++)); do
+    (exec 3<>"/dev/tcp/127.0.0.1/$port") 2>/dev/null && return 0
+    sleep 0.1
+  done
+  sf_die "$name did not open port $port within ${seconds}s"
+}
+
+# Creates (once) and starts a PostgreSQL cluster in DATA_DIR on PORT, listening on 127.0.0.1 only.
+# initdb refuses root, so the cluster belongs to the postgres user; its parent folder must be theirs too.
+sf_pg_start() { # data_dir, port, [extra postgres options]
+  local data_dir=$1 port=$2 extra=${3:-}
+  local parent; parent=$(dirname "$data_dir")
+  mkdir -p "$parent"
+  id postgres >/dev/null 2>&1 || sf_die "the postgres user is missing: is the postgresql package installed?"
+  chown postgres:postgres "$parent"
+  chmod 755 "$parent"
+  if [ ! -f "$data_dir/PG_VERSION" ]; then
+    sf_log "creating PostgreSQL cluster in $data_dir"
+    runuser -u postgres -- "$PG_BIN/initdb" -D "$data_dir" -U postgres -A trust -E UTF8 --no-locale >/dev/null \
+      || sf_die "initdb failed"
+  fi
+  if runuser -u postgres -- "$PG_BIN/pg_ctl" -D "$data_dir" status >/dev/null 2>&1; then
+    sf_log "PostgreSQL already running in $data_dir"
+    return 0
+  fi
+  runuser -u postgres -- "$PG_BIN/pg_ctl" -D "$data_dir" -l "$parent/postgresql.log" -w -t 30 \
+    -o "-c listen_addresses=127.0.0.1 -p $port -k $parent $extra" start >/dev/null \
+    || { tail -n 20 "$parent/postgresql.log" >&2; sf_die "PostgreSQL did not start"; }
+}
+
+sf_pg_stop() { # data_dir
+  runuser -u postgres -- "$PG_BIN/pg_ctl" -D "$1" -m fast -w stop >/dev/null 2>&1 || true
+}
+
+sf_pg_ensure_database() { # port, name
+  local port=$1 name=$2
+  "$PG_BIN/psql" -h 127.0.0.1 -p "$port" -U postgres -tAc "select 1 from pg_database where datname='$name'" \
+    | grep -q 1 || "$PG_BIN/createdb" -h 127.0.0.1 -p "$port" -U postgres "$name"
+}
+
+# Background processes started through sf_spawn are stopped by sf_stop_all (installed as an EXIT trap).
+SF_PIDS=()
+sf_spawn() { # name, logfile, command...
+  local name=$1 logfile=$2; shift 2
+  "$@" >"$logfile" 2>&1 &
+  SF_PIDS+=("$!")
+  sf_log "started $name (pid $!, log $logfile)"
+}
+
+sf_stop_all() {
+  local pid
+  for pid in "${SF_PIDS[@]}"; do kill -TERM "$pid" 2>/dev/null || true; done
+  for pid in "${SF_PIDS[@]}"; do wait "$pid" 2>/dev/null || true; done
+  SF_PIDS=()
+}
+
+# A secret kept in a file (created once with 48 random bytes, base64url).
+sf_secret_file() { # path
+  local path=$1
+  if [ ! -s "$path" ]; then
+    umask 077
+    node -e 'process.stdout.write(require("crypto").randomBytes(48).toString("base64url"))' >"$path"
+  fi
+  cat "$path"
+}

@@ -1,0 +1,83 @@
+/**
+ * Assembles the Express application: security headers, body limits, sessions, sign-in, CSRF, the API
+ * routers under /api, one error shape, and the built client with a single-page fallback.
+ */
+import { existsSync } from "node:fs";
+import path from "node:path";
+import express from "express";
+import helmet from "helmet";
+import { pinoHttp } from "pino-http";
+import type pg from "pg";
+import { bearerAuth } from "./auth/bearer";
+import { csrfProtection } from "./auth/csrf";
+import { configurePassport } from "./auth/oidc";
+import { sessionMiddleware } from "./auth/session";
+import type { ServerConfig } from "./config";
+import type { Database } from "./db/client";
+import { errorHandler, notFoundRoute } from "./http/errors";
+import type { Logger } from "./logger";
+import type { Mailer } from "./mail/mailer";
+import { adminRoutes } from "./routes/admin.routes";
+import { apiTokenRoutes } from "./routes/api-tokens.routes";
+import { authRoutes } from "./routes/auth.routes";
+import type { RouteContext } from "./routes/context";
+import { groupRoutes } from "./routes/groups.routes";
+import { healthRoutes } from "./routes/health.routes";
+import { invitationRoutes } from "./routes/invitations.routes";
+
+export type AppDeps = { db: Database; pool: pg.Pool; config: ServerConfig; mailer: Mailer; log: Logger };
+
+/** Request bodies are small JSON documents; anything bigger is refused before parsing. */
+export const JSON_BODY_LIMIT = "100kb";
+
+export function createApp(deps: AppDeps) {
+  const { config, log } = deps;
+  const app = express();
+  app.disable("x-powered-by");
+  app.set("trust proxy", config.trustProxyHops);
+
+  app.use(
+    helmet({
+      contentSecurityPolicy: {
+        directives: {
+          "default-src": ["'self'"],
+          "connect-src": ["'self'", "ws:", "wss:"],
+          "img-src": ["'self'", "data:"],
+          "font-src": ["'self'", "data:"],
+          "style-src": ["'self'", "'unsafe-inline'"],
+          "form-action": ["'self'", config.oidc.issuer],
+          "upgrade-insecure-requests": config.secureCookies ? [] : null,
+        },
+      },
+      strictTransportSecurity: config.secureCookies,
+    }),
+  );
+  app.use(pinoHttp({ logger: log, autoLogging: { ignore: (req) => req.url === "/api/health" } }));
+
+  const passport = configurePassport(deps.db, config.oidc);
+  const api = express.Router();
+  api.use(express.json({ limit: JSON_BODY_LIMIT, strict: true }));
+  api.use(sessionMiddleware(deps.pool, config));
+  api.use(passport.session());
+  api.use(bearerAuth(deps.db));
+  api.use(csrfProtection);
+
+  const ctx: RouteContext = { db: deps.db, config, mailer: deps.mailer, log };
+  api.use(healthRoutes(ctx));
+  api.use(authRoutes(ctx));
+  api.use(groupRoutes(ctx));
+  api.use(invitationRoutes(ctx));
+  api.use(apiTokenRoutes(ctx));
+  api.use(adminRoutes(ctx));
+  api.use(notFoundRoute);
+  api.use(errorHandler(log));
+  app.use("/api", api);
+
+  const clientDir = path.resolve(config.clientDistDir);
+  if (existsSync(path.join(clientDir, "index.html"))) {
+    app.use(express.static(clientDir, { index: false, maxAge: "1h" }));
+    app.get("/{*path}", (_req, res) => res.sendFile(path.join(clientDir, "index.html")));
+  }
+  app.use(errorHandler(log));
+  return app;
+}

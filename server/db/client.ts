@@ -1,0 +1,16 @@
+import { drizzle } from "drizzle-orm/node-postgres";
+import pg from "pg";
+import * as schema from "./schema";
+
+export function createDatabase(databaseUrl: string) {
+  const pool = new pg.Pool({ connectionString: databaseUrl, max: 10, connectionTimeoutMillis: 5_000 });
+  // An idle client that loses its connection (e.g. PostgreSQL restarting) must not crash the process;
+  // the pool replaces it on next use.
+  pool.on("error", () => {});
+  const db = drizzle(pool, { schema });
+  return { pool, db };
+}
+
+export type Database = ReturnType<typeof createDatabase>["db"];
+/** A database handle or an open transaction: services accept either. */
+export type DbExecutor = Database | Parameters<Parameters<Database["transaction"]>[0]>[0];

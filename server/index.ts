@@ -1,0 +1,34 @@
+/** Starts the Sigmaflow server: `node --import tsx server/index.ts` (deploy/start.sh does it for you). */
+import { createServer } from "node:http";
+import { createApp } from "./app";
+import { loadConfig } from "./config";
+import { createDatabase } from "./db/client";
+import { applyMigrations } from "./db/migrate";
+import { createLogger } from "./logger";
+import { createMailer } from "./mail/mailer";
+
+const config = loadConfig();
+const log = createLogger(config.logLevel);
+await applyMigrations(config.databaseUrl);
+const { db, pool } = createDatabase(config.databaseUrl);
+const mailer = createMailer(config.smtp);
+const app = createApp({ db, pool, config, mailer, log });
+const server = createServer(app);
+
+server.listen(config.port, config.host, () => {
+  log.info({ url: config.publicUrl }, `Sigmaflow server listening on ${config.publicUrl}`);
+});
+
+let stopping = false;
+async function shutdown(signal: string) {
+  if (stopping) return;
+  stopping = true;
+  log.info({ signal }, "shutting down");
+  server.close();
+  server.closeAllConnections();
+  mailer.close();
+  await pool.end().catch(() => {});
+  process.exit(0);
+}
+process.on("SIGINT", () => void shutdown("SIGINT"));
+process.on("SIGTERM", () => void shutdown("SIGTERM"));

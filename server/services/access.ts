@@ -1,0 +1,50 @@
+/**
+ * Group access rules, deny by default. A site admin may do anything in any group. Anyone else needs a
+ * membership with at least the required role; a group they do not belong to does not exist for them
+ * (404, so group ids cannot be probed).
+ */
+import { and, eq } from "drizzle-orm";
+import type { GroupRole } from "../../shared/schemas/groups";
+import type { Principal } from "../auth/principal";
+import type { DbExecutor } from "../db/client";
+import { memberships } from "../db/schema";
+import { forbidden, notFound } from "../http/errors";
+
+const RANK: Record<GroupRole, number> = { collaborator: 0, member: 1, admin: 2 };
+
+export function roleAtLeast(role: GroupRole, minimum: GroupRole): boolean {
+  return RANK[role] >= RANK[minimum];
+}
+
+export async function membershipRole(db: DbExecutor, userId: string, groupId: string): Promise<GroupRole | null> {
+  const rows = await db
+    .select({ role: memberships.role })
+    .from(memberships)
+    .where(and(eq(memberships.userId, userId), eq(memberships.groupId, groupId)))
+    .limit(1);
+  return rows[0]?.role ?? null;
+}
+
+/** Returns the caller's role in the group (null for a site admin who is not a member) or throws 404/403. */
+export async function requireGroupRole(
+  db: DbExecutor,
+  principal: Principal,
+  groupId: string,
+  minimum: GroupRole,
+): Promise<GroupRole | null> {
+  const role = await membershipRole(db, principal.userId, groupId);
+  if (principal.isSiteAdmin) return role;
+  if (!role) throw notFound("Group");
+  if (!roleAtLeast(role, minimum)) {
+    throw forbidden(
+      minimum === "admin"
+        ? "Only the group's admins can do this."
+        : "Collaborators have read-only access to this group.",
+    );
+  }
+  return role;
+}
+
+export function requireSiteAdmin(principal: Principal): void {
+  if (!principal.isSiteAdmin) throw forbidden("Only site admins can do this.");
+}

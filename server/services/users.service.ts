@@ -1,0 +1,83 @@
+import { eq, sql } from "drizzle-orm";
+import type { AdminUser, Me } from "../../shared/schemas/auth";
+import type { Principal } from "../auth/principal";
+import type { DbExecutor } from "../db/client";
+import { groups, memberships, users } from "../db/schema";
+import { AppError } from "../http/errors";
+import { requireSiteAdmin } from "./access";
+import { recordAudit } from "./audit.service";
+
+export type OidcIdentity = { issuer: string; subject: string; email: string | null; displayName: string | null };
+
+/**
+ * Finds or creates the user for an identity that just signed in. The identity (issuer, subject) is the
+ * key; the e-mail and name are refreshed from the provider at every sign-in.
+ */
+export async function upsertUserFromOidc(db: DbExecutor, identity: OidcIdentity): Promise<Principal> {
+  if (!identity.email) {
+    throw new AppError(403, "email_missing", "Your identity provider did not share an e-mail address.");
+  }
+  const email = identity.email.toLowerCase();
+  const displayName = identity.displayName?.trim() || email;
+  const [row] = await db
+    .insert(users)
+    .values({ email, displayName, oidcIssuer: identity.issuer, oidcSubject: identity.subject, lastSignInAt: new Date() })
+    .onConflictDoUpdate({
+      target: [users.oidcIssuer, users.oidcSubject],
+      set: { email, displayName, lastSignInAt: new Date() },
+    })
+    .returning();
+  if (!row) throw new Error("user upsert returned no row");
+  await recordAudit(db, { actorUserId: row.id, action: "user.sign_in", targetType: "user", targetId: row.id });
+  return toPrincipal(row, "session");
+}
+
+export async function findPrincipal(db: DbExecutor, userId: string, via: Principal["via"]): Promise<Principal | null> {
+  const [row] = await db.select().from(users).where(eq(users.id, userId)).limit(1);
+  return row ? toPrincipal(row, via) : null;
+}
+
+function toPrincipal(row: typeof users.$inferSelect, via: Principal["via"]): Principal {
+  return { userId: row.id, email: row.email, displayName: row.displayName, isSiteAdmin: row.isSiteAdmin, via };
+}
+
+export async function describeMe(db: DbExecutor, principal: Principal): Promise<Omit<Me, "csrfToken">> {
+  const rows = await db
+    .select({ groupId: groups.id, groupSlug: groups.slug, groupName: groups.name, role: memberships.role })
+    .from(memberships)
+    .innerJoin(groups, eq(groups.id, memberships.groupId))
+    .where(eq(memberships.userId, principal.userId))
+    .orderBy(groups.name);
+  return {
+    user: {
+      id: principal.userId,
+      email: principal.email,
+      displayName: principal.displayName,
+      isSiteAdmin: principal.isSiteAdmin,
+    },
+    memberships: rows,
+  };
+}
+
+export async function listUsersForAdmin(db: DbExecutor, principal: Principal): Promise<AdminUser[]> {
+  requireSiteAdmin(principal);
+  const rows = await db
+    .select({
+      id: users.id,
+      email: users.email,
+      displayName: users.displayName,
+      isSiteAdmin: users.isSiteAdmin,
+      createdAt: users.createdAt,
+      lastSignInAt: users.lastSignInAt,
+      groupCount: sql<number>`count(${memberships.groupId})::int`,
+    })
+    .from(users)
+    .leftJoin(memberships, eq(memberships.userId, users.id))
+    .groupBy(users.id)
+    .orderBy(users.displayName);
+  return rows.map((row) => ({
+    ...row,
+    createdAt: row.createdAt.toISOString(),
+    lastSignInAt: row.lastSignInAt?.toISOString() ?? null,
+  }));
+}

@@ -1,0 +1,21 @@
+/** Prints where Sigmaflow is running and who can sign in (deploy/start.sh calls it once all is up). */
+import { DEMO_ACCOUNTS, DEMO_PASSWORD } from "./accounts";
+
+const appUrl = process.env.SIGMAFLOW_PUBLIC_URL ?? "http://127.0.0.1:5180";
+const inboxUrl = process.env.INBOX_URL ?? "http://127.0.0.1:5183/";
+const rows = DEMO_ACCOUNTS.map((a) => `    ${a.email.padEnd(34)} ${a.persona}`);
+console.log(
+  [
+    "",
+    "  Sigmaflow is running.",
+    "",
+    `    App:                 ${appUrl}`,
+    `    Development inbox:   ${inboxUrl}`,
+    "",
+    `  Demo accounts (password for all: ${DEMO_PASSWORD}):`,
+    ...rows,
+    "",
+    "  Press Ctrl-C to stop everything this command started.",
+    "",
+  ].join("\n"),
+);

@@ -1,0 +1,49 @@
+#!/usr/bin/env bash
+# Starts Sigmaflow for development on this machine: installs what is missing, starts a project-local
+# PostgreSQL, applies migrations, seeds the demo scenario, starts the fake identity provider, the fake
+# mail sink and the server. Ctrl-C stops everything it started; a second start reuses the data in .data/.
+set -euo pipefail
+source "$(dirname "${BASH_SOURCE[0]}")/lib.sh"
+cd "$SF_ROOT"
+
+PG_PORT="${SIGMAFLOW_PG_PORT:-54329}"
+APP_PORT="${SIGMAFLOW_PORT:-5180}"
+IDP_PORT="${SIGMAFLOW_IDP_PORT:-5181}"
+SMTP_PORT="${SIGMAFLOW_SMTP_PORT:-5182}"
+INBOX_PORT="${SIGMAFLOW_INBOX_PORT:-5183}"
+DB_NAME=sigmaflow
+DATA_DIR="$SF_ROOT/.data"
+SECRETS_DIR="$DATA_DIR/secrets"
+LOG_DIR="$DATA_DIR/logs"
+mkdir -p "$SECRETS_DIR" "$LOG_DIR" "$DATA_DIR/mail"
+
+sf_ensure_debian_packages
+sf_ensure_node_modules
+source "$SF_ROOT/deploy/env.sh"
+
+cleanup() {
+  trap - INT TERM EXIT
+  sf_log "stopping"
+  sf_stop_all
+  sf_pg_stop "$DATA_DIR/pg/cluster"
+}
+trap cleanup INT TERM EXIT
+
+sf_pg_start "$DATA_DIR/pg/cluster" "$PG_PORT"
+sf_pg_ensure_database "$PG_PORT" "$DB_NAME"
+node --import tsx server/db/migrate.ts
+node --import tsx deploy/demo/seed.ts
+
+sf_log "building the client"
+npx vite build --logLevel warn
+
+FAKE_SMTP_DIR="$DATA_DIR/mail" sf_spawn fake-smtp "$LOG_DIR/fake-smtp.log" node --import tsx deploy/fake-smtp/index.ts
+sf_spawn fake-idp "$LOG_DIR/fake-idp.log" node --import tsx deploy/fake-idp/index.ts
+sf_wait_for_port "$IDP_PORT" fake-idp
+sf_wait_for_port "$SMTP_PORT" fake-smtp
+sf_spawn server "$LOG_DIR/server.log" node --import tsx server/index.ts
+sf_wait_for_port "$APP_PORT" server 60
+
+node --import tsx deploy/demo/banner.ts
+wait -n "${SF_PIDS[@]}" || true
+sf_log "a service stopped; see the logs in $LOG_DIR"

@@ -1,0 +1,206 @@
+/**
+ * Every API route × every kind of caller gets exactly the status it should. Callers authenticate with
+ * API tokens (the same principal as a browser session; the session path is covered in sign-in.test.ts).
+ * Rule being checked (Sigmaflow's access policy): deny by default; a group one does not belong to is a
+ * 404; a role too low is a 403; site admins may do everything.
+ */
+import { randomBytes } from "node:crypto";
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { hashSecret } from "../../server/auth/tokens";
+import { invitations } from "../../server/db/schema";
+import { addMember, createGroup, createUser, tokenFor } from "./support/people";
+import { startTestApp } from "./support/test-app";
+import { createTestDatabase, type TestDatabase } from "./support/test-database";
+
+const CALLERS = ["anonymous", "collaborator", "member", "otherGroupAdmin", "groupAdmin", "siteAdmin"] as const;
+type Caller = (typeof CALLERS)[number];
+type Expected = Record<Caller, number>;
+
+let database: TestDatabase;
+let app: Awaited<ReturnType<typeof startTestApp>>;
+const tokens = new Map<Caller, string>();
+let groupId = "";
+let groupAdminId = "";
+
+async function freshMember(): Promise<string> {
+  const user = await createUser(database.db, "removable");
+  await addMember(database.db, user.id, groupId, "member");
+  return user.id;
+}
+
+async function freshInvitation(email = `invitee-${randomBytes(3).toString("hex")}@test.example`) {
+  const secret = randomBytes(32).toString("base64url");
+  const [row] = await database.db
+    .insert(invitations)
+    .values({
+      groupId,
+      email,
+      role: "member",
+      tokenHash: hashSecret(secret),
+      invitedBy: groupAdminId,
+      expiresAt: new Date(Date.now() + 86_400_000),
+    })
+    .returning();
+  return { id: row!.id, secret };
+}
+
+type Case = {
+  name: string;
+  method: "GET" | "POST" | "PATCH" | "DELETE";
+  path: () => Promise<string> | string;
+  body?: () => unknown;
+  expected: Expected;
+};
+
+const everyone = (status: number): Expected => ({
+  anonymous: status,
+  collaborator: status,
+  member: status,
+  otherGroupAdmin: status,
+  groupAdmin: status,
+  siteAdmin: status,
+});
+const signedIn = (status: number): Expected => ({ ...everyone(status), anonymous: 401 });
+const groupRead = (status: number): Expected => ({ ...signedIn(status), otherGroupAdmin: 404 });
+const groupAdminOnly = (status: number): Expected => ({
+  anonymous: 401,
+  collaborator: 403,
+  member: 403,
+  otherGroupAdmin: 404,
+  groupAdmin: status,
+  siteAdmin: status,
+});
+const siteAdminOnly = (status: number): Expected => ({ ...signedIn(403), siteAdmin: status });
+
+const CASES: Case[] = [
+  { name: "health", method: "GET", path: () => "/api/health", expected: everyone(200) },
+  { name: "me", method: "GET", path: () => "/api/me", expected: signedIn(200) },
+  { name: "list groups", method: "GET", path: () => "/api/groups", expected: signedIn(200) },
+  {
+    name: "create group",
+    method: "POST",
+    path: () => "/api/groups",
+    body: () => ({ slug: `new-${randomBytes(3).toString("hex")}`, name: "New group" }),
+    expected: siteAdminOnly(201),
+  },
+  { name: "read group", method: "GET", path: () => `/api/groups/${groupId}`, expected: groupRead(200) },
+  { name: "list members", method: "GET", path: () => `/api/groups/${groupId}/members`, expected: groupRead(200) },
+  {
+    name: "change a role",
+    method: "PATCH",
+    path: async () => `/api/groups/${groupId}/members/${await freshMember()}`,
+    body: () => ({ role: "collaborator" }),
+    expected: groupAdminOnly(200),
+  },
+  {
+    name: "remove a member",
+    method: "DELETE",
+    path: async () => `/api/groups/${groupId}/members/${await freshMember()}`,
+    expected: groupAdminOnly(204),
+  },
+  {
+    name: "list invitations",
+    method: "GET",
+    path: () => `/api/groups/${groupId}/invitations`,
+    expected: groupAdminOnly(200),
+  },
+  {
+    name: "invite",
+    method: "POST",
+    path: () => `/api/groups/${groupId}/invitations`,
+    body: () => ({ email: `new-${randomBytes(3).toString("hex")}@test.example`, role: "member" }),
+    expected: groupAdminOnly(201),
+  },
+  {
+    name: "revoke an invitation",
+    method: "DELETE",
+    path: async () => `/api/groups/${groupId}/invitations/${(await freshInvitation()).id}`,
+    expected: groupAdminOnly(204),
+  },
+  { name: "group audit log", method: "GET", path: () => `/api/groups/${groupId}/audit`, expected: groupAdminOnly(200) },
+  {
+    name: "preview an invitation by its secret",
+    method: "GET",
+    path: async () => `/api/invitations/${(await freshInvitation()).secret}`,
+    expected: signedIn(200),
+  },
+  {
+    name: "accept someone else's invitation",
+    method: "POST",
+    path: async () => `/api/invitations/${(await freshInvitation()).secret}/accept`,
+    expected: signedIn(403),
+  },
+  { name: "list own API tokens", method: "GET", path: () => "/api/tokens", expected: signedIn(200) },
+  {
+    name: "mint a token with a token",
+    method: "POST",
+    path: () => "/api/tokens",
+    body: () => ({ name: "chained" }),
+    expected: signedIn(403),
+  },
+  {
+    name: "revoke another person's token",
+    method: "DELETE",
+    path: async () => {
+      const stranger = await createUser(database.db, "stranger");
+      await tokenFor(database.db, stranger);
+      const rows = await database.pool.query("select id from api_tokens where user_id = $1", [stranger.id]);
+      return `/api/tokens/${rows.rows[0].id}`;
+    },
+    expected: signedIn(404),
+  },
+  { name: "list all people", method: "GET", path: () => "/api/admin/users", expected: siteAdminOnly(200) },
+  { name: "unknown API route", method: "GET", path: () => "/api/nothing-here", expected: everyone(404) },
+];
+
+beforeAll(async () => {
+  database = await createTestDatabase("authz");
+  app = await startTestApp(database);
+  const db = database.db;
+  const group = await createGroup(db, "target");
+  const other = await createGroup(db, "other");
+  groupId = group.id;
+  const collaborator = await createUser(db, "collaborator");
+  const member = await createUser(db, "member");
+  const groupAdmin = await createUser(db, "group-admin");
+  const otherAdmin = await createUser(db, "other-admin");
+  const siteAdmin = await createUser(db, "site-admin", { siteAdmin: true });
+  groupAdminId = groupAdmin.id;
+  await addMember(db, collaborator.id, group.id, "collaborator");
+  await addMember(db, member.id, group.id, "member");
+  await addMember(db, groupAdmin.id, group.id, "admin");
+  await addMember(db, otherAdmin.id, other.id, "admin");
+  tokens.set("collaborator", await tokenFor(db, collaborator));
+  tokens.set("member", await tokenFor(db, member));
+  tokens.set("groupAdmin", await tokenFor(db, groupAdmin));
+  tokens.set("otherGroupAdmin", await tokenFor(db, otherAdmin));
+  tokens.set("siteAdmin", await tokenFor(db, siteAdmin));
+});
+
+afterAll(async () => {
+  await app?.close();
+  await database?.drop();
+});
+
+describe("authorization matrix", () => {
+  for (const testCase of CASES) {
+    for (const caller of CALLERS) {
+      it(`${testCase.method} ${testCase.name} as ${caller} → ${testCase.expected[caller]}`, async () => {
+        const headers: Record<string, string> = { "content-type": "application/json" };
+        const token = tokens.get(caller);
+        if (token) headers.authorization = `Bearer ${token}`;
+        const body = testCase.body?.();
+        const response = await fetch(`${app.baseUrl}${await testCase.path()}`, {
+          method: testCase.method,
+          headers,
+          body: body === undefined ? undefined : JSON.stringify(body),
+        });
+        const text = await response.text();
+        expect(response.status, text).toBe(testCase.expected[caller]);
+        if (response.status >= 400) {
+          expect(JSON.parse(text)).toMatchObject({ error: { code: expect.any(String), message: expect.any(String) } });
+        }
+      });
+    }
+  }
+});

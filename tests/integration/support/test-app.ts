@@ -1,0 +1,65 @@
+/**
+ * The real Express app on an ephemeral port, backed by a test database. Mail goes to an in-memory
+ * recording transport (the relay is the one external part faked here); the identity provider settings
+ * point at `oidcIssuer` so sign-in tests can start the development provider beside it.
+ */
+import type { AddressInfo } from "node:net";
+import { createServer, type Server } from "node:http";
+import { createApp } from "../../../server/app";
+import { loadConfig } from "../../../server/config";
+import { createLogger } from "../../../server/logger";
+import type { Mailer, OutgoingMail } from "../../../server/mail/mailer";
+import type { TestDatabase } from "./test-database";
+
+export type RecordingMailer = Mailer & { sent: OutgoingMail[]; failNext: boolean };
+
+export function recordingMailer(): RecordingMailer {
+  const mailer: RecordingMailer = {
+    sent: [],
+    failNext: false,
+    async send(mail) {
+      if (mailer.failNext) {
+        mailer.failNext = false;
+        throw new Error("relay refused the message");
+      }
+      mailer.sent.push(mail);
+    },
+    close() {},
+  };
+  return mailer;
+}
+
+export async function startTestApp(
+  database: TestDatabase,
+  options: { oidcIssuer?: string; port?: number; env?: Record<string, string> } = {},
+) {
+  const server: Server = createServer();
+  await new Promise<void>((resolve) => server.listen(options.port ?? 0, "127.0.0.1", resolve));
+  const port = (server.address() as AddressInfo).port;
+  const config = loadConfig({
+    NODE_ENV: "test",
+    SIGMAFLOW_PORT: String(port),
+    DATABASE_URL: database.url,
+    SESSION_SECRET: "integration-test-session-secret-0123456789abcdef",
+    OIDC_ISSUER: options.oidcIssuer ?? "http://127.0.0.1:9",
+    OIDC_CLIENT_ID: "sigmaflow-test",
+    OIDC_CLIENT_SECRET: "sigmaflow-test-secret",
+    AUTH_RATE_LIMIT_PER_MINUTE: "1000",
+    CLIENT_DIST_DIR: "/nonexistent",
+    LOG_LEVEL: "silent",
+    ...options.env,
+  });
+  const mailer = recordingMailer();
+  const app = createApp({ db: database.db, pool: database.pool, config, mailer, log: createLogger("silent") });
+  server.on("request", app);
+  return {
+    baseUrl: `http://127.0.0.1:${port}`,
+    config,
+    mailer,
+    close: () =>
+      new Promise<void>((resolve) => {
+        server.closeAllConnections();
+        server.close(() => resolve());
+      }),
+  };
+}

@@ -47,7 +47,10 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env) {
     throw new Error(`Invalid Sigmaflow server configuration:\n${lines.join("\n")}`);
   }
   const e = parsed.data;
-  const publicUrl = (e.SIGMAFLOW_PUBLIC_URL ?? `http://${e.SIGMAFLOW_HOST}:${e.SIGMAFLOW_PORT}`).replace(/\/$/, "");
+  const publicUrl = (e.SIGMAFLOW_PUBLIC_URL ?? `http://${e.SIGMAFLOW_HOST}:${e.SIGMAFLOW_PORT}`).replace(
+    /\/$/,
+    "",
+  );
   const issuer = e.OIDC_ISSUER.replace(/\/$/, "");
   return {
     env: e.NODE_ENV,

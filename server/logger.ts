@@ -6,7 +6,12 @@ export function createLogger(level: string) {
     level,
     base: { service: "sigmaflow-server" },
     redact: {
-      paths: ["req.headers.authorization", "req.headers.cookie", "req.headers['x-csrf-token']", 'res.headers["set-cookie"]'],
+      paths: [
+        "req.headers.authorization",
+        "req.headers.cookie",
+        "req.headers['x-csrf-token']",
+        'res.headers["set-cookie"]',
+      ],
       censor: "[redacted]",
     },
   });

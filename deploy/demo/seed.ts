@@ -4,9 +4,9 @@
  */
 import { fileURLToPath } from "node:url";
 import { sql } from "drizzle-orm";
-import type { GroupRole } from "../../shared/schemas/groups";
 import { createDatabase, type Database } from "../../server/db/client";
 import { groups, memberships, users } from "../../server/db/schema";
+import type { GroupRole } from "../../shared/schemas/groups";
 import { DEMO_ACCOUNTS } from "./accounts";
 
 export const DEMO_GROUPS = [
@@ -24,13 +24,14 @@ export const DEMO_GROUPS = [
   },
 ] as const;
 
-const DEMO_MEMBERSHIPS: { subject: string; group: (typeof DEMO_GROUPS)[number]["slug"]; role: GroupRole }[] = [
-  { subject: "demo-group-admin", group: "kestrel-plasma", role: "admin" },
-  { subject: "demo-researcher", group: "kestrel-plasma", role: "member" },
-  { subject: "demo-collaborator", group: "kestrel-plasma", role: "collaborator" },
-  { subject: "demo-other-admin", group: "marrow-astrochem", role: "admin" },
-  { subject: "demo-researcher", group: "marrow-astrochem", role: "collaborator" },
-];
+const DEMO_MEMBERSHIPS: { subject: string; group: (typeof DEMO_GROUPS)[number]["slug"]; role: GroupRole }[] =
+  [
+    { subject: "demo-group-admin", group: "kestrel-plasma", role: "admin" },
+    { subject: "demo-researcher", group: "kestrel-plasma", role: "member" },
+    { subject: "demo-collaborator", group: "kestrel-plasma", role: "collaborator" },
+    { subject: "demo-other-admin", group: "marrow-astrochem", role: "admin" },
+    { subject: "demo-researcher", group: "marrow-astrochem", role: "collaborator" },
+  ];
 
 export async function seedDemo(db: Database, issuer: string): Promise<void> {
   await db.transaction(async (tx) => {

@@ -9,7 +9,8 @@ export function bearerAuth(db: Database): RequestHandler {
     const header = req.get("authorization");
     if (!header) return next();
     const match = /^Bearer\s+(\S+)$/i.exec(header);
-    if (!match) throw new AppError(401, "bad_authorization", "Use the header `Authorization: Bearer <token>`.");
+    if (!match)
+      throw new AppError(401, "bad_authorization", "Use the header `Authorization: Bearer <token>`.");
     const principal = await authenticateApiToken(db, match[1]!);
     if (!principal) throw new AppError(401, "invalid_token", "The API token is unknown, revoked or expired.");
     req.user = principal;

@@ -9,7 +9,7 @@ import type { Request } from "express";
  */
 const csrf = csrfSync({
   getTokenFromRequest: (req) => req.get("x-csrf-token") ?? undefined,
-  skipCsrfProtection: (req: Request) => !req.user || req.user.via !== "session",
+  skipCsrfProtection: (req: Request) => req.user?.via !== "session",
   errorConfig: { statusCode: 403, code: "csrf_invalid", message: "csrf token invalid" },
 });
 

@@ -18,7 +18,12 @@ export function sessionMiddleware(pool: pg.Pool, config: ServerConfig) {
   return session({
     name: SESSION_COOKIE,
     secret: config.session.secret,
-    store: new PgStore({ pool, tableName: "sessions", createTableIfMissing: false, pruneSessionInterval: 600 }),
+    store: new PgStore({
+      pool,
+      tableName: "sessions",
+      createTableIfMissing: false,
+      pruneSessionInterval: 600,
+    }),
     resave: false,
     saveUninitialized: false,
     rolling: true,

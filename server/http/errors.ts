@@ -3,7 +3,7 @@
  * turns every thrown error into it. Services throw `AppError`; anything else is a 500 that is logged.
  */
 import type { ErrorRequestHandler, RequestHandler } from "express";
-import { ZodError } from "zod";
+import type { ZodError } from "zod";
 import type { ApiError } from "../../shared/schemas/common";
 
 export class AppError extends Error {
@@ -22,7 +22,8 @@ export const unauthenticated = () => new AppError(401, "unauthenticated", "Sign 
 export const forbidden = (message = "You do not have permission to do this.") =>
   new AppError(403, "forbidden", message);
 export const notFound = (what: string) => new AppError(404, "not_found", `${what} was not found.`);
-export const conflict = (message: string, details?: unknown) => new AppError(409, "conflict", message, details);
+export const conflict = (message: string, details?: unknown) =>
+  new AppError(409, "conflict", message, details);
 
 export function validationError(error: ZodError, where: "body" | "query" | "params"): AppError {
   const details = error.issues.map((issue) => ({
@@ -59,7 +60,12 @@ export function errorHandler(log: { error: (obj: object, msg: string) => void })
     if (parserError.type === "entity.too.large") {
       res
         .status(413)
-        .json(errorBody("payload_too_large", `The request body is larger than the ${parserError.limit} bytes allowed.`));
+        .json(
+          errorBody(
+            "payload_too_large",
+            `The request body is larger than the ${parserError.limit} bytes allowed.`,
+          ),
+        );
       return;
     }
     if (parserError.type === "charset.unsupported" || parserError.type === "encoding.unsupported") {
@@ -67,7 +73,9 @@ export function errorHandler(log: { error: (obj: object, msg: string) => void })
       return;
     }
     if (parserError.status === 403 && parserError.message?.includes("csrf")) {
-      res.status(403).json(errorBody("csrf_invalid", "The form expired or came from another site: reload the page."));
+      res
+        .status(403)
+        .json(errorBody("csrf_invalid", "The form expired or came from another site: reload the page."));
       return;
     }
     log.error({ err }, "unhandled error");

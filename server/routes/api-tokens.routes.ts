@@ -1,6 +1,10 @@
 import { Router } from "express";
 import { z } from "zod";
-import { apiTokenListSchema, createApiTokenRequestSchema, createdApiTokenSchema } from "../../shared/schemas/auth";
+import {
+  apiTokenListSchema,
+  createApiTokenRequestSchema,
+  createdApiTokenSchema,
+} from "../../shared/schemas/auth";
 import { requirePrincipal } from "../auth/principal";
 import { forbidden } from "../http/errors";
 import { parseBody, parseParams, shape } from "../http/validate";
@@ -19,9 +23,12 @@ export function apiTokenRoutes({ db }: RouteContext): Router {
   router.post("/tokens", async (req, res) => {
     const principal = requirePrincipal(req);
     // A leaked token must not be able to mint more tokens: creating one needs a browser session.
-    if (principal.via !== "session") throw forbidden("API tokens are created in the browser, not with a token.");
+    if (principal.via !== "session")
+      throw forbidden("API tokens are created in the browser, not with a token.");
     const input = parseBody(createApiTokenRequestSchema, req);
-    res.status(201).json(shape(createdApiTokenSchema, await createApiToken(db, principal, input, clientIp(req))));
+    res
+      .status(201)
+      .json(shape(createdApiTokenSchema, await createApiToken(db, principal, input, clientIp(req))));
   });
 
   router.delete("/tokens/:tokenId", async (req, res) => {

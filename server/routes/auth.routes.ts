@@ -19,7 +19,9 @@ export function authRoutes({ db, config }: RouteContext): Router {
     standardHeaders: "draft-8",
     legacyHeaders: false,
     handler: (_req, res) => {
-      res.status(429).json(errorBody("rate_limited", "Too many sign-in attempts. Wait a minute and try again."));
+      res
+        .status(429)
+        .json(errorBody("rate_limited", "Too many sign-in attempts. Wait a minute and try again."));
     },
   });
 
@@ -31,7 +33,12 @@ export function authRoutes({ db, config }: RouteContext): Router {
   router.get("/auth/callback", signInLimiter, (req, res, next) => {
     const returnTo = safeReturnTo(req.session.returnTo);
     passport.authenticate("oidc", (error: unknown, user: Express.User | false) => {
-      if (error) return next(error instanceof AppError ? error : new AppError(502, "sign_in_failed", "Sign-in with the identity provider failed. Try again."));
+      if (error)
+        return next(
+          error instanceof AppError
+            ? error
+            : new AppError(502, "sign_in_failed", "Sign-in with the identity provider failed. Try again."),
+        );
       if (!user) return res.redirect("/signin?error=sign_in_failed");
       // passport regenerates the session on login, so a session id fixed before sign-in is worthless.
       req.logIn(user, (loginError) => {

@@ -22,7 +22,9 @@ import { clientIp, type RouteContext } from "./context";
 
 const groupParams = z.object({ groupId: z.uuid({ error: "groupId must be a UUID" }) });
 const memberParams = groupParams.extend({ userId: z.uuid({ error: "userId must be a UUID" }) });
-const invitationParams = groupParams.extend({ invitationId: z.uuid({ error: "invitationId must be a UUID" }) });
+const invitationParams = groupParams.extend({
+  invitationId: z.uuid({ error: "invitationId must be a UUID" }),
+});
 
 export function groupRoutes(ctx: RouteContext): Router {
   const { db } = ctx;
@@ -55,7 +57,9 @@ export function groupRoutes(ctx: RouteContext): Router {
     const principal = requirePrincipal(req);
     const { groupId, userId } = parseParams(memberParams, req);
     const { role } = parseBody(updateMemberRequestSchema, req);
-    res.json(shape(memberSchema, await changeMemberRole(db, principal, groupId, userId, role, clientIp(req))));
+    res.json(
+      shape(memberSchema, await changeMemberRole(db, principal, groupId, userId, role, clientIp(req))),
+    );
   });
 
   router.delete("/groups/:groupId/members/:userId", async (req, res) => {
@@ -75,7 +79,12 @@ export function groupRoutes(ctx: RouteContext): Router {
     const principal = requirePrincipal(req);
     const { groupId } = parseParams(groupParams, req);
     const input = parseBody(createInvitationRequestSchema, req);
-    const deps = { db, mailer: ctx.mailer, publicUrl: ctx.config.publicUrl, ttlDays: ctx.config.invitationTtlDays };
+    const deps = {
+      db,
+      mailer: ctx.mailer,
+      publicUrl: ctx.config.publicUrl,
+      ttlDays: ctx.config.invitationTtlDays,
+    };
     const invitation = await createInvitation(deps, principal, groupId, input, clientIp(req));
     res.status(201).json(shape(invitationSchema, invitation));
   });

@@ -16,7 +16,11 @@ export function healthRoutes({ db }: RouteContext): Router {
       const latencyMs = Math.round((performance.now() - started) * 10) / 10;
       res.json(shape(healthSchema, { status: "ok", database: { ok: true, latencyMs }, version: VERSION }));
     } catch (error) {
-      const body = { status: "degraded" as const, database: { ok: false, latencyMs: null, error: (error as Error).message }, version: VERSION };
+      const body = {
+        status: "degraded" as const,
+        database: { ok: false, latencyMs: null, error: (error as Error).message },
+        version: VERSION,
+      };
       res.status(503).json(shape(healthSchema, body));
     }
   });

@@ -23,7 +23,9 @@ export function invitationRoutes({ db }: RouteContext): Router {
   router.post("/invitations/:token/accept", async (req, res) => {
     const principal = requirePrincipal(req);
     const { token } = parseParams(tokenParams, req);
-    res.json(shape(acceptInvitationResponseSchema, await acceptInvitation(db, principal, token, clientIp(req))));
+    res.json(
+      shape(acceptInvitationResponseSchema, await acceptInvitation(db, principal, token, clientIp(req))),
+    );
   });
 
   return router;

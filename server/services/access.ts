@@ -16,7 +16,11 @@ export function roleAtLeast(role: GroupRole, minimum: GroupRole): boolean {
   return RANK[role] >= RANK[minimum];
 }
 
-export async function membershipRole(db: DbExecutor, userId: string, groupId: string): Promise<GroupRole | null> {
+export async function membershipRole(
+  db: DbExecutor,
+  userId: string,
+  groupId: string,
+): Promise<GroupRole | null> {
   const rows = await db
     .select({ role: memberships.role })
     .from(memberships)

@@ -69,7 +69,9 @@ export async function revokeApiToken(db: Database, principal: Principal, tokenId
     const [row] = await tx
       .update(apiTokens)
       .set({ revokedAt: new Date() })
-      .where(and(eq(apiTokens.id, tokenId), eq(apiTokens.userId, principal.userId), isNull(apiTokens.revokedAt)))
+      .where(
+        and(eq(apiTokens.id, tokenId), eq(apiTokens.userId, principal.userId), isNull(apiTokens.revokedAt)),
+      )
       .returning({ id: apiTokens.id });
     if (!row) throw notFound("API token");
     await recordAudit(tx, {
@@ -104,7 +106,10 @@ export async function authenticateApiToken(db: Database, secret: string): Promis
       .where(
         and(
           eq(apiTokens.id, row.id),
-          or(isNull(apiTokens.lastUsedAt), lt(apiTokens.lastUsedAt, new Date(now.getTime() - LAST_USED_RESOLUTION_MS))),
+          or(
+            isNull(apiTokens.lastUsedAt),
+            lt(apiTokens.lastUsedAt, new Date(now.getTime() - LAST_USED_RESOLUTION_MS)),
+          ),
         ),
       );
   }

@@ -17,7 +17,9 @@ function groupColumns(userId: string) {
     description: groups.description,
     createdAt: groups.createdAt,
     memberCount,
-    myRole: sql<Group["myRole"]>`(select m.role from ${memberships} m where m.group_id = ${groups.id} and m.user_id = ${userId})`,
+    myRole: sql<
+      Group["myRole"]
+    >`(select m.role from ${memberships} m where m.group_id = ${groups.id} and m.user_id = ${userId})`,
   };
 }
 
@@ -31,7 +33,10 @@ export async function listGroups(db: Database, principal: Principal): Promise<Gr
   const rows = principal.isSiteAdmin
     ? await base.orderBy(groups.name)
     : await base
-        .innerJoin(memberships, and(eq(memberships.groupId, groups.id), eq(memberships.userId, principal.userId)))
+        .innerJoin(
+          memberships,
+          and(eq(memberships.groupId, groups.id), eq(memberships.userId, principal.userId)),
+        )
         .orderBy(groups.name);
   return rows.map(toGroup);
 }
@@ -53,7 +58,12 @@ export async function createGroup(
   return db.transaction(async (tx) => {
     const inserted = await tx
       .insert(groups)
-      .values({ slug: input.slug, name: input.name, description: input.description, createdBy: principal.userId })
+      .values({
+        slug: input.slug,
+        name: input.name,
+        description: input.description,
+        createdBy: principal.userId,
+      })
       .onConflictDoNothing({ target: groups.slug })
       .returning({ id: groups.id });
     const id = inserted[0]?.id;

@@ -1,5 +1,10 @@
 import { and, desc, eq, gt, isNull, sql } from "drizzle-orm";
-import type { CreateInvitationRequest, GroupRole, Invitation, InvitationPreview } from "../../shared/schemas/groups";
+import type {
+  CreateInvitationRequest,
+  GroupRole,
+  Invitation,
+  InvitationPreview,
+} from "../../shared/schemas/groups";
 import type { Principal } from "../auth/principal";
 import { hashSecret, newSecret } from "../auth/tokens";
 import type { Database } from "../db/client";
@@ -21,7 +26,11 @@ function statusOf(row: InvitationRow, now = new Date()): Invitation["status"] {
 
 export type InvitationDeps = { db: Database; mailer: Mailer; publicUrl: string; ttlDays: number };
 
-export async function listInvitations(db: Database, principal: Principal, groupId: string): Promise<Invitation[]> {
+export async function listInvitations(
+  db: Database,
+  principal: Principal,
+  groupId: string,
+): Promise<Invitation[]> {
   await requireGroupRole(db, principal, groupId, "admin");
   const rows = await db
     .select({ invitation: invitations, invitedBy: users.displayName })
@@ -114,9 +123,14 @@ export async function createInvitation(
     try {
       await deps.mailer.send(mail);
     } catch (error) {
-      throw new AppError(502, "mail_failed", "The invitation e-mail could not be sent; nothing was saved. Try again.", {
-        reason: (error as Error).message,
-      });
+      throw new AppError(
+        502,
+        "mail_failed",
+        "The invitation e-mail could not be sent; nothing was saved. Try again.",
+        {
+          reason: (error as Error).message,
+        },
+      );
     }
     return toInvitation(row!, principal.displayName);
   });
@@ -158,7 +172,12 @@ export async function revokeInvitation(
 
 async function findByToken(db: Database, token: string) {
   const [found] = await db
-    .select({ invitation: invitations, groupName: groups.name, groupSlug: groups.slug, invitedBy: users.displayName })
+    .select({
+      invitation: invitations,
+      groupName: groups.name,
+      groupSlug: groups.slug,
+      invitedBy: users.displayName,
+    })
     .from(invitations)
     .innerJoin(groups, eq(groups.id, invitations.groupId))
     .leftJoin(users, eq(users.id, invitations.invitedBy))
@@ -190,16 +209,21 @@ export async function acceptInvitation(
   const { invitation } = found;
   const status = statusOf(invitation);
   if (status === "revoked") throw new AppError(410, "invitation_revoked", "This invitation was withdrawn.");
-  if (status === "expired") throw new AppError(410, "invitation_expired", "This invitation has expired: ask for a new one.");
+  if (status === "expired")
+    throw new AppError(410, "invitation_expired", "This invitation has expired: ask for a new one.");
   if (status === "accepted") throw conflict("This invitation has already been used.");
   if (invitation.email !== principal.email.toLowerCase()) {
-    throw forbidden(`This invitation is for ${invitation.email}, but you are signed in as ${principal.email}.`);
+    throw forbidden(
+      `This invitation is for ${invitation.email}, but you are signed in as ${principal.email}.`,
+    );
   }
   return db.transaction(async (tx) => {
     const claimed = await tx
       .update(invitations)
       .set({ acceptedAt: new Date(), acceptedBy: principal.userId })
-      .where(and(eq(invitations.id, invitation.id), isNull(invitations.acceptedAt), isNull(invitations.revokedAt)))
+      .where(
+        and(eq(invitations.id, invitation.id), isNull(invitations.acceptedAt), isNull(invitations.revokedAt)),
+      )
       .returning({ id: invitations.id });
     if (claimed.length === 0) throw conflict("This invitation has already been used.");
     const inserted = await tx

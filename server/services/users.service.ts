@@ -7,7 +7,12 @@ import { AppError } from "../http/errors";
 import { requireSiteAdmin } from "./access";
 import { recordAudit } from "./audit.service";
 
-export type OidcIdentity = { issuer: string; subject: string; email: string | null; displayName: string | null };
+export type OidcIdentity = {
+  issuer: string;
+  subject: string;
+  email: string | null;
+  displayName: string | null;
+};
 
 /**
  * Finds or creates the user for an identity that just signed in. The identity (issuer, subject) is the
@@ -21,24 +26,45 @@ export async function upsertUserFromOidc(db: DbExecutor, identity: OidcIdentity)
   const displayName = identity.displayName?.trim() || email;
   const [row] = await db
     .insert(users)
-    .values({ email, displayName, oidcIssuer: identity.issuer, oidcSubject: identity.subject, lastSignInAt: new Date() })
+    .values({
+      email,
+      displayName,
+      oidcIssuer: identity.issuer,
+      oidcSubject: identity.subject,
+      lastSignInAt: new Date(),
+    })
     .onConflictDoUpdate({
       target: [users.oidcIssuer, users.oidcSubject],
       set: { email, displayName, lastSignInAt: new Date() },
     })
     .returning();
   if (!row) throw new Error("user upsert returned no row");
-  await recordAudit(db, { actorUserId: row.id, action: "user.sign_in", targetType: "user", targetId: row.id });
+  await recordAudit(db, {
+    actorUserId: row.id,
+    action: "user.sign_in",
+    targetType: "user",
+    targetId: row.id,
+  });
   return toPrincipal(row, "session");
 }
 
-export async function findPrincipal(db: DbExecutor, userId: string, via: Principal["via"]): Promise<Principal | null> {
+export async function findPrincipal(
+  db: DbExecutor,
+  userId: string,
+  via: Principal["via"],
+): Promise<Principal | null> {
   const [row] = await db.select().from(users).where(eq(users.id, userId)).limit(1);
   return row ? toPrincipal(row, via) : null;
 }
 
 function toPrincipal(row: typeof users.$inferSelect, via: Principal["via"]): Principal {
-  return { userId: row.id, email: row.email, displayName: row.displayName, isSiteAdmin: row.isSiteAdmin, via };
+  return {
+    userId: row.id,
+    email: row.email,
+    displayName: row.displayName,
+    isSiteAdmin: row.isSiteAdmin,
+    via,
+  };
 }
 
 export async function describeMe(db: DbExecutor, principal: Principal): Promise<Omit<Me, "csrfToken">> {

@@ -12,7 +12,14 @@ import { addMember, createGroup, createUser, tokenFor } from "./support/people";
 import { startTestApp } from "./support/test-app";
 import { createTestDatabase, type TestDatabase } from "./support/test-database";
 
-const CALLERS = ["anonymous", "collaborator", "member", "otherGroupAdmin", "groupAdmin", "siteAdmin"] as const;
+const CALLERS = [
+  "anonymous",
+  "collaborator",
+  "member",
+  "otherGroupAdmin",
+  "groupAdmin",
+  "siteAdmin",
+] as const;
 type Caller = (typeof CALLERS)[number];
 type Expected = Record<Caller, number>;
 
@@ -84,7 +91,12 @@ const CASES: Case[] = [
     expected: siteAdminOnly(201),
   },
   { name: "read group", method: "GET", path: () => `/api/groups/${groupId}`, expected: groupRead(200) },
-  { name: "list members", method: "GET", path: () => `/api/groups/${groupId}/members`, expected: groupRead(200) },
+  {
+    name: "list members",
+    method: "GET",
+    path: () => `/api/groups/${groupId}/members`,
+    expected: groupRead(200),
+  },
   {
     name: "change a role",
     method: "PATCH",
@@ -117,7 +129,12 @@ const CASES: Case[] = [
     path: async () => `/api/groups/${groupId}/invitations/${(await freshInvitation()).id}`,
     expected: groupAdminOnly(204),
   },
-  { name: "group audit log", method: "GET", path: () => `/api/groups/${groupId}/audit`, expected: groupAdminOnly(200) },
+  {
+    name: "group audit log",
+    method: "GET",
+    path: () => `/api/groups/${groupId}/audit`,
+    expected: groupAdminOnly(200),
+  },
   {
     name: "preview an invitation by its secret",
     method: "GET",
@@ -198,7 +215,9 @@ describe("authorization matrix", () => {
         const text = await response.text();
         expect(response.status, text).toBe(testCase.expected[caller]);
         if (response.status >= 400) {
-          expect(JSON.parse(text)).toMatchObject({ error: { code: expect.any(String), message: expect.any(String) } });
+          expect(JSON.parse(text)).toMatchObject({
+            error: { code: expect.any(String), message: expect.any(String) },
+          });
         }
       });
     }

@@ -19,7 +19,11 @@ async function rowCounts() {
   return result.rows[0];
 }
 
-async function send(path: string, token: string, init: { method?: string; body?: string; contentType?: string }) {
+async function send(
+  path: string,
+  token: string,
+  init: { method?: string; body?: string; contentType?: string },
+) {
   const response = await fetch(`${app.baseUrl}${path}`, {
     method: init.method ?? "POST",
     headers: { authorization: `Bearer ${token}`, "content-type": init.contentType ?? "application/json" },
@@ -47,11 +51,31 @@ afterAll(async () => {
 describe("bad input writes nothing", () => {
   const cases = [
     { name: "malformed JSON", body: '{"email": "a@b.example",', status: 400, code: "malformed_json" },
-    { name: "oversized body", body: JSON.stringify({ email: "a@b.example", pad: "x".repeat(200_000) }), status: 413, code: "payload_too_large" },
-    { name: "unknown field", body: JSON.stringify({ email: "a@b.example", role: "member", admin: true }), status: 422, code: "validation_failed" },
+    {
+      name: "oversized body",
+      body: JSON.stringify({ email: "a@b.example", pad: "x".repeat(200_000) }),
+      status: 413,
+      code: "payload_too_large",
+    },
+    {
+      name: "unknown field",
+      body: JSON.stringify({ email: "a@b.example", role: "member", admin: true }),
+      status: 422,
+      code: "validation_failed",
+    },
     { name: "wrong type", body: JSON.stringify({ email: 42 }), status: 422, code: "validation_failed" },
-    { name: "unknown role", body: JSON.stringify({ email: "a@b.example", role: "owner" }), status: 422, code: "validation_failed" },
-    { name: "not an e-mail", body: JSON.stringify({ email: "not-an-address" }), status: 422, code: "validation_failed" },
+    {
+      name: "unknown role",
+      body: JSON.stringify({ email: "a@b.example", role: "owner" }),
+      status: 422,
+      code: "validation_failed",
+    },
+    {
+      name: "not an e-mail",
+      body: JSON.stringify({ email: "not-an-address" }),
+      status: 422,
+      code: "validation_failed",
+    },
     { name: "a JSON array", body: "[1,2]", status: 422, code: "validation_failed" },
   ];
   for (const c of cases) {
@@ -75,17 +99,23 @@ describe("bad input writes nothing", () => {
 
   it("refuses a group slug with path tricks and keeps the table unchanged", async () => {
     const before = await rowCounts();
-    const result = await send("/api/groups", siteToken, { body: JSON.stringify({ slug: "../etc", name: "Sneaky" }) });
+    const result = await send("/api/groups", siteToken, {
+      body: JSON.stringify({ slug: "../etc", name: "Sneaky" }),
+    });
     expect(result.status).toBe(422);
     expect(result.body.error.details[0].path).toBe("slug");
     expect(await rowCounts()).toEqual(before);
   });
 
   it("refuses a duplicate slug with 409 and no second row", async () => {
-    const first = await send("/api/groups", siteToken, { body: JSON.stringify({ slug: "twin-group", name: "Twin" }) });
+    const first = await send("/api/groups", siteToken, {
+      body: JSON.stringify({ slug: "twin-group", name: "Twin" }),
+    });
     expect(first.status).toBe(201);
     const before = await rowCounts();
-    const second = await send("/api/groups", siteToken, { body: JSON.stringify({ slug: "twin-group", name: "Twin 2" }) });
+    const second = await send("/api/groups", siteToken, {
+      body: JSON.stringify({ slug: "twin-group", name: "Twin 2" }),
+    });
     expect(second.status).toBe(409);
     expect(await rowCounts()).toEqual(before);
   });

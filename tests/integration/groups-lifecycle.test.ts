@@ -48,7 +48,11 @@ describe("invitations", () => {
     expect(mail.to).toBe(invitee.email);
     const secret = /\/invitations\/([A-Za-z0-9_-]+)/.exec(mail.text)![1]!;
 
-    const wrongPerson = await call(await tokenFor(database.db, bystander), "POST", `/api/invitations/${secret}/accept`);
+    const wrongPerson = await call(
+      await tokenFor(database.db, bystander),
+      "POST",
+      `/api/invitations/${secret}/accept`,
+    );
     expect(wrongPerson.status).toBe(403);
     expect(wrongPerson.body.error.message).toContain(invitee.email);
 
@@ -75,7 +79,11 @@ describe("invitations", () => {
     await call(adminToken, "POST", `/api/groups/${group.id}/invitations`, { email: invitee.email });
     const firstSecret = /\/invitations\/([A-Za-z0-9_-]+)/.exec(app.mailer.sent.at(-1)!.text)![1]!;
     await call(adminToken, "POST", `/api/groups/${group.id}/invitations`, { email: invitee.email });
-    const result = await call(await tokenFor(database.db, invitee), "POST", `/api/invitations/${firstSecret}/accept`);
+    const result = await call(
+      await tokenFor(database.db, invitee),
+      "POST",
+      `/api/invitations/${firstSecret}/accept`,
+    );
     expect(result.status).toBe(410);
     expect(result.body.error.code).toBe("invitation_revoked");
   });
@@ -84,9 +92,14 @@ describe("invitations", () => {
     const group = await createGroup(database.db, "dup");
     const admin = await createUser(database.db, "admin");
     await addMember(database.db, admin.id, group.id, "admin");
-    const result = await call(await tokenFor(database.db, admin), "POST", `/api/groups/${group.id}/invitations`, {
-      email: admin.email,
-    });
+    const result = await call(
+      await tokenFor(database.db, admin),
+      "POST",
+      `/api/groups/${group.id}/invitations`,
+      {
+        email: admin.email,
+      },
+    );
     expect(result.status).toBe(409);
   });
 });
@@ -97,16 +110,22 @@ describe("roles", () => {
     const admin = await createUser(database.db, "admin");
     await addMember(database.db, admin.id, group.id, "admin");
     const token = await tokenFor(database.db, admin);
-    const demote = await call(token, "PATCH", `/api/groups/${group.id}/members/${admin.id}`, { role: "member" });
+    const demote = await call(token, "PATCH", `/api/groups/${group.id}/members/${admin.id}`, {
+      role: "member",
+    });
     expect(demote.status).toBe(409);
     const remove = await call(token, "DELETE", `/api/groups/${group.id}/members/${admin.id}`);
     expect(remove.status).toBe(409);
 
     const second = await createUser(database.db, "second");
     await addMember(database.db, second.id, group.id, "member");
-    const promote = await call(token, "PATCH", `/api/groups/${group.id}/members/${second.id}`, { role: "admin" });
+    const promote = await call(token, "PATCH", `/api/groups/${group.id}/members/${second.id}`, {
+      role: "admin",
+    });
     expect(promote.body).toMatchObject({ userId: second.id, role: "admin" });
-    const demoteSelf = await call(token, "PATCH", `/api/groups/${group.id}/members/${admin.id}`, { role: "member" });
+    const demoteSelf = await call(token, "PATCH", `/api/groups/${group.id}/members/${admin.id}`, {
+      role: "member",
+    });
     expect(demoteSelf.status).toBe(200);
   });
 
@@ -117,11 +136,18 @@ describe("roles", () => {
     await addMember(database.db, a.id, group.id, "admin");
     await addMember(database.db, b.id, group.id, "admin");
     const [ra, rb] = await Promise.all([
-      call(await tokenFor(database.db, a), "PATCH", `/api/groups/${group.id}/members/${b.id}`, { role: "member" }),
-      call(await tokenFor(database.db, b), "PATCH", `/api/groups/${group.id}/members/${a.id}`, { role: "member" }),
+      call(await tokenFor(database.db, a), "PATCH", `/api/groups/${group.id}/members/${b.id}`, {
+        role: "member",
+      }),
+      call(await tokenFor(database.db, b), "PATCH", `/api/groups/${group.id}/members/${a.id}`, {
+        role: "member",
+      }),
     ]);
     expect([ra.status, rb.status].sort()).toEqual([200, 409]);
-    const admins = await database.pool.query("select count(*)::int as n from memberships where group_id = $1 and role = 'admin'", [group.id]);
+    const admins = await database.pool.query(
+      "select count(*)::int as n from memberships where group_id = $1 and role = 'admin'",
+      [group.id],
+    );
     expect(admins.rows[0].n).toBe(1);
   });
 

@@ -1,9 +1,9 @@
 /** Creates users, groups, memberships and API tokens directly, for tests that need a cast of callers. */
 import { randomBytes } from "node:crypto";
-import type { GroupRole } from "../../../shared/schemas/groups";
 import type { Database } from "../../../server/db/client";
 import { groups, memberships, users } from "../../../server/db/schema";
 import { createApiToken } from "../../../server/services/api-tokens.service";
+import type { GroupRole } from "../../../shared/schemas/groups";
 
 export async function createUser(db: Database, label: string, options: { siteAdmin?: boolean } = {}) {
   const suffix = randomBytes(3).toString("hex");

@@ -3,8 +3,9 @@
  * recording transport (the relay is the one external part faked here); the identity provider settings
  * point at `oidcIssuer` so sign-in tests can start the development provider beside it.
  */
-import type { AddressInfo } from "node:net";
+
 import { createServer, type Server } from "node:http";
+import type { AddressInfo } from "node:net";
 import { createApp } from "../../../server/app";
 import { loadConfig } from "../../../server/config";
 import { createLogger } from "../../../server/logger";
@@ -50,7 +51,13 @@ export async function startTestApp(
     ...options.env,
   });
   const mailer = recordingMailer();
-  const app = createApp({ db: database.db, pool: database.pool, config, mailer, log: createLogger("silent") });
+  const app = createApp({
+    db: database.db,
+    pool: database.pool,
+    config,
+    mailer,
+    log: createLogger("silent"),
+  });
   server.on("request", app);
   return {
     baseUrl: `http://127.0.0.1:${port}`,

@@ -1,0 +1,435 @@
+/**
+ * The development identity provider and mail sink, started in-process on free ports and driven the
+ * way Sigmaflow's server and a browser use them: plain fetch with a hand-kept cookie jar for the
+ * authorization code flow, nodemailer for mail.
+ *
+ * Expected values come from the OpenID Connect / OAuth 2.0 specifications (cited per check), from
+ * deploy/demo/accounts.ts (the demo people) and from oidc-provider's documented default routes
+ * (/auth, /token, /me, /jwks, /session/end). All comparisons are exact; there is no tolerance.
+ */
+import { createPublicKey, verify } from "node:crypto";
+import { mkdtemp, rm } from "node:fs/promises";
+import { createServer } from "node:net";
+import { tmpdir } from "node:os";
+import path from "node:path";
+import nodemailer from "nodemailer";
+import { afterAll, beforeAll, beforeEach, describe, expect, it } from "vitest";
+import { DEMO_ACCOUNTS, DEMO_PASSWORD } from "../../deploy/demo/accounts";
+import { type FakeIdp, startFakeIdp } from "../../deploy/fake-idp/provider";
+import { type FakeSmtp, startFakeSmtp } from "../../deploy/fake-smtp/sink";
+
+const CLIENT_ID = "sigmaflow-test";
+const CLIENT_SECRET = "sigmaflow-test-secret";
+// Never contacted: the flow stops once the provider redirects here.
+const REDIRECT_URI = "http://127.0.0.1:5180/api/auth/callback";
+const researcher = DEMO_ACCOUNTS.find((account) => account.subject === "demo-researcher")!;
+const newcomer = DEMO_ACCOUNTS.find((account) => account.subject === "demo-newcomer")!;
+
+/** A port the OS just handed out; the issuer URL needs the number before the server starts. */
+async function freePort(): Promise<number> {
+  return new Promise((resolve, reject) => {
+    const server = createServer();
+    server.once("error", reject);
+    server.listen(0, "127.0.0.1", () => {
+      const address = server.address();
+      const port = typeof address === "object" && address ? address.port : 0;
+      server.close(() => resolve(port));
+    });
+  });
+}
+
+type Cookie = { name: string; value: string; path: string };
+
+/** Just enough of RFC 6265 for oidc-provider's cookies: name, value, path, deletion by expiry. */
+class CookieJar {
+  private readonly cookies = new Map<string, Cookie>();
+
+  store(response: Response): void {
+    for (const line of response.headers.getSetCookie()) {
+      const [pair = "", ...attributes] = line.split(";");
+      const eq = pair.indexOf("=");
+      const cookie: Cookie = { name: pair.slice(0, eq).trim(), value: pair.slice(eq + 1).trim(), path: "/" };
+      let expired = false;
+      for (const attribute of attributes) {
+        const [key = "", value = ""] = attribute.split("=");
+        const name = key.trim().toLowerCase();
+        if (name === "path") cookie.path = value.trim();
+        if (name === "expires" && Date.parse(value) <= Date.now()) expired = true;
+        if (name === "max-age" && Number(value) <= 0) expired = true;
+      }
+      const key = `${cookie.name}|${cookie.path}`;
+      if (expired) this.cookies.delete(key);
+      else this.cookies.set(key, cookie);
+    }
+  }
+
+  headerFor(url: URL): string {
+    return [...this.cookies.values()]
+      .filter((c) => c.path === "/" || url.pathname === c.path || url.pathname.startsWith(`${c.path}/`))
+      .map((c) => `${c.name}=${c.value}`)
+      .join("; ");
+  }
+}
+
+/** One browser: sends the jar's cookies, keeps new ones, never follows redirects by itself. */
+async function browse(jar: CookieJar, url: URL, init: RequestInit = {}): Promise<Response> {
+  const headers = new Headers(init.headers);
+  const cookie = jar.headerFor(url);
+  if (cookie) headers.set("cookie", cookie);
+  const response = await fetch(url, { ...init, headers, redirect: "manual" });
+  jar.store(response);
+  return response;
+}
+
+/** Follows redirects until one points at the client's redirect_uri, which is returned unvisited. */
+async function followToRedirectUri(jar: CookieJar, start: Response, base: URL): Promise<URL> {
+  let response = start;
+  for (let hop = 0; hop < 10; hop += 1) {
+    const location = response.headers.get("location");
+    expect(response.status, `hop ${hop} should redirect`).toBeGreaterThanOrEqual(300);
+    expect(location).not.toBeNull();
+    const next = new URL(location!, base);
+    if (next.href.startsWith(REDIRECT_URI)) return next;
+    response = await browse(jar, next);
+  }
+  throw new Error("no redirect back to the client after 10 hops");
+}
+
+function postForm(fields: Record<string, string>): RequestInit {
+  return {
+    method: "POST",
+    headers: { "content-type": "application/x-www-form-urlencoded" },
+    body: new URLSearchParams(fields).toString(),
+  };
+}
+
+function decodeJwtPart(part: string): Record<string, unknown> {
+  return JSON.parse(Buffer.from(part, "base64url").toString("utf8")) as Record<string, unknown>;
+}
+
+describe("fake identity provider", () => {
+  let idp: FakeIdp;
+  let issuer: URL;
+  const jar = new CookieJar();
+
+  beforeAll(async () => {
+    idp = await startFakeIdp({
+      port: await freePort(),
+      clientId: CLIENT_ID,
+      clientSecret: CLIENT_SECRET,
+      redirectUris: [REDIRECT_URI],
+      postLogoutRedirectUris: ["http://127.0.0.1:5180/"],
+    });
+    issuer = new URL(idp.issuer);
+  });
+  afterAll(async () => {
+    await idp?.close();
+  });
+
+  function authorizeUrl(state: string, nonce: string): URL {
+    const url = new URL("/auth", issuer);
+    url.search = new URLSearchParams({
+      client_id: CLIENT_ID,
+      response_type: "code",
+      scope: "openid email profile",
+      redirect_uri: REDIRECT_URI,
+      state,
+      nonce,
+    }).toString();
+    return url;
+  }
+
+  it("publishes a discovery document for exactly its issuer", async () => {
+    expect(idp.issuer).toMatch(/^http:\/\/127\.0\.0\.1:\d+$/);
+    const response = await fetch(new URL("/.well-known/openid-configuration", issuer));
+    expect(response.status).toBe(200);
+    const discovery = (await response.json()) as Record<string, unknown>;
+    // OpenID Connect Discovery 1.0 §4.3: "issuer" must be identical to the issuer URL.
+    expect(discovery.issuer).toBe(idp.issuer);
+    // oidc-provider's default route paths.
+    expect(discovery.authorization_endpoint).toBe(`${idp.issuer}/auth`);
+    expect(discovery.token_endpoint).toBe(`${idp.issuer}/token`);
+    expect(discovery.userinfo_endpoint).toBe(`${idp.issuer}/me`);
+    expect(discovery.jwks_uri).toBe(`${idp.issuer}/jwks`);
+    expect(discovery.end_session_endpoint).toBe(`${idp.issuer}/session/end`);
+    expect(discovery.scopes_supported).toEqual(expect.arrayContaining(["openid", "email", "profile"]));
+    expect(discovery.response_types_supported).toContain("code");
+  });
+
+  it("signs a demo account in through the code flow and serves its claims", async () => {
+    const state = "state-kestrel-1";
+    const nonce = "nonce-kestrel-1";
+    const start = await browse(jar, authorizeUrl(state, nonce));
+    expect(start.status).toBe(303);
+    const interactionUrl = new URL(start.headers.get("location")!, issuer);
+    expect(interactionUrl.pathname).toMatch(/^\/interaction\/[^/]+$/);
+
+    const form = await browse(jar, interactionUrl);
+    expect(form.status).toBe(200);
+    const formHtml = await form.text();
+    expect(formHtml).toContain("Halvorsen Institute");
+    expect(formHtml).toContain('name="email"');
+    expect(formHtml).toMatch(
+      /<input[^>]*name="password"[^>]*type="password"|type="password"[^>]*name="password"/,
+    );
+    expect(formHtml).toContain(researcher.email);
+    expect(formHtml).toContain(DEMO_PASSWORD);
+
+    const wrong = await browse(
+      jar,
+      interactionUrl,
+      postForm({ email: researcher.email, password: `${DEMO_PASSWORD}-wrong` }),
+    );
+    expect(wrong.status).toBe(200);
+    expect(wrong.headers.get("location")).toBeNull();
+    const wrongHtml = await wrong.text();
+    expect(wrongHtml).toContain('role="alert"');
+    expect(wrongHtml).toContain(`value="${researcher.email}"`);
+
+    // Whatever was typed comes back escaped, never as markup.
+    const hostile = await browse(
+      jar,
+      interactionUrl,
+      postForm({ email: '"><script>x</script>', password: DEMO_PASSWORD }),
+    );
+    const hostileHtml = await hostile.text();
+    expect(hostileHtml).toContain('role="alert"');
+    expect(hostileHtml).toContain("&quot;&gt;&lt;script&gt;x&lt;/script&gt;");
+    expect(hostileHtml).not.toContain("<script>");
+
+    const right = await browse(
+      jar,
+      interactionUrl,
+      postForm({ email: researcher.email, password: DEMO_PASSWORD }),
+    );
+    expect(right.status).toBe(303);
+    const callback = await followToRedirectUri(jar, right, issuer);
+    // RFC 6749 §4.1.2: code and the unchanged state in the redirect query; RFC 9207: iss = issuer.
+    expect(callback.searchParams.get("state")).toBe(state);
+    expect(callback.searchParams.get("iss")).toBe(idp.issuer);
+    const code = callback.searchParams.get("code");
+    expect(code).toMatch(/^\S+$/);
+
+    const tokenUrl = new URL("/token", issuer);
+    const exchange = { grant_type: "authorization_code", code: code!, redirect_uri: REDIRECT_URI };
+    // RFC 6749 §5.2: a wrong client secret is invalid_client with HTTP 401.
+    const rejected = await fetch(
+      tokenUrl,
+      postForm({ ...exchange, client_id: CLIENT_ID, client_secret: "not-the-secret" }),
+    );
+    expect(rejected.status).toBe(401);
+    expect(((await rejected.json()) as { error: string }).error).toBe("invalid_client");
+
+    // client_secret_post, as Sigmaflow's server sends it.
+    const tokenResponse = await fetch(
+      tokenUrl,
+      postForm({ ...exchange, client_id: CLIENT_ID, client_secret: CLIENT_SECRET }),
+    );
+    expect(tokenResponse.status).toBe(200);
+    const tokens = (await tokenResponse.json()) as {
+      access_token: string;
+      id_token: string;
+      token_type: string;
+    };
+    // RFC 6750 / RFC 6749 §5.1: a Bearer token.
+    expect(tokens.token_type).toBe("Bearer");
+
+    // OpenID Connect Core 1.0 §3.1.3.7: iss, aud and nonce of the ID token; RS256 signature over the
+    // first two parts, checked against the published key set.
+    const [headerPart = "", payloadPart = "", signaturePart = ""] = tokens.id_token.split(".");
+    const header = decodeJwtPart(headerPart);
+    const claims = decodeJwtPart(payloadPart);
+    expect(header.alg).toBe("RS256");
+    expect(claims.iss).toBe(idp.issuer);
+    expect(claims.aud).toBe(CLIENT_ID);
+    expect(claims.nonce).toBe(nonce);
+    expect(claims.sub).toBe(researcher.subject);
+    const jwks = (await (await fetch(new URL("/jwks", issuer))).json()) as {
+      keys: Array<Record<string, unknown>>;
+    };
+    const jwk = jwks.keys.find((key) => key.kid === header.kid);
+    expect(jwk).toBeTruthy();
+    expect(jwk).not.toHaveProperty("d");
+    const signatureValid = verify(
+      "RSA-SHA256",
+      Buffer.from(`${headerPart}.${payloadPart}`),
+      createPublicKey({ key: jwk as never, format: "jwk" }),
+      Buffer.from(signaturePart, "base64url"),
+    );
+    expect(signatureValid).toBe(true);
+
+    // OpenID Connect Core 1.0 §5.3.2; values from deploy/demo/accounts.ts.
+    const userinfo = await fetch(new URL("/me", issuer), {
+      headers: { authorization: `Bearer ${tokens.access_token}` },
+    });
+    expect(userinfo.status).toBe(200);
+    expect(await userinfo.json()).toEqual({
+      sub: researcher.subject,
+      email: researcher.email,
+      email_verified: true,
+      name: researcher.displayName,
+    });
+  });
+
+  it("sends a signed-in browser straight back with a new code, and accepts client_secret_basic", async () => {
+    // Relies on the session cookie the previous test's sign-in left in the jar.
+    const start = await browse(jar, authorizeUrl("state-kestrel-2", "nonce-kestrel-2"));
+    const callback = await followToRedirectUri(jar, start, issuer);
+    expect(callback.searchParams.get("state")).toBe("state-kestrel-2");
+    const code = callback.searchParams.get("code");
+    expect(code).toMatch(/^\S+$/);
+
+    // RFC 6749 §2.3.1: form-encoded id and secret in HTTP Basic.
+    const basic = Buffer.from(`${CLIENT_ID}:${CLIENT_SECRET}`).toString("base64");
+    const tokenResponse = await fetch(new URL("/token", issuer), {
+      ...postForm({ grant_type: "authorization_code", code: code!, redirect_uri: REDIRECT_URI }),
+      headers: { "content-type": "application/x-www-form-urlencoded", authorization: `Basic ${basic}` },
+    });
+    expect(tokenResponse.status).toBe(200);
+    const tokens = (await tokenResponse.json()) as { id_token: string };
+    expect(decodeJwtPart(tokens.id_token.split(".")[1] ?? "").sub).toBe(researcher.subject);
+  });
+
+  it("signs out on request and asks for the password again afterwards", async () => {
+    // OpenID Connect RP-Initiated Logout 1.0 §2–3: client_id plus a registered post_logout_redirect_uri.
+    const endUrl = new URL("/session/end", issuer);
+    endUrl.search = new URLSearchParams({
+      client_id: CLIENT_ID,
+      post_logout_redirect_uri: "http://127.0.0.1:5180/",
+      state: "bye",
+    }).toString();
+    const confirmPage = await browse(jar, endUrl);
+    expect(confirmPage.status).toBe(200);
+    const confirmHtml = await confirmPage.text();
+    expect(confirmHtml).toContain("Yes, sign me out");
+    const action = /<form[^>]*action="([^"]+)"/.exec(confirmHtml)?.[1];
+    const xsrf = /name="xsrf" value="([^"]+)"/.exec(confirmHtml)?.[1];
+    expect(action).toBe(`${idp.issuer}/session/end/confirm`);
+
+    const confirmed = await browse(jar, new URL(action!), postForm({ xsrf: xsrf!, logout: "yes" }));
+    expect(confirmed.status).toBe(303);
+    expect(confirmed.headers.get("location")).toBe("http://127.0.0.1:5180/?state=bye");
+
+    const again = await browse(jar, authorizeUrl("state-kestrel-3", "nonce-kestrel-3"));
+    expect(new URL(again.headers.get("location")!, issuer).pathname).toMatch(/^\/interaction\//);
+  });
+
+  it("answers an interaction without its cookie with an error page, not a sign-in", async () => {
+    const response = await fetch(new URL("/interaction/not-a-real-interaction", issuer), {
+      ...postForm({ email: researcher.email, password: DEMO_PASSWORD }),
+      redirect: "manual",
+    });
+    expect(response.status).toBe(400);
+    expect(response.headers.get("location")).toBeNull();
+    expect(await response.text()).toContain("expired");
+  });
+});
+
+describe("fake mail sink", () => {
+  let sink: FakeSmtp;
+  let smtpPort: number;
+  let inbox: URL;
+
+  async function send(to: string, subject: string, text: string, html?: string): Promise<void> {
+    const transport = nodemailer.createTransport({ host: "127.0.0.1", port: smtpPort, secure: false });
+    // Resolves after the sink's 250 reply, which it gives only once the message is stored.
+    await transport.sendMail({ from: "Sigmaflow <no-reply@sigmaflow.example>", to, subject, text, html });
+    transport.close();
+  }
+
+  async function listMessages(to?: string) {
+    const url = new URL("/api/messages", inbox);
+    if (to) url.searchParams.set("to", to);
+    const response = await fetch(url);
+    expect(response.status).toBe(200);
+    return ((await response.json()) as { messages: Array<Record<string, unknown>> }).messages;
+  }
+
+  beforeAll(async () => {
+    smtpPort = await freePort();
+    const httpPort = await freePort();
+    sink = await startFakeSmtp({ smtpPort, httpPort });
+    inbox = new URL(`http://127.0.0.1:${httpPort}/`);
+  });
+  afterAll(async () => {
+    await sink?.close();
+  });
+  beforeEach(async () => {
+    expect((await fetch(new URL("/api/messages", inbox), { method: "DELETE" })).status).toBe(200);
+  });
+
+  it("keeps a sent message and finds it by recipient, case-insensitively", async () => {
+    const subject = "Invitation to <Kestrel Plasma Collisions> & friends";
+    const link = "http://127.0.0.1:5180/invitations/accept?token=abc&group=kestrel";
+    await send(newcomer.email, subject, `Hello Mei,\n\nJoin the group: ${link}.\n`);
+
+    const found = await listMessages(newcomer.email.toUpperCase());
+    expect(found).toHaveLength(1);
+    expect(found[0]).toMatchObject({ subject, to: [newcomer.email], html: null });
+    expect(found[0]?.text).toContain(link);
+    expect(await listMessages("someone.else@halvorsen.example")).toEqual([]);
+
+    const page = await (await fetch(inbox)).text();
+    expect(page).toContain("Invitation to &lt;Kestrel Plasma Collisions&gt; &amp; friends");
+    expect(page).not.toContain("<Kestrel");
+
+    const detail = await fetch(new URL(`/messages/${String(found[0]?.id)}`, inbox));
+    expect(detail.status).toBe(200);
+    const escapedLink = link.replace("&", "&amp;");
+    // The trailing full stop belongs to the sentence, not to the link.
+    expect(await detail.text()).toContain(`<a href="${escapedLink}" target="_blank"`);
+  });
+
+  it("shows an HTML body only inside a sandboxed iframe, escaped into srcdoc", async () => {
+    await send(newcomer.email, "Job finished", "Done.", '<p>Done.</p><script>alert("x")</script>');
+    const [message] = await listMessages();
+    expect(message?.html).toContain("<script>");
+    const detailHtml = await (await fetch(new URL(`/messages/${String(message?.id)}`, inbox))).text();
+    expect(detailHtml).toContain('sandbox="allow-popups allow-popups-to-escape-sandbox"');
+    expect(detailHtml).toContain("&lt;script&gt;alert(&quot;x&quot;)&lt;/script&gt;");
+    expect(detailHtml).not.toContain("<script>");
+  });
+
+  it("lists newest first, clears on DELETE and then shows the empty state", async () => {
+    await send(researcher.email, "First", "one");
+    await send(researcher.email, "Second", "two");
+    expect((await listMessages()).map((message) => message.subject)).toEqual(["Second", "First"]);
+
+    const cleared = await fetch(new URL("/api/messages", inbox), { method: "DELETE" });
+    expect(await cleared.json()).toEqual({ deleted: 2 });
+    expect(await listMessages()).toEqual([]);
+    expect(await (await fetch(inbox)).text()).toContain("No messages yet.");
+  });
+
+  it("keeps messages across a restart when given a store directory", async () => {
+    const storeDir = await mkdtemp(path.join(tmpdir(), "sigmaflow-fake-smtp-"));
+    const ports = { smtpPort: await freePort(), httpPort: await freePort() };
+    try {
+      const first = await startFakeSmtp({ ...ports, storeDir });
+      const transport = nodemailer.createTransport({
+        host: "127.0.0.1",
+        port: ports.smtpPort,
+        secure: false,
+      });
+      await transport.sendMail({
+        from: "no-reply@sigmaflow.example",
+        to: newcomer.email,
+        subject: "Kept",
+        text: "x",
+      });
+      transport.close();
+      await first.close();
+
+      const second = await startFakeSmtp({ ...ports, storeDir });
+      try {
+        const response = await fetch(`http://127.0.0.1:${ports.httpPort}/api/messages`);
+        const { messages } = (await response.json()) as { messages: Array<{ subject: string }> };
+        expect(messages.map((message) => message.subject)).toEqual(["Kept"]);
+      } finally {
+        await second.close();
+      }
+    } finally {
+      await rm(storeDir, { recursive: true, force: true });
+    }
+  });
+});

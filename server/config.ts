@@ -14,6 +14,8 @@ const envSchema = z.object({
   SIGMAFLOW_PUBLIC_URL: z.url().optional(),
   DATABASE_URL: z.string().min(1),
   SESSION_SECRET: z.string().min(32, { error: "SESSION_SECRET needs at least 32 characters" }),
+  /** Encrypts host private keys at rest (AES-256-GCM with a key derived by HKDF-SHA256). */
+  SIGMAFLOW_SECRETS_KEY: z.string().min(32, { error: "SIGMAFLOW_SECRETS_KEY needs at least 32 characters" }),
   SESSION_MAX_AGE_HOURS: z.coerce.number().positive().default(12),
   /** Number of reverse proxies in front of the server whose X-Forwarded-* headers are trusted. */
   TRUST_PROXY_HOPS: z.coerce.number().int().min(0).default(0),
@@ -60,6 +62,7 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env) {
     secureCookies: publicUrl.startsWith("https://"),
     trustProxyHops: e.TRUST_PROXY_HOPS,
     databaseUrl: e.DATABASE_URL,
+    secretsKey: e.SIGMAFLOW_SECRETS_KEY,
     session: { secret: e.SESSION_SECRET, maxAgeMs: e.SESSION_MAX_AGE_HOURS * 3_600_000 },
     oidc: {
       issuer,

@@ -42,6 +42,7 @@ export async function startTestApp(
     SIGMAFLOW_PORT: String(port),
     DATABASE_URL: database.url,
     SESSION_SECRET: "integration-test-session-secret-0123456789abcdef",
+    SIGMAFLOW_SECRETS_KEY: "integration-test-secrets-key-0123456789abcdef",
     OIDC_ISSUER: options.oidcIssuer ?? "http://127.0.0.1:9",
     OIDC_CLIENT_ID: "sigmaflow-test",
     OIDC_CLIENT_SECRET: "sigmaflow-test-secret",

@@ -1,0 +1,277 @@
+/**
+ * Execution engine tables: hosts and the accounts used to reach them, registered codes, recipes,
+ * allocations with their ledger, and runs with their events, log chunks, timings and artefacts.
+ * Core-hours are stored as whole core-seconds (bigint) so sums and balances are exact.
+ */
+import {
+  bigint,
+  bigserial,
+  boolean,
+  customType,
+  index,
+  integer,
+  jsonb,
+  pgEnum,
+  pgTable,
+  primaryKey,
+  text,
+  timestamp,
+  uniqueIndex,
+  uuid,
+  varchar,
+} from "drizzle-orm/pg-core";
+import { groups, users } from "./identity";
+
+const bytea = customType<{ data: Buffer }>({ dataType: () => "bytea" });
+const createdAt = () => timestamp("created_at", { withTimezone: true }).notNull().defaultNow();
+const coreSeconds = (name: string) => bigint(name, { mode: "number" });
+
+export const schedulerKind = pgEnum("scheduler_kind", ["direct", "slurm"]);
+export const hostStatus = pgEnum("host_status", ["unverified", "ok", "unreachable", "key_mismatch"]);
+export const runState = pgEnum("run_state", [
+  "queued",
+  "staging",
+  "submitted",
+  "running",
+  "collecting",
+  "done",
+  "failed",
+  "cancelled",
+  "held",
+]);
+export const ledgerKind = pgEnum("ledger_kind", ["reserve", "charge", "release"]);
+
+export const hosts = pgTable(
+  "hosts",
+  {
+    id: uuid("id").primaryKey().defaultRandom(),
+    groupId: uuid("group_id")
+      .notNull()
+      .references(() => groups.id, { onDelete: "cascade" }),
+    name: varchar("name", { length: 64 }).notNull(),
+    address: varchar("address", { length: 253 }).notNull(),
+    port: integer("port").notNull().default(22),
+    scheduler: schedulerKind("scheduler").notNull(),
+    remoteBaseDir: text("remote_base_dir").notNull(),
+    maxConcurrentRuns: integer("max_concurrent_runs").notNull().default(50),
+    /** Pinned host key ("ssh-ed25519 AAAA…"), fetched once and confirmed by an admin. */
+    hostKey: text("host_key"),
+    hostKeyFingerprint: varchar("host_key_fingerprint", { length: 80 }),
+    hostKeyConfirmedAt: timestamp("host_key_confirmed_at", { withTimezone: true }),
+    status: hostStatus("status").notNull().default("unverified"),
+    statusMessage: text("status_message"),
+    statusChangedAt: timestamp("status_changed_at", { withTimezone: true }),
+    createdBy: uuid("created_by").references(() => users.id, { onDelete: "set null" }),
+    createdAt: createdAt(),
+  },
+  (t) => [uniqueIndex("hosts_group_name_key").on(t.groupId, t.name)],
+);
+
+export const hostAccounts = pgTable(
+  "host_accounts",
+  {
+    id: uuid("id").primaryKey().defaultRandom(),
+    hostId: uuid("host_id")
+      .notNull()
+      .references(() => hosts.id, { onDelete: "cascade" }),
+    /** The researcher this account belongs to; null for the group account an admin set up. */
+    ownerUserId: uuid("owner_user_id").references(() => users.id, { onDelete: "cascade" }),
+    username: varchar("username", { length: 64 }).notNull(),
+    publicKey: text("public_key").notNull(),
+    /** AES-256-GCM: iv (12 bytes) ‖ tag (16 bytes) ‖ ciphertext of the OpenSSH private key. */
+    privateKeyEncrypted: bytea("private_key_encrypted").notNull(),
+    createdAt: createdAt(),
+  },
+  (t) => [
+    uniqueIndex("host_accounts_owner_key").on(t.hostId, t.ownerUserId),
+    index("host_accounts_host_idx").on(t.hostId),
+  ],
+);
+
+export const codes = pgTable(
+  "codes",
+  {
+    id: uuid("id").primaryKey().defaultRandom(),
+    groupId: uuid("group_id")
+      .notNull()
+      .references(() => groups.id, { onDelete: "cascade" }),
+    name: varchar("name", { length: 64 }).notNull(),
+    version: varchar("version", { length: 64 }).notNull(),
+    /** The whole validated code definition (executable, set-up lines, templates, parameters, outputs, rules). */
+    definition: jsonb("definition").notNull(),
+    createdBy: uuid("created_by").references(() => users.id, { onDelete: "set null" }),
+    createdAt: createdAt(),
+  },
+  (t) => [uniqueIndex("codes_group_name_version_key").on(t.groupId, t.name, t.version)],
+);
+
+export const recipes = pgTable(
+  "recipes",
+  {
+    id: uuid("id").primaryKey().defaultRandom(),
+    groupId: uuid("group_id")
+      .notNull()
+      .references(() => groups.id, { onDelete: "cascade" }),
+    name: varchar("name", { length: 64 }).notNull(),
+    description: text("description").notNull().default(""),
+    /** Ordered stages: [{ name, codeId }]. */
+    stages: jsonb("stages").notNull(),
+    createdBy: uuid("created_by").references(() => users.id, { onDelete: "set null" }),
+    createdAt: createdAt(),
+  },
+  (t) => [uniqueIndex("recipes_group_name_key").on(t.groupId, t.name)],
+);
+
+export const allocations = pgTable(
+  "allocations",
+  {
+    id: uuid("id").primaryKey().defaultRandom(),
+    groupId: uuid("group_id")
+      .notNull()
+      .references(() => groups.id, { onDelete: "cascade" }),
+    name: varchar("name", { length: 80 }).notNull(),
+    grantedCoreSeconds: coreSeconds("granted_core_seconds").notNull(),
+    startsAt: timestamp("starts_at", { withTimezone: true }).notNull(),
+    endsAt: timestamp("ends_at", { withTimezone: true }).notNull(),
+    createdBy: uuid("created_by").references(() => users.id, { onDelete: "set null" }),
+    createdAt: createdAt(),
+  },
+  (t) => [index("allocations_group_idx").on(t.groupId, t.startsAt)],
+);
+
+export const runs = pgTable(
+  "runs",
+  {
+    id: uuid("id").primaryKey().defaultRandom(),
+    groupId: uuid("group_id")
+      .notNull()
+      .references(() => groups.id, { onDelete: "cascade" }),
+    recipeId: uuid("recipe_id")
+      .notNull()
+      .references(() => recipes.id),
+    hostId: uuid("host_id")
+      .notNull()
+      .references(() => hosts.id),
+    hostAccountId: uuid("host_account_id")
+      .notNull()
+      .references(() => hostAccounts.id),
+    allocationId: uuid("allocation_id")
+      .notNull()
+      .references(() => allocations.id),
+    submittedBy: uuid("submitted_by").references(() => users.id, { onDelete: "set null" }),
+    name: varchar("name", { length: 120 }).notNull(),
+    /** The validated run spec as submitted (target, recipe, parameters per stage, resources). */
+    spec: jsonb("spec").notNull(),
+    /** Everything the remote job needs, rendered at creation: stage scripts and input files. */
+    plan: jsonb("plan").notNull(),
+    fingerprint: varchar("fingerprint", { length: 64 }).notNull(),
+    state: runState("state").notNull().default("queued"),
+    stateMessage: text("state_message"),
+    cores: integer("cores").notNull(),
+    wallTimeMinutes: integer("wall_time_minutes").notNull(),
+    reservedCoreSeconds: coreSeconds("reserved_core_seconds").notNull(),
+    chargedCoreSeconds: coreSeconds("charged_core_seconds"),
+    remoteDir: text("remote_dir").notNull(),
+    /** Written into the scheduler job's name before submission, so a restarted worker finds the job. */
+    submitToken: varchar("submit_token", { length: 64 }).notNull(),
+    schedulerJobId: varchar("scheduler_job_id", { length: 64 }),
+    exitCode: integer("exit_code"),
+    logOffsetBytes: bigint("log_offset_bytes", { mode: "number" }).notNull().default(0),
+    logSeq: integer("log_seq").notNull().default(0),
+    transportAttempts: integer("transport_attempts").notNull().default(0),
+    heldStep: varchar("held_step", { length: 16 }),
+    nextRetryAt: timestamp("next_retry_at", { withTimezone: true }),
+    cancelRequestedAt: timestamp("cancel_requested_at", { withTimezone: true }),
+    resubmittedFrom: uuid("resubmitted_from"),
+    reusedFrom: uuid("reused_from"),
+    notifyByEmail: boolean("notify_by_email").notNull().default(false),
+    createdAt: createdAt(),
+    updatedAt: timestamp("updated_at", { withTimezone: true }).notNull().defaultNow(),
+    startedAt: timestamp("started_at", { withTimezone: true }),
+    finishedAt: timestamp("finished_at", { withTimezone: true }),
+  },
+  (t) => [
+    index("runs_group_created_idx").on(t.groupId, t.createdAt),
+    index("runs_host_state_idx").on(t.hostId, t.state),
+    index("runs_fingerprint_idx").on(t.groupId, t.fingerprint),
+    uniqueIndex("runs_submit_token_key").on(t.submitToken),
+  ],
+);
+
+export const ledgerEntries = pgTable(
+  "ledger_entries",
+  {
+    id: bigserial("id", { mode: "number" }).primaryKey(),
+    allocationId: uuid("allocation_id")
+      .notNull()
+      .references(() => allocations.id, { onDelete: "cascade" }),
+    runId: uuid("run_id").references(() => runs.id, { onDelete: "set null" }),
+    kind: ledgerKind("kind").notNull(),
+    coreSeconds: coreSeconds("core_seconds").notNull(),
+    note: text("note"),
+    at: timestamp("at", { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [index("ledger_allocation_idx").on(t.allocationId), index("ledger_run_idx").on(t.runId)],
+);
+
+export const runEvents = pgTable(
+  "run_events",
+  {
+    id: bigserial("id", { mode: "number" }).primaryKey(),
+    runId: uuid("run_id")
+      .notNull()
+      .references(() => runs.id, { onDelete: "cascade" }),
+    at: timestamp("at", { withTimezone: true }).notNull().defaultNow(),
+    fromState: runState("from_state"),
+    toState: runState("to_state").notNull(),
+    /** A person (user id) or null for the worker. */
+    actorUserId: uuid("actor_user_id").references(() => users.id, { onDelete: "set null" }),
+    actor: varchar("actor", { length: 32 }).notNull(),
+    message: text("message"),
+  },
+  (t) => [index("run_events_run_idx").on(t.runId, t.id)],
+);
+
+export const runLogChunks = pgTable(
+  "run_log_chunks",
+  {
+    runId: uuid("run_id")
+      .notNull()
+      .references(() => runs.id, { onDelete: "cascade" }),
+    seq: integer("seq").notNull(),
+    offsetBytes: bigint("offset_bytes", { mode: "number" }).notNull(),
+    text: text("text").notNull(),
+    at: timestamp("at", { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [primaryKey({ columns: [t.runId, t.seq] })],
+);
+
+export const runTimings = pgTable(
+  "run_timings",
+  {
+    runId: uuid("run_id")
+      .notNull()
+      .references(() => runs.id, { onDelete: "cascade" }),
+    stage: varchar("stage", { length: 64 }).notNull(),
+    symmetry: varchar("symmetry", { length: 32 }).notNull(),
+    elapsedMs: bigint("elapsed_ms", { mode: "number" }).notNull(),
+  },
+  (t) => [primaryKey({ columns: [t.runId, t.stage, t.symmetry] })],
+);
+
+export const runArtifacts = pgTable(
+  "run_artifacts",
+  {
+    id: uuid("id").primaryKey().defaultRandom(),
+    runId: uuid("run_id")
+      .notNull()
+      .references(() => runs.id, { onDelete: "cascade" }),
+    stage: varchar("stage", { length: 64 }).notNull(),
+    name: varchar("name", { length: 128 }).notNull(),
+    sizeBytes: bigint("size_bytes", { mode: "number" }).notNull(),
+    sha256: varchar("sha256", { length: 64 }).notNull(),
+    content: bytea("content").notNull(),
+    createdAt: createdAt(),
+  },
+  (t) => [uniqueIndex("run_artifacts_name_key").on(t.runId, t.stage, t.name)],
+);

@@ -1,0 +1,2 @@
+export * from "./execution";
+export * from "./identity";

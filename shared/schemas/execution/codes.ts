@@ -1,0 +1,96 @@
+import { z } from "zod";
+import { isoDateTimeSchema, uuidSchema } from "../common";
+import { identifierSchema, safeFileNameSchema } from "./names";
+
+/** How parameter values are escaped when a template puts them into a file of this kind. */
+export const templateFormatSchema = z.enum(["text", "shell", "json", "namelist"]);
+export type TemplateFormat = z.infer<typeof templateFormatSchema>;
+
+export const inputTemplateSchema = z.strictObject({
+  fileName: safeFileNameSchema,
+  format: templateFormatSchema,
+  /** A nunjucks template; parameters are available by name, already escaped for `format`. */
+  template: z.string().max(200_000),
+});
+
+const regexSource = z
+  .string()
+  .min(1)
+  .max(500)
+  .superRefine((source, ctx) => {
+    try {
+      new RegExp(source);
+    } catch (error) {
+      ctx.addIssue({
+        code: "custom",
+        message: `Not a valid regular expression: ${(error as Error).message}`,
+      });
+    }
+  });
+
+export const outputRulesSchema = z.strictObject({
+  /** Lines giving progress; named groups `done` and `total` (or `percent`). */
+  progress: z.array(regexSource).max(10).default([]),
+  /** Lines giving the time spent on one symmetry; named groups `symmetry` and `seconds`. */
+  timings: z.array(regexSource).max(10).default([]),
+});
+
+export const codeDefinitionSchema = z.strictObject({
+  name: identifierSchema,
+  version: z
+    .string()
+    .min(1)
+    .max(64)
+    .regex(/^[A-Za-z0-9._+-]+$/, { error: "Use letters, digits, '.', '_', '+', '-' in the version." }),
+  description: z.string().max(2000).default(""),
+  /** Absolute path or command name of the binary on the host. */
+  executable: z
+    .string()
+    .min(1)
+    .max(400)
+    .regex(/^[A-Za-z0-9._/+-]+$/, {
+      error: "Give the executable as a path without spaces or shell characters.",
+    }),
+  /** Templates for the command-line arguments (rendered, then each one shell-quoted). */
+  arguments: z.array(z.string().max(1000)).max(50).default([]),
+  /** Environment set-up lines run before the binary (e.g. loading modules). */
+  setupLines: z
+    .array(
+      z
+        .string()
+        .max(1000)
+        .refine((line) => !/[\n\r\0]/.test(line), { error: "One line per entry, without newlines." }),
+    )
+    .max(50)
+    .default([]),
+  inputTemplates: z.array(inputTemplateSchema).max(20).default([]),
+  /** JSON Schema (draft 2020-12 subset understood by Ajv) of the parameters a run gives this code. */
+  parameters: z.record(z.string(), z.unknown()).default({ type: "object", properties: {} }),
+  /** Files the code writes that Sigmaflow collects and hands to the next stage. */
+  outputFiles: z.array(safeFileNameSchema).max(50).default([]),
+  outputRules: outputRulesSchema.default({ progress: [], timings: [] }),
+  defaults: z
+    .strictObject({
+      cores: z.number().int().min(1).max(4096).default(1),
+      wallTimeMinutes: z.number().int().min(1).max(43_200).default(60),
+    })
+    .default({ cores: 1, wallTimeMinutes: 60 }),
+});
+export type CodeDefinition = z.infer<typeof codeDefinitionSchema>;
+export type CodeDefinitionInput = z.input<typeof codeDefinitionSchema>;
+
+export const codeSchema = z.object({
+  id: uuidSchema,
+  groupId: uuidSchema,
+  definition: codeDefinitionSchema,
+  createdAt: isoDateTimeSchema,
+});
+export type Code = z.infer<typeof codeSchema>;
+export const codeListSchema = z.object({ codes: z.array(codeSchema) });
+
+/** Export/import document: one or more code definitions. */
+export const codeExportSchema = z.strictObject({
+  format: z.literal("sigmaflow-code-definitions"),
+  version: z.literal(1),
+  codes: z.array(codeDefinitionSchema).min(1).max(100),
+});

@@ -179,7 +179,13 @@ export const runs = pgTable(
     logOffsetBytes: bigint("log_offset_bytes", { mode: "number" }).notNull().default(0),
     logSeq: integer("log_seq").notNull().default(0),
     transportAttempts: integer("transport_attempts").notNull().default(0),
+    /** The step to repeat and the state to return to when a held run resumes. */
     heldStep: varchar("held_step", { length: 16 }),
+    heldFromState: runState("held_from_state"),
+    /** Files staged on the host with the sha256 the host computed: [{ path, sha256 }]. */
+    stagedFiles: jsonb("staged_files"),
+    /** Latest progress parsed from the log: { stage, done?, total?, percent? }. */
+    progress: jsonb("progress"),
     nextRetryAt: timestamp("next_retry_at", { withTimezone: true }),
     cancelRequestedAt: timestamp("cancel_requested_at", { withTimezone: true }),
     resubmittedFrom: uuid("resubmitted_from"),

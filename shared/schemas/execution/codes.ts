@@ -53,6 +53,8 @@ export const codeDefinitionSchema = z.strictObject({
     }),
   /** Templates for the command-line arguments (rendered, then each one shell-quoted). */
   arguments: z.array(z.string().max(1000)).max(50).default([]),
+  /** An input file fed to the binary on standard input (many scattering codes read their input this way). */
+  stdinFile: safeFileNameSchema.optional(),
   /** Environment set-up lines run before the binary (e.g. loading modules). */
   setupLines: z
     .array(

@@ -7,6 +7,7 @@ import path from "node:path";
 import express from "express";
 import helmet from "helmet";
 import type pg from "pg";
+import type PgBoss from "pg-boss";
 import { pinoHttp } from "pino-http";
 import { bearerAuth } from "./auth/bearer";
 import { csrfProtection } from "./auth/csrf";
@@ -24,8 +25,9 @@ import type { RouteContext } from "./routes/context";
 import { groupRoutes } from "./routes/groups.routes";
 import { healthRoutes } from "./routes/health.routes";
 import { invitationRoutes } from "./routes/invitations.routes";
+import { runRoutes } from "./routes/runs.routes";
 
-export type AppDeps = { db: Database; pool: pg.Pool; config: ServerConfig; mailer: Mailer; log: Logger };
+export type AppDeps = { db: Database; pool: pg.Pool; boss: PgBoss; config: ServerConfig; mailer: Mailer; log: Logger };
 
 /** Request bodies are small JSON documents; anything bigger is refused before parsing. */
 export const JSON_BODY_LIMIT = "100kb";
@@ -62,13 +64,14 @@ export function createApp(deps: AppDeps) {
   api.use(bearerAuth(deps.db));
   api.use(csrfProtection);
 
-  const ctx: RouteContext = { db: deps.db, config, mailer: deps.mailer, log };
+  const ctx: RouteContext = { db: deps.db, pool: deps.pool, boss: deps.boss, config, mailer: deps.mailer, log };
   api.use(healthRoutes(ctx));
   api.use(authRoutes(ctx));
   api.use(groupRoutes(ctx));
   api.use(invitationRoutes(ctx));
   api.use(apiTokenRoutes(ctx));
   api.use(adminRoutes(ctx));
+  api.use(runRoutes(ctx));
   api.use(notFoundRoute);
   api.use(errorHandler(log));
   app.use("/api", api);

@@ -6,13 +6,19 @@ import { createDatabase } from "./db/client";
 import { applyMigrations } from "./db/migrate";
 import { createLogger } from "./logger";
 import { createMailer } from "./mail/mailer";
+import { createBoss, createRunQueues } from "./queue/queues";
 
 const config = loadConfig();
 const log = createLogger(config.logLevel);
 await applyMigrations(config.databaseUrl);
 const { db, pool } = createDatabase(config.databaseUrl);
 const mailer = createMailer(config.smtp);
-const app = createApp({ db, pool, config, mailer, log });
+// The server only enqueues; maintenance (expiry, archiving) is the worker's job.
+const boss = createBoss(config.databaseUrl, { maintenance: false });
+boss.on("error", (error) => log.error({ err: error }, "queue error"));
+await boss.start();
+await createRunQueues(boss);
+const app = createApp({ db, pool, boss, config, mailer, log });
 const server = createServer(app);
 
 server.listen(config.port, config.host, () => {
@@ -27,6 +33,7 @@ async function shutdown(signal: string) {
   server.close();
   server.closeAllConnections();
   mailer.close();
+  await boss.stop({ graceful: true, timeout: 5_000 }).catch(() => {});
   await pool.end().catch(() => {});
   process.exit(0);
 }

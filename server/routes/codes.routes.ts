@@ -1,0 +1,63 @@
+import { Router } from "express";
+import { z } from "zod";
+import {
+  codeDefinitionSchema,
+  codeExportSchema,
+  codeListSchema,
+  codeSchema,
+} from "../../shared/schemas/execution/codes";
+import { requirePrincipal } from "../auth/principal";
+import { parseBody, parseParams, shape } from "../http/validate";
+import { createCode, deleteCode, exportCodes, getCode, importCodes, listCodes } from "../services/codes.service";
+import { clientIp, type RouteContext } from "./context";
+
+const groupParams = z.object({ groupId: z.uuid({ error: "groupId must be a UUID" }) });
+const codeParams = z.object({ codeId: z.uuid({ error: "codeId must be a UUID" }) });
+
+export function codeRoutes({ db }: RouteContext): Router {
+  const router = Router();
+
+  router.get("/groups/:groupId/codes", async (req, res) => {
+    const principal = requirePrincipal(req);
+    const { groupId } = parseParams(groupParams, req);
+    res.json(shape(codeListSchema, { codes: await listCodes(db, principal, groupId) }));
+  });
+
+  router.post("/groups/:groupId/codes", async (req, res) => {
+    const principal = requirePrincipal(req);
+    const { groupId } = parseParams(groupParams, req);
+    const definition = parseBody(codeDefinitionSchema, req);
+    res.status(201).json(shape(codeSchema, await createCode(db, principal, groupId, definition, clientIp(req))));
+  });
+
+  router.get("/groups/:groupId/codes/export", async (req, res) => {
+    const principal = requirePrincipal(req);
+    const { groupId } = parseParams(groupParams, req);
+    const document = shape(codeExportSchema, await exportCodes(db, principal, groupId));
+    res.setHeader("content-disposition", 'attachment; filename="sigmaflow-codes.json"');
+    res.json(document);
+  });
+
+  router.post("/groups/:groupId/codes/import", async (req, res) => {
+    const principal = requirePrincipal(req);
+    const { groupId } = parseParams(groupParams, req);
+    const document = parseBody(codeExportSchema, req);
+    const imported = await importCodes(db, principal, groupId, document, clientIp(req));
+    res.status(201).json(shape(codeListSchema, { codes: imported }));
+  });
+
+  router.get("/codes/:codeId", async (req, res) => {
+    const principal = requirePrincipal(req);
+    const { codeId } = parseParams(codeParams, req);
+    res.json(shape(codeSchema, await getCode(db, principal, codeId)));
+  });
+
+  router.delete("/codes/:codeId", async (req, res) => {
+    const principal = requirePrincipal(req);
+    const { codeId } = parseParams(codeParams, req);
+    await deleteCode(db, principal, codeId, clientIp(req));
+    res.status(204).end();
+  });
+
+  return router;
+}

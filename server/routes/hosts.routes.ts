@@ -1,0 +1,104 @@
+import { Router } from "express";
+import { z } from "zod";
+import {
+  confirmHostKeyRequestSchema,
+  createHostAccountRequestSchema,
+  createHostRequestSchema,
+  hostAccountListSchema,
+  hostAccountSchema,
+  hostListSchema,
+  hostSchema,
+} from "../../shared/schemas/execution/hosts";
+import { patchHostRequestSchema } from "../../shared/schemas/execution/hosts-extra";
+import { requirePrincipal } from "../auth/principal";
+import { parseBody, parseParams, shape } from "../http/validate";
+import { createHostAccount, deleteHostAccount, listHostAccounts } from "../services/host-accounts.service";
+import {
+  confirmHostKey,
+  createHost,
+  deleteHost,
+  getHost,
+  type HostDeps,
+  listHosts,
+  refreshHostKey,
+  updateHost,
+} from "../services/hosts.service";
+import { clientIp, type RouteContext } from "./context";
+
+const groupParams = z.object({ groupId: z.uuid({ error: "groupId must be a UUID" }) });
+const hostParams = z.object({ hostId: z.uuid({ error: "hostId must be a UUID" }) });
+const accountParams = z.object({ accountId: z.uuid({ error: "accountId must be a UUID" }) });
+
+export function hostRoutes(ctx: RouteContext, hostDeps: HostDeps): Router {
+  const { db } = ctx;
+  const router = Router();
+
+  router.get("/groups/:groupId/hosts", async (req, res) => {
+    const principal = requirePrincipal(req);
+    const { groupId } = parseParams(groupParams, req);
+    res.json(shape(hostListSchema, { hosts: await listHosts(db, principal, groupId) }));
+  });
+
+  router.post("/groups/:groupId/hosts", async (req, res) => {
+    const principal = requirePrincipal(req);
+    const { groupId } = parseParams(groupParams, req);
+    const input = parseBody(createHostRequestSchema, req);
+    res.status(201).json(shape(hostSchema, await createHost(hostDeps, principal, groupId, input, clientIp(req))));
+  });
+
+  router.get("/hosts/:hostId", async (req, res) => {
+    const principal = requirePrincipal(req);
+    const { hostId } = parseParams(hostParams, req);
+    res.json(shape(hostSchema, await getHost(db, principal, hostId)));
+  });
+
+  router.patch("/hosts/:hostId", async (req, res) => {
+    const principal = requirePrincipal(req);
+    const { hostId } = parseParams(hostParams, req);
+    const input = parseBody(patchHostRequestSchema, req);
+    res.json(shape(hostSchema, await updateHost(hostDeps, principal, hostId, input, clientIp(req))));
+  });
+
+  router.delete("/hosts/:hostId", async (req, res) => {
+    const principal = requirePrincipal(req);
+    const { hostId } = parseParams(hostParams, req);
+    await deleteHost(db, principal, hostId, clientIp(req));
+    res.status(204).end();
+  });
+
+  router.post("/hosts/:hostId/host-key/refresh", async (req, res) => {
+    const principal = requirePrincipal(req);
+    const { hostId } = parseParams(hostParams, req);
+    res.json(shape(hostSchema, await refreshHostKey(hostDeps, principal, hostId, clientIp(req))));
+  });
+
+  router.post("/hosts/:hostId/host-key/confirm", async (req, res) => {
+    const principal = requirePrincipal(req);
+    const { hostId } = parseParams(hostParams, req);
+    const { fingerprint } = parseBody(confirmHostKeyRequestSchema, req);
+    res.json(shape(hostSchema, await confirmHostKey(db, principal, hostId, fingerprint, clientIp(req))));
+  });
+
+  router.get("/hosts/:hostId/accounts", async (req, res) => {
+    const principal = requirePrincipal(req);
+    const { hostId } = parseParams(hostParams, req);
+    res.json(shape(hostAccountListSchema, { accounts: await listHostAccounts(db, principal, hostId) }));
+  });
+
+  router.post("/hosts/:hostId/accounts", async (req, res) => {
+    const principal = requirePrincipal(req);
+    const { hostId } = parseParams(hostParams, req);
+    const input = parseBody(createHostAccountRequestSchema, req);
+    const account = await createHostAccount({ db, config: ctx.config }, principal, hostId, input, clientIp(req));
+    res.status(201).json(shape(hostAccountSchema, account));
+  });
+
+  router.delete("/host-accounts/:accountId", async (req, res) => {
+    const principal = requirePrincipal(req);
+    const { accountId } = parseParams(accountParams, req);
+    await deleteHostAccount(db, principal, accountId, clientIp(req));
+    res.status(204).end();
+  });
+
+  return router;
+}

@@ -1,0 +1,89 @@
+import { Router } from "express";
+import { z } from "zod";
+import {
+  createRunRequestSchema,
+  resubmitRunRequestSchema,
+  runDetailSchema,
+  runListSchema,
+  runLogSchema,
+  runStateSchema,
+  runSummarySchema,
+} from "../../shared/schemas/execution";
+import { requirePrincipal } from "../auth/principal";
+import { validationError } from "../http/errors";
+import { parseBody, parseParams, shape } from "../http/validate";
+import { cancelRun, createRun, getRunDetail, listRuns, readArtifact, readRunLog, resubmitRun } from "../services/runs.service";
+import { clientIp, type RouteContext } from "./context";
+
+const groupParams = z.object({ groupId: z.uuid({ error: "groupId must be a UUID" }) });
+const runParams = z.object({ runId: z.uuid({ error: "runId must be a UUID" }) });
+const artifactParams = runParams.extend({ artifactId: z.uuid({ error: "artifactId must be a UUID" }) });
+const listQuery = z.object({
+  state: runStateSchema.optional(),
+  limit: z.coerce.number().int().min(1).max(500).default(100),
+});
+const logQuery = z.object({ afterSeq: z.coerce.number().int().min(0).default(0) });
+
+function parseQuery<S extends z.ZodType>(schema: S, query: unknown): z.infer<S> {
+  const result = schema.safeParse(query);
+  if (!result.success) throw validationError(result.error, "query");
+  return result.data;
+}
+
+export function runRoutes(ctx: RouteContext): Router {
+  const router = Router();
+  const deps = () => ({ db: ctx.db, pool: ctx.pool, boss: ctx.boss });
+
+  router.post("/groups/:groupId/runs", async (req, res) => {
+    const principal = requirePrincipal(req);
+    const { groupId } = parseParams(groupParams, req);
+    const input = parseBody(createRunRequestSchema, req);
+    const run = await createRun(deps(), principal, groupId, input, { ip: clientIp(req) });
+    res.status(201).json(shape(runSummarySchema, run));
+  });
+
+  router.get("/groups/:groupId/runs", async (req, res) => {
+    const principal = requirePrincipal(req);
+    const { groupId } = parseParams(groupParams, req);
+    const filters = parseQuery(listQuery, req.query);
+    res.json(shape(runListSchema, { runs: await listRuns(ctx.db, principal, groupId, filters) }));
+  });
+
+  router.get("/runs/:runId", async (req, res) => {
+    const principal = requirePrincipal(req);
+    const { runId } = parseParams(runParams, req);
+    res.json(shape(runDetailSchema, await getRunDetail(ctx.db, principal, runId)));
+  });
+
+  router.get("/runs/:runId/log", async (req, res) => {
+    const principal = requirePrincipal(req);
+    const { runId } = parseParams(runParams, req);
+    const { afterSeq } = parseQuery(logQuery, req.query);
+    res.json(shape(runLogSchema, await readRunLog(ctx.db, principal, runId, afterSeq)));
+  });
+
+  router.get("/runs/:runId/artifacts/:artifactId", async (req, res) => {
+    const principal = requirePrincipal(req);
+    const { runId, artifactId } = parseParams(artifactParams, req);
+    const artifact = await readArtifact(ctx.db, principal, runId, artifactId);
+    res.setHeader("content-type", "application/octet-stream");
+    res.setHeader("content-disposition", `attachment; filename="${artifact.name}"`);
+    res.setHeader("x-content-sha256", artifact.sha256);
+    res.send(artifact.content);
+  });
+
+  router.post("/runs/:runId/cancel", async (req, res) => {
+    const principal = requirePrincipal(req);
+    const { runId } = parseParams(runParams, req);
+    res.json(shape(runSummarySchema, await cancelRun(deps(), principal, runId, clientIp(req))));
+  });
+
+  router.post("/runs/:runId/resubmit", async (req, res) => {
+    const principal = requirePrincipal(req);
+    const { runId } = parseParams(runParams, req);
+    const input = parseBody(resubmitRunRequestSchema, req);
+    res.status(201).json(shape(runSummarySchema, await resubmitRun(deps(), principal, runId, input, clientIp(req))));
+  });
+
+  return router;
+}

@@ -1,0 +1,237 @@
+/**
+ * Registered codes of a group: a binary, its input templates and the JSON Schema of its parameters,
+ * per name and version. A definition is accepted only when its schema compiles and every template
+ * compiles, so a broken one is refused at registration rather than at the first run.
+ */
+import { and, asc, eq, inArray, sql } from "drizzle-orm";
+import type { Code, CodeDefinition } from "../../shared/schemas/execution/codes";
+import { codeDefinitionSchema } from "../../shared/schemas/execution/codes";
+import { compileParameterSchema, ParameterSchemaError } from "../execution/parameters";
+import { checkCodeTemplates } from "../execution/templates";
+import type { Principal } from "../auth/principal";
+import type { Database } from "../db/client";
+import { codes, recipes } from "../db/schema";
+import { AppError, conflict, notFound } from "../http/errors";
+import { requireGroupRole } from "./access";
+import { recordAudit } from "./audit.service";
+import { requireRoleFor } from "./hosts.service";
+
+type CodeRow = typeof codes.$inferSelect;
+type Problem = { path: string; message: string };
+
+export function toCode(row: CodeRow): Code {
+  return {
+    id: row.id,
+    groupId: row.groupId,
+    definition: codeDefinitionSchema.parse(row.definition),
+    createdAt: row.createdAt.toISOString(),
+  };
+}
+
+/** Everything wrong with a definition beyond its shape: schema, templates, clashing file names. */
+export function definitionProblems(definition: CodeDefinition): Problem[] {
+  const problems: Problem[] = [];
+  try {
+    compileParameterSchema(definition.parameters);
+  } catch (error) {
+    if (!(error instanceof ParameterSchemaError)) throw error;
+    problems.push({ path: "parameters", message: error.message });
+  }
+  problems.push(...checkCodeTemplates(definition));
+  const seen = new Set<string>();
+  definition.inputTemplates.forEach((input, index) => {
+    if (seen.has(input.fileName)) {
+      problems.push({
+        path: `inputTemplates.${index}.fileName`,
+        message: `Two input templates write ${input.fileName}; give each file one template.`,
+      });
+    }
+    seen.add(input.fileName);
+  });
+  return problems;
+}
+
+function invalidDefinition(problems: Problem[]): AppError {
+  const first = problems[0]!;
+  return new AppError(
+    422,
+    "invalid_code_definition",
+    `The code definition cannot be used: ${first.path}: ${first.message}`,
+    problems,
+  );
+}
+
+export async function listCodes(db: Database, principal: Principal, groupId: string): Promise<Code[]> {
+  await requireGroupRole(db, principal, groupId, "collaborator");
+  const rows = await db
+    .select()
+    .from(codes)
+    .where(eq(codes.groupId, groupId))
+    .orderBy(asc(codes.name), asc(codes.createdAt));
+  return rows.map(toCode);
+}
+
+async function codeForCaller(db: Database, principal: Principal, codeId: string, minimum: "collaborator" | "admin") {
+  const [row] = await db.select().from(codes).where(eq(codes.id, codeId));
+  if (!row) throw notFound("Code");
+  await requireRoleFor(db, principal, row.groupId, minimum, "Code");
+  return row;
+}
+
+export async function getCode(db: Database, principal: Principal, codeId: string): Promise<Code> {
+  return toCode(await codeForCaller(db, principal, codeId, "collaborator"));
+}
+
+export async function createCode(
+  db: Database,
+  principal: Principal,
+  groupId: string,
+  definition: CodeDefinition,
+  ip: string | null,
+): Promise<Code> {
+  await requireGroupRole(db, principal, groupId, "member");
+  const problems = definitionProblems(definition);
+  if (problems.length > 0) throw invalidDefinition(problems);
+  return db.transaction(async (tx) => {
+    const [row] = await tx
+      .insert(codes)
+      .values({
+        groupId,
+        name: definition.name,
+        version: definition.version,
+        definition,
+        createdBy: principal.userId,
+      })
+      .onConflictDoNothing({ target: [codes.groupId, codes.name, codes.version] })
+      .returning();
+    if (!row) {
+      throw conflict(
+        `Version ${definition.version} of ${definition.name} is already registered in this group: give the new definition another version.`,
+        [{ name: definition.name, version: definition.version }],
+      );
+    }
+    await recordAudit(tx, {
+      actorUserId: principal.userId,
+      groupId,
+      action: "code.create",
+      targetType: "code",
+      targetId: row.id,
+      details: { name: definition.name, version: definition.version },
+      ip,
+    });
+    return toCode(row);
+  });
+}
+
+export async function deleteCode(db: Database, principal: Principal, codeId: string, ip: string | null) {
+  const code = await codeForCaller(db, principal, codeId, "admin");
+  await db.transaction(async (tx) => {
+    // Recipe creation holds FOR SHARE on its codes, so no recipe can start using this one meanwhile.
+    await tx.select({ id: codes.id }).from(codes).where(eq(codes.id, codeId)).for("update");
+    const users = await tx
+      .select({ name: recipes.name })
+      .from(recipes)
+      .where(
+        and(
+          eq(recipes.groupId, code.groupId),
+          sql`${recipes.stages} @> ${JSON.stringify([{ codeId }])}::jsonb`,
+        ),
+      )
+      .orderBy(asc(recipes.name));
+    if (users.length > 0) {
+      throw conflict(
+        `Recipes use this code (${users.map((r) => r.name).join(", ")}); delete them first.`,
+        users.map((r) => ({ recipe: r.name })),
+      );
+    }
+    await tx.delete(codes).where(eq(codes.id, codeId));
+    await recordAudit(tx, {
+      actorUserId: principal.userId,
+      groupId: code.groupId,
+      action: "code.delete",
+      targetType: "code",
+      targetId: codeId,
+      details: { name: code.name, version: code.version },
+      ip,
+    });
+  });
+}
+
+export type CodeExport = { format: "sigmaflow-code-definitions"; version: 1; codes: CodeDefinition[] };
+
+export async function exportCodes(db: Database, principal: Principal, groupId: string): Promise<CodeExport> {
+  const all = await listCodes(db, principal, groupId);
+  if (all.length === 0) throw notFound("Code definitions to export");
+  return { format: "sigmaflow-code-definitions", version: 1, codes: all.map((code) => code.definition) };
+}
+
+const key = (d: { name: string; version: string }) => `${d.name}@${d.version}`;
+
+/** Imports a document of definitions: all of them or, on any problem, none. */
+export async function importCodes(
+  db: Database,
+  principal: Principal,
+  groupId: string,
+  document: CodeExport,
+  ip: string | null,
+): Promise<Code[]> {
+  await requireGroupRole(db, principal, groupId, "member");
+  const problems = document.codes.flatMap((definition, index) =>
+    definitionProblems(definition).map((p) => ({ path: `codes.${index}.${p.path}`, message: p.message })),
+  );
+  if (problems.length > 0) throw invalidDefinition(problems);
+
+  const counts = new Map<string, number>();
+  for (const definition of document.codes) counts.set(key(definition), (counts.get(key(definition)) ?? 0) + 1);
+  const repeated = document.codes.filter((d, i, all) => counts.get(key(d))! > 1 && all.findIndex((o) => key(o) === key(d)) === i);
+  if (repeated.length > 0) {
+    throw conflict(
+      `The document lists the same name and version more than once: ${repeated.map(key).join(", ")}.`,
+      repeated.map((d) => ({ name: d.name, version: d.version })),
+    );
+  }
+
+  const clash = (list: { name: string; version: string }[]) =>
+    conflict(
+      `These versions are already registered in this group, so nothing was imported: ${list.map(key).join(", ")}.`,
+      list.map((d) => ({ name: d.name, version: d.version })),
+    );
+  return db.transaction(async (tx) => {
+    const names = [...new Set(document.codes.map((d) => d.name))];
+    const existing = await tx
+      .select({ name: codes.name, version: codes.version })
+      .from(codes)
+      .where(and(eq(codes.groupId, groupId), inArray(codes.name, names)));
+    const taken = new Set(existing.map(key));
+    const duplicates = document.codes.filter((d) => taken.has(key(d)));
+    if (duplicates.length > 0) throw clash(duplicates);
+    const rows = await tx
+      .insert(codes)
+      .values(
+        document.codes.map((definition) => ({
+          groupId,
+          name: definition.name,
+          version: definition.version,
+          definition,
+          createdBy: principal.userId,
+        })),
+      )
+      .onConflictDoNothing({ target: [codes.groupId, codes.name, codes.version] })
+      .returning();
+    if (rows.length !== document.codes.length) {
+      // Someone registered one of these versions between the check and the insert: roll back.
+      const inserted = new Set(rows.map(key));
+      throw clash(document.codes.filter((d) => !inserted.has(key(d))));
+    }
+    await recordAudit(tx, {
+      actorUserId: principal.userId,
+      groupId,
+      action: "code.import",
+      targetType: "code",
+      details: { codes: rows.map((row) => ({ id: row.id, name: row.name, version: row.version })) },
+      ip,
+    });
+    const order = new Map(document.codes.map((d, i) => [key(d), i]));
+    return rows.sort((a, b) => order.get(key(a))! - order.get(key(b))!).map(toCode);
+  });
+}

@@ -1,0 +1,18 @@
+import type pg from "pg";
+import type PgBoss from "pg-boss";
+import type { Database } from "../server/db/client";
+import type { Logger } from "../server/logger";
+import type { Mailer } from "../server/mail/mailer";
+import type { WorkerConfig } from "./config";
+import type { SshPool } from "./ssh/pool";
+
+/** What every worker step receives. */
+export type WorkerContext = {
+  db: Database;
+  pool: pg.Pool;
+  boss: PgBoss;
+  ssh: SshPool;
+  config: WorkerConfig;
+  log: Logger;
+  mailer: Mailer;
+};

@@ -1,0 +1,143 @@
+/**
+ * What a step does when something goes wrong. Transport trouble (refused, timed out, dropped) is
+ * retried with exponential backoff and full jitter, then the run is `held` for a person; a changed host
+ * key holds every run of the host at once and tells the group's admins; anything the run itself got wrong
+ * (a remote command failing, a path refused) fails the run with the reason. Database errors are rethrown
+ * so pg-boss retries the item once PostgreSQL is back.
+ */
+import { and, eq, inArray, sql } from "drizzle-orm";
+import type { RunState } from "../shared/schemas/execution/runs";
+import { hosts, ledgerEntries, memberships, runs, users } from "../server/db/schema";
+import { transitionRun } from "../server/execution/run-transitions";
+import { recordAudit } from "../server/services/audit.service";
+import type { WorkerContext } from "./context";
+import type { HostRow, RunRow } from "./run-runtime";
+import { HostKeyMismatchError, RemoteCommandError, RemotePathError, TransportError } from "./ssh/errors";
+import { RUN_STEP_QUEUES, type RunStepName } from "../server/queue/queues";
+
+/** Steps a held run repeats when it resumes; `poll` means the poller picks it up again. */
+export type HeldStep = RunStepName | "poll";
+
+const worker = { kind: "worker" } as const;
+
+export function backoffMs(attempt: number, baseMs: number, maxMs: number, random = Math.random): number {
+  const ceiling = Math.min(maxMs, baseMs * 2 ** Math.max(0, attempt - 1));
+  return Math.round(ceiling / 2 + random() * (ceiling / 2));
+}
+
+export async function holdRun(ctx: WorkerContext, run: RunRow, step: HeldStep, message: string): Promise<void> {
+  await ctx.db.transaction(async (tx) => {
+    await transitionRun(tx, run.id, [run.state], "held", {
+      actor: worker,
+      message,
+      set: { heldStep: step, heldFromState: run.state === "held" ? run.heldFromState : run.state },
+    });
+  });
+}
+
+export async function failRun(ctx: WorkerContext, run: RunRow, message: string): Promise<void> {
+  await ctx.db.transaction(async (tx) => {
+    const changed = await transitionRun(tx, run.id, [run.state], "failed", {
+      actor: worker,
+      message,
+      set: { finishedAt: new Date(), chargedCoreSeconds: run.chargedCoreSeconds ?? 0 },
+    });
+    if (changed && run.chargedCoreSeconds === null) {
+      await tx.insert(ledgerEntries).values({
+        allocationId: run.allocationId,
+        runId: run.id,
+        kind: "release",
+        coreSeconds: run.reservedCoreSeconds,
+        note: "run failed before it was charged",
+      });
+    }
+  });
+}
+
+async function tellAdminsAboutHostKey(ctx: WorkerContext, host: HostRow, error: HostKeyMismatchError): Promise<void> {
+  const message = `${host.name} (${host.address}:${host.port}) presented host key ${error.actualFingerprint}, but ${error.expectedFingerprint} is pinned. Its runs are held. Check with the host's administrators, then refresh and confirm the key in Sigmaflow.`;
+  const changed = await ctx.db
+    .update(hosts)
+    .set({ status: "key_mismatch", statusMessage: message, statusChangedAt: new Date() })
+    .where(and(eq(hosts.id, host.id), sql`${hosts.status} <> 'key_mismatch'`))
+    .returning({ id: hosts.id });
+  if (changed.length === 0) return;
+  await recordAudit(ctx.db, {
+    actorUserId: null,
+    groupId: host.groupId,
+    action: "host.key_mismatch",
+    targetType: "host",
+    targetId: host.id,
+    details: { expected: error.expectedFingerprint, actual: error.actualFingerprint },
+  });
+  const admins = await ctx.db
+    .select({ email: users.email })
+    .from(memberships)
+    .innerJoin(users, eq(users.id, memberships.userId))
+    .where(and(eq(memberships.groupId, host.groupId), eq(memberships.role, "admin")));
+  for (const admin of admins) {
+    await ctx.mailer
+      .send({ to: admin.email, subject: `Sigmaflow: host key of ${host.name} changed`, text: message, html: `<p>${message}</p>` })
+      .catch((mailError: unknown) => ctx.log.warn({ err: mailError }, "could not mail host-key warning"));
+  }
+}
+
+const IN_FLIGHT: RunState[] = ["queued", "staging", "submitted", "running", "collecting"];
+
+function heldStepFor(state: RunState): HeldStep {
+  if (state === "collecting") return "collect";
+  if (state === "submitted" || state === "running") return "poll";
+  return "stage";
+}
+
+/** Holds every in-flight run of a host (host key changed, or unreachable for too long). */
+export async function holdHostRuns(ctx: WorkerContext, hostId: string, message: string): Promise<number> {
+  const inFlight = await ctx.db
+    .select()
+    .from(runs)
+    .where(and(eq(runs.hostId, hostId), inArray(runs.state, IN_FLIGHT)));
+  for (const run of inFlight) await holdRun(ctx, run, heldStepFor(run.state), message);
+  return inFlight.length;
+}
+
+/**
+ * Runs `fn` for a step of `run`; on failure decides between retry-later, hold and fail.
+ * Returns normally in every handled case, so pg-boss marks the item complete.
+ */
+export async function guardStep(
+  ctx: WorkerContext,
+  run: RunRow,
+  host: HostRow | null,
+  step: RunStepName,
+  fn: () => Promise<void>,
+): Promise<void> {
+  try {
+    await fn();
+    if (run.transportAttempts > 0) {
+      await ctx.db.update(runs).set({ transportAttempts: 0 }).where(eq(runs.id, run.id));
+    }
+  } catch (error) {
+    if (error instanceof HostKeyMismatchError && host) {
+      await tellAdminsAboutHostKey(ctx, host, error);
+      await holdHostRuns(ctx, host.id, `Held: the host key of ${host.name} changed (${error.actualFingerprint}).`);
+      return;
+    }
+    if (error instanceof TransportError) {
+      const attempts = run.transportAttempts + 1;
+      if (attempts >= ctx.config.transportMaxAttempts) {
+        await holdRun(ctx, run, step, `Held after ${attempts} attempts to reach the host: ${error.message}`);
+        return;
+      }
+      const delayMs = backoffMs(attempts, ctx.config.backoffBaseMs, ctx.config.backoffMaxMs);
+      await ctx.db.update(runs).set({ transportAttempts: attempts, nextRetryAt: new Date(Date.now() + delayMs) }).where(eq(runs.id, run.id));
+      await ctx.boss.send(RUN_STEP_QUEUES[step], { runId: run.id }, { startAfter: new Date(Date.now() + delayMs) });
+      ctx.log.warn({ runId: run.id, step, attempts, delayMs, err: error.message }, "transport trouble, retrying");
+      return;
+    }
+    if (error instanceof RemoteCommandError || error instanceof RemotePathError) {
+      await failRun(ctx, run, `${step} failed on the host: ${error.message}`);
+      return;
+    }
+    throw error;
+  }
+}

@@ -1,0 +1,78 @@
+/**
+ * Starts a Sigmaflow worker: `node --import tsx worker/index.ts`. Several may run against the same
+ * PostgreSQL; they share the queues and take turns polling each host.
+ */
+import { createDatabase } from "../server/db/client";
+import { applyMigrations } from "../server/db/migrate";
+import { createLogger } from "../server/logger";
+import { createMailer } from "../server/mail/mailer";
+import { createBoss, createRunQueues, RUN_STEP_QUEUES, runStepPayloadSchema } from "../server/queue/queues";
+import { loadWorkerConfig } from "./config";
+import type { WorkerContext } from "./context";
+import { every, pollAllHosts, reconcileRunsInFlight, resumeHeldRuns } from "./maintenance";
+import { SshPool } from "./ssh/pool";
+import { cancelRunOnHost } from "./steps/cancel";
+import { collectRun } from "./steps/collect";
+import { stageRun } from "./steps/stage";
+
+export async function startWorker(config = loadWorkerConfig()) {
+  const log = createLogger(config.logLevel).child({ service: "sigmaflow-worker" });
+  await applyMigrations(config.databaseUrl);
+  const { db, pool } = createDatabase(config.databaseUrl);
+  const boss = createBoss(config.databaseUrl);
+  boss.on("error", (error) => log.error({ err: error }, "queue error"));
+  await boss.start();
+  await createRunQueues(boss);
+  const ssh = new SshPool(config.ssh);
+  const ctx: WorkerContext = { db, pool, boss, ssh, config, log, mailer: createMailer(config.smtp) };
+
+  const handlers = {
+    [RUN_STEP_QUEUES.stage]: stageRun,
+    [RUN_STEP_QUEUES.collect]: collectRun,
+    [RUN_STEP_QUEUES.cancel]: cancelRunOnHost,
+  } as const;
+  for (const [queue, handler] of Object.entries(handlers)) {
+    for (let i = 0; i < config.concurrency; i += 1) {
+      await boss.work(queue, { batchSize: 4, pollingIntervalSeconds: config.queuePollSeconds }, async (jobs) => {
+        await Promise.all(
+          jobs.map(async (job) => {
+            const { runId } = runStepPayloadSchema.parse(job.data);
+            await handler(ctx, runId);
+          }),
+        );
+      });
+    }
+  }
+
+  const reattached = await reconcileRunsInFlight(ctx);
+  log.info({ reattached }, "worker started");
+  const onError = (error: unknown) => log.error({ err: error }, "worker timer failed");
+  const stopPolling = every(config.pollIntervalMs, () => pollAllHosts(ctx), onError);
+  const stopProbing = every(config.holdProbeIntervalMs, () => resumeHeldRuns(ctx), onError);
+
+  return {
+    ctx,
+    async stop() {
+      await stopPolling();
+      await stopProbing();
+      await boss.stop({ graceful: true, wait: true, timeout: 10_000 });
+      ssh.close();
+      ctx.mailer.close();
+      await pool.end();
+    },
+  };
+}
+
+if (import.meta.url === `file://${process.argv[1]}`) {
+  const worker = await startWorker();
+  let stopping = false;
+  const shutdown = async (signal: string) => {
+    if (stopping) return;
+    stopping = true;
+    worker.ctx.log.info({ signal }, "worker stopping: finishing the steps in hand");
+    await worker.stop();
+    process.exit(0);
+  };
+  process.on("SIGINT", () => void shutdown("SIGINT"));
+  process.on("SIGTERM", () => void shutdown("SIGTERM"));
+}

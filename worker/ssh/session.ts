@@ -1,0 +1,196 @@
+/**
+ * The operations a run step performs on one target: exec of a fixed, quoted argv, and file transfer over
+ * the connection's persistent SFTP channel. A session is a cheap handle; connections belong to the pool.
+ */
+import { constants as osConstants } from "node:os";
+import type { ClientChannel } from "ssh2";
+import type { SshTarget } from "./connection";
+import { classifySshError, RemoteCommandError, TransportError } from "./errors";
+import type { SshPool } from "./pool";
+import { commandLine } from "./quote";
+import { fastPut, type RemoteStat, readWhole, statPath, type WriteOptions, writeWhole } from "./sftp-ops";
+
+export type ExecOptions = {
+  stdin?: Buffer | string;
+  /** Gives up (TransportError "command-timeout") and closes the channel; the remote process may outlive it. */
+  timeoutMs?: number;
+  /** Output beyond this (stdout + stderr) aborts the command: a runaway command must not fill the worker's memory. */
+  maxOutputBytes?: number;
+};
+
+export type ExecResult = {
+  /** Exit status; for a command killed by a signal, 128 + the signal's number, as a shell reports it. */
+  code: number;
+  signal: string | null;
+  stdout: Buffer;
+  stderr: Buffer;
+};
+
+export type PutOptions = { concurrency?: number; chunkSizeBytes?: number; mode?: number };
+
+export interface RemoteSession {
+  readonly target: SshTarget;
+  /** Runs argv (quoted into one command line); never throws for a non-zero exit, only for transport loss. */
+  exec(argv: string[], options?: ExecOptions): Promise<ExecResult>;
+  /** Runs argv and returns stdout as UTF-8; a non-zero exit throws RemoteCommandError. */
+  run(argv: string[], options?: ExecOptions): Promise<string>;
+  writeFile(remotePath: string, content: Buffer, options?: WriteOptions): Promise<void>;
+  putFile(localPath: string, remotePath: string, options?: PutOptions): Promise<void>;
+  /** Reads a whole file; RemoteFileError("too-large") when it exceeds maxBytes, ("missing") when absent. */
+  readFile(remotePath: string, maxBytes: number): Promise<Buffer>;
+  /** Follows links; null when nothing is at the path. */
+  stat(remotePath: string): Promise<RemoteStat | null>;
+  /** Does not follow a final link; null when nothing is at the path. */
+  lstat(remotePath: string): Promise<RemoteStat | null>;
+}
+
+const DEFAULT_MAX_OUTPUT_BYTES = 64 * 1024 * 1024;
+
+/**
+ * SFTP fastPut tuning for loopback and LAN links, measured with bench/ssh/staging.bench.ts: 64 KiB WRITE
+ * requests with 32 in flight (a 2 MiB window, ssh2's channel window size). ssh2's defaults (32 KiB × 64)
+ * spend more CPU per byte on request framing.
+ */
+export const PUT_DEFAULTS = { concurrency: 32, chunkSizeBytes: 64 * 1024 } as const;
+
+function exitCodeOf(code: number | null | undefined, signal: string | null): number {
+  if (typeof code === "number") return code;
+  const signalNumber = signal ? (osConstants.signals as Record<string, number | undefined>)[`SIG${signal}`] : undefined;
+  return 128 + (signalNumber ?? 127);
+}
+
+export class RemoteSessionImpl implements RemoteSession {
+  constructor(
+    private readonly pool: SshPool,
+    readonly target: SshTarget,
+  ) {}
+
+  async exec(argv: string[], options: ExecOptions = {}): Promise<ExecResult> {
+    const command = commandLine(argv);
+    const lease = await this.pool.leaseChannel(this.target);
+    const { connection } = lease;
+    const maxOutputBytes = options.maxOutputBytes ?? DEFAULT_MAX_OUTPUT_BYTES;
+
+    return new Promise<ExecResult>((resolve, reject) => {
+      const stdout: Buffer[] = [];
+      const stderr: Buffer[] = [];
+      let outputBytes = 0;
+      let exitCode: number | null | undefined;
+      let exitSignal: string | null = null;
+      let sawExit = false;
+      let channel: ClientChannel | null = null;
+      let settled = false;
+      let timer: NodeJS.Timeout | null = null;
+      let untrack = () => {};
+
+      const settle = (action: () => void) => {
+        if (settled) return;
+        settled = true;
+        if (timer) clearTimeout(timer);
+        untrack();
+        action();
+      };
+      const abandon = (error: Error) => {
+        settle(() => reject(error));
+        // The slot is free once the channel is closed on both sides ("close" below releases it).
+        if (channel) channel.close();
+        else lease.release();
+      };
+      untrack = connection.track((error) => {
+        settle(() => reject(error));
+        lease.release();
+      });
+      if (options.timeoutMs !== undefined) {
+        timer = setTimeout(
+          () => abandon(new TransportError("command-timeout", `no exit within ${options.timeoutMs} ms: ${command}`)),
+          options.timeoutMs,
+        );
+      }
+      const collect = (into: Buffer[]) => (chunk: Buffer) => {
+        outputBytes += chunk.length;
+        if (outputBytes > maxOutputBytes) {
+          abandon(new RemoteCommandError(command, -1, "", `output exceeded ${maxOutputBytes} bytes: ${command}`));
+          return;
+        }
+        into.push(chunk);
+      };
+
+      try {
+        connection.client.exec(command, (error, stream) => {
+          if (error) {
+            settle(() => reject(classifySshError(error)));
+            lease.release();
+            return;
+          }
+          channel = stream;
+          stream.on("data", collect(stdout));
+          stream.stderr.on("data", collect(stderr));
+          stream.on("error", (streamError: Error) => abandon(classifySshError(streamError)));
+          stream.stderr.on("error", () => {});
+          stream.on("exit", (code: number | null, signal?: string) => {
+            sawExit = true;
+            exitCode = code;
+            exitSignal = signal ?? null;
+          });
+          stream.on("close", () => {
+            lease.release();
+            settle(() => {
+              if (!sawExit) {
+                reject(new TransportError("closed", `channel closed without an exit status: ${command}`));
+                return;
+              }
+              resolve({
+                code: exitCodeOf(exitCode, exitSignal),
+                signal: exitSignal,
+                stdout: Buffer.concat(stdout),
+                stderr: Buffer.concat(stderr),
+              });
+            });
+          });
+          if (settled) {
+            stream.close();
+            return;
+          }
+          if (options.stdin !== undefined) stream.end(options.stdin);
+          else stream.end();
+        });
+      } catch (error) {
+        // ssh2 throws "Not connected" synchronously when the connection died a moment ago.
+        settle(() => reject(classifySshError(error)));
+        lease.release();
+      }
+    });
+  }
+
+  async run(argv: string[], options?: ExecOptions): Promise<string> {
+    const result = await this.exec(argv, options);
+    if (result.code !== 0) throw new RemoteCommandError(commandLine(argv), result.code, result.stderr);
+    return result.stdout.toString("utf8");
+  }
+
+  writeFile(remotePath: string, content: Buffer, options?: WriteOptions): Promise<void> {
+    return this.pool.withSftp(this.target, (sftp) => writeWhole(sftp, remotePath, content, options));
+  }
+
+  putFile(localPath: string, remotePath: string, options: PutOptions = {}): Promise<void> {
+    return this.pool.withSftp(this.target, (sftp) =>
+      fastPut(sftp, localPath, remotePath, {
+        concurrency: options.concurrency ?? PUT_DEFAULTS.concurrency,
+        chunkSize: options.chunkSizeBytes ?? PUT_DEFAULTS.chunkSizeBytes,
+        mode: options.mode ?? 0o600,
+      }),
+    );
+  }
+
+  readFile(remotePath: string, maxBytes: number): Promise<Buffer> {
+    return this.pool.withSftp(this.target, (sftp) => readWhole(sftp, remotePath, maxBytes));
+  }
+
+  stat(remotePath: string): Promise<RemoteStat | null> {
+    return this.pool.withSftp(this.target, (sftp) => statPath(sftp, remotePath, true));
+  }
+
+  lstat(remotePath: string): Promise<RemoteStat | null> {
+    return this.pool.withSftp(this.target, (sftp) => statPath(sftp, remotePath, false));
+  }
+}

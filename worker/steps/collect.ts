@@ -1,0 +1,101 @@
+/**
+ * `collect`: fetch each stage's declared result files into run_artefacts (sha256 recorded), read the
+ * scheduler's accounting, charge the ledger the actual core-hours and release the reservation, and
+ * settle the run as done, failed or cancelled — all of it once, in one transaction.
+ */
+import { createHash } from "node:crypto";
+import { and, eq } from "drizzle-orm";
+import { ledgerEntries, runArtifacts, runs, users } from "../../server/db/schema";
+import { transitionRun } from "../../server/execution/run-transitions";
+import type { RunState } from "../../shared/schemas/execution/runs";
+import type { WorkerContext } from "../context";
+import { guardStep } from "../failures";
+import { loadRun, runtimeFor } from "../run-runtime";
+import { RemoteFileError } from "../ssh/errors";
+
+const worker = { kind: "worker" } as const;
+
+export async function collectRun(ctx: WorkerContext, runId: string): Promise<void> {
+  const run = await loadRun(ctx, runId);
+  if (!run || run.state !== "collecting") return;
+  const rt = await runtimeFor(ctx, run).catch(() => null);
+  await guardStep(ctx, run, rt?.host ?? null, "collect", async () => {
+    const { session, scheduler, job, plan } = rt ?? (await runtimeFor(ctx, run));
+    const collected: { stage: string; name: string; content: Buffer }[] = [];
+    const missing: string[] = [];
+    for (const stage of plan.stages) {
+      for (const name of stage.outputFiles) {
+        try {
+          const content = await session.readFile(`${run.remoteDir}/${stage.dir}/${name}`, ctx.config.maxArtifactBytes);
+          collected.push({ stage: stage.name, name, content });
+        } catch (error) {
+          if (error instanceof RemoteFileError) missing.push(`${stage.name}/${name} (${error.message})`);
+          else throw error;
+        }
+      }
+    }
+    const usage = await scheduler.accounting(session, job, run.cores);
+    const measuredSeconds = usage?.coreSeconds ?? fallbackCoreSeconds(run);
+    const chargedCoreSeconds = Math.max(0, Math.round(measuredSeconds));
+    const finalState: RunState = run.cancelRequestedAt ? "cancelled" : run.exitCode === 0 && missing.length === 0 ? "done" : "failed";
+    const message =
+      finalState === "done"
+        ? `Finished; ${collected.length} result file(s) collected`
+        : finalState === "cancelled"
+          ? "Cancelled; the scheduler confirmed the job ended"
+          : run.exitCode !== 0
+            ? `The job ended with exit code ${run.exitCode}; see the log`
+            : `Declared results missing: ${missing.join(", ")}`;
+    const settled = await ctx.db.transaction(async (tx) => {
+      for (const file of collected) {
+        await tx
+          .insert(runArtifacts)
+          .values({
+            runId: run.id,
+            stage: file.stage,
+            name: file.name,
+            sizeBytes: file.content.length,
+            sha256: createHash("sha256").update(file.content).digest("hex"),
+            content: file.content,
+          })
+          .onConflictDoNothing();
+      }
+      const moved = await transitionRun(tx, run.id, ["collecting"], finalState, {
+        actor: worker,
+        message,
+        set: { chargedCoreSeconds, finishedAt: new Date() },
+      });
+      if (!moved) return false;
+      await tx.insert(ledgerEntries).values([
+        { allocationId: run.allocationId, runId: run.id, kind: "charge", coreSeconds: chargedCoreSeconds, note: usage ? "scheduler accounting" : "measured by Sigmaflow" },
+        { allocationId: run.allocationId, runId: run.id, kind: "release", coreSeconds: run.reservedCoreSeconds, note: "reservation released" },
+      ]);
+      return true;
+    });
+    if (settled && run.notifyByEmail) await mailSubmitter(ctx, run.id, finalState, message);
+  });
+}
+
+/** Without scheduler accounting: cores × the wall time Sigmaflow saw between start and collection. */
+function fallbackCoreSeconds(run: typeof runs.$inferSelect): number {
+  const started = run.startedAt ?? run.createdAt;
+  return run.cores * Math.max(0, (Date.now() - started.getTime()) / 1000);
+}
+
+async function mailSubmitter(ctx: WorkerContext, runId: string, state: RunState, message: string): Promise<void> {
+  const [row] = await ctx.db
+    .select({ email: users.email, name: runs.name })
+    .from(runs)
+    .innerJoin(users, and(eq(users.id, runs.submittedBy)))
+    .where(eq(runs.id, runId));
+  if (!row) return;
+  const link = `${ctx.config.publicUrl}/runs/${runId}`;
+  await ctx.mailer
+    .send({
+      to: row.email,
+      subject: `Sigmaflow: run "${row.name}" ${state}`,
+      text: `${message}.\n\n${link}\n\nComputed data are model results: validate them before use in design work.`,
+      html: `<p>${message}.</p><p><a href="${link}">Open the run</a></p>`,
+    })
+    .catch((error: unknown) => ctx.log.warn({ err: error, runId }, "could not mail run notice"));
+}

@@ -1,0 +1,138 @@
+/**
+ * `poll`, batched per host: one scheduler query for all of a host's active runs (per account), then new
+ * log bytes of each run read from its byte offset, stored as numbered chunks, and parsed into timings and
+ * progress. A run whose job ended moves to `collecting`.
+ */
+import { and, eq, inArray } from "drizzle-orm";
+import { withClientTransaction } from "../../server/db/client-transaction";
+import { hosts, runLogChunks, runs, runTimings } from "../../server/db/schema";
+import { compileOutputRules, parseLogLines } from "../../server/execution/output-rules";
+import { notifyRun, transitionRun } from "../../server/execution/run-transitions";
+import { RUN_STEP_QUEUES } from "../../server/queue/queues";
+import type { WorkerContext } from "../context";
+import { groupBy } from "../group-by";
+import { guardStep, holdHostRuns } from "../failures";
+import { readLogFrom } from "../logs/tail";
+import { type HostRow, jobRefOf, loadHost, planOf, type RunRow, sessionFor } from "../run-runtime";
+import { schedulerFor } from "../schedulers";
+import type { JobStatus } from "../schedulers/types";
+import { HostKeyMismatchError, TransportError } from "../ssh/errors";
+import type { RemoteSession } from "../ssh/pool";
+
+const worker = { kind: "worker" } as const;
+/** Enough bytes per poll to keep up with a chatty code without holding a poll for long. */
+const MAX_LOG_BYTES_PER_POLL = 256 * 1024;
+
+type Progress = { stage?: string | null; done?: number; total?: number; percent?: number } | null;
+
+async function storeLog(ctx: WorkerContext, run: RunRow, session: RemoteSession, untilEmpty: boolean): Promise<void> {
+  const plan = planOf(run);
+  const rules = compileOutputRules(plan);
+  let offset = run.logOffsetBytes;
+  let seq = run.logSeq;
+  let stage = ((run.progress as Progress)?.stage as string | null | undefined) ?? null;
+  for (let round = 0; round < (untilEmpty ? 64 : 1); round += 1) {
+    const chunk = await readLogFrom(session, `${run.remoteDir}/${plan.logName}`, offset, MAX_LOG_BYTES_PER_POLL);
+    if (chunk.text.length === 0 && chunk.nextOffsetBytes === offset) break;
+    const parsed = parseLogLines(chunk.text, rules, stage);
+    stage = parsed.stage;
+    seq += 1;
+    const chunkOffset = offset;
+    offset = chunk.nextOffsetBytes;
+    await ctx.db.transaction(async (tx) => {
+      // The conditional update makes a repeated poll of the same bytes (two workers, a retry) a no-op.
+      const advanced = await tx
+        .update(runs)
+        .set({
+          logOffsetBytes: offset,
+          logSeq: seq,
+          progress: parsed.progress ?? { ...((run.progress as object) ?? {}), stage },
+          updatedAt: new Date(),
+        })
+        .where(and(eq(runs.id, run.id), eq(runs.logOffsetBytes, chunkOffset)))
+        .returning({ id: runs.id });
+      if (advanced.length === 0) return;
+      await tx.insert(runLogChunks).values({ runId: run.id, seq, offsetBytes: chunkOffset, text: chunk.text });
+      for (const timing of parsed.timings) {
+        await tx
+          .insert(runTimings)
+          .values({ runId: run.id, ...timing })
+          .onConflictDoUpdate({ target: [runTimings.runId, runTimings.stage, runTimings.symmetry], set: { elapsedMs: timing.elapsedMs } });
+      }
+      await notifyRun(tx, run.id, { type: "log", seq });
+    });
+    if (chunk.text.length < MAX_LOG_BYTES_PER_POLL / 2) break;
+  }
+}
+
+async function applyStatus(ctx: WorkerContext, run: RunRow, status: JobStatus, session: RemoteSession): Promise<void> {
+  if (status.state === "pending" || status.state === "unknown") return;
+  if (run.state === "submitted") {
+    await ctx.db.transaction((tx) =>
+      transitionRun(tx, run.id, ["submitted"], "running", {
+        actor: worker,
+        message: "Started on the host",
+        set: { startedAt: status.startedAt ?? new Date() },
+      }),
+    );
+  }
+  const finished = status.state !== "running";
+  await storeLog(ctx, run, session, finished);
+  if (!finished) return;
+  await withClientTransaction(ctx.pool, async ({ db: tx, executeSql }) => {
+    const moved = await transitionRun(tx, run.id, ["submitted", "running"], "collecting", {
+      actor: worker,
+      message: `The scheduler reports the job ${status.state}${status.exitCode !== null ? ` (exit code ${status.exitCode})` : ""}`,
+      set: { exitCode: status.exitCode, startedAt: run.startedAt ?? status.startedAt ?? new Date() },
+    });
+    if (moved) await ctx.boss.send(RUN_STEP_QUEUES.collect, { runId: run.id }, { db: { executeSql: executeSql as never } });
+  });
+}
+
+const lastHostSuccess = new Map<string, number>();
+
+/** Polls every active run of one host. Transport trouble long enough holds the host's runs. */
+export async function pollHost(ctx: WorkerContext, hostId: string): Promise<void> {
+  const host = await loadHost(ctx, hostId);
+  if (host.status === "key_mismatch") return;
+  const active = await ctx.db
+    .select()
+    .from(runs)
+    .where(and(eq(runs.hostId, hostId), inArray(runs.state, ["submitted", "running"])));
+  if (active.length === 0) return;
+  const scheduler = schedulerFor(host.scheduler);
+  const byAccount = groupBy(active, (run) => run.hostAccountId);
+  try {
+    for (const [accountId, accountRuns] of byAccount) {
+      const session = await sessionFor(ctx, host, accountId);
+      const statuses = await scheduler.states(session, accountRuns.map(jobRefOf));
+      await Promise.all(
+        accountRuns.map(async (run) => {
+          const status = statuses.get(run.schedulerJobId ?? "");
+          if (!status) return;
+          await guardStep(ctx, run, host, "collect", () => applyStatus(ctx, run, status, session));
+        }),
+      );
+    }
+    lastHostSuccess.set(hostId, Date.now());
+    if (host.status !== "ok") await markHost(ctx, host, "ok", null);
+  } catch (error) {
+    if (error instanceof HostKeyMismatchError) {
+      await guardStep(ctx, active[0]!, host, "collect", () => Promise.reject(error));
+      return;
+    }
+    if (!(error instanceof TransportError)) throw error;
+    const since = lastHostSuccess.get(hostId) ?? Date.now();
+    if (!lastHostSuccess.has(hostId)) lastHostSuccess.set(hostId, since);
+    if (Date.now() - since >= ctx.config.hostUnreachableHoldMs) {
+      await markHost(ctx, host, "unreachable", error.message);
+      await holdHostRuns(ctx, hostId, `Held: ${host.name} has been unreachable since ${new Date(since).toISOString()} (${error.message}).`);
+      lastHostSuccess.delete(hostId);
+    }
+    ctx.log.warn({ hostId, err: error.message }, "poll failed");
+  }
+}
+
+export async function markHost(ctx: WorkerContext, host: HostRow, status: "ok" | "unreachable", message: string | null) {
+  await ctx.db.update(hosts).set({ status, statusMessage: message, statusChangedAt: new Date() }).where(eq(hosts.id, host.id));
+}

@@ -1,0 +1,71 @@
+/**
+ * `stage` then `submit`: copy the run's planned files into a fresh run folder on the host (sha256 checked
+ * there), then hand the batch script to the scheduler. Both are safe to repeat: staging rewrites the
+ * same files; submission is serialised per run by a row lock and finds an existing scheduler job
+ * by the run's token, so a restarted worker never submits twice.
+ */
+import { dirname } from "node:path/posix";
+import { eq } from "drizzle-orm";
+import { runs } from "../../server/db/schema";
+import { transitionRun } from "../../server/execution/run-transitions";
+import type { WorkerContext } from "../context";
+import { guardStep } from "../failures";
+import { loadRun, runtimeFor } from "../run-runtime";
+import { prepareRunDir, stageFiles } from "../ssh/remote-fs";
+
+const worker = { kind: "worker" } as const;
+
+export async function stageRun(ctx: WorkerContext, runId: string): Promise<void> {
+  const run = await loadRun(ctx, runId);
+  if (!run || (run.state !== "queued" && run.state !== "staging")) return;
+  const rt = await runtimeFor(ctx, run).catch(() => null);
+  await guardStep(ctx, run, rt?.host ?? null, "stage", async () => {
+    const { session, plan } = rt ?? (await runtimeFor(ctx, run));
+    if (run.state === "queued") {
+      const started = await ctx.db.transaction((tx) =>
+        transitionRun(tx, run.id, ["queued"], "staging", { actor: worker, message: "Copying inputs to the host" }),
+      );
+      if (!started) return;
+    }
+    if (!run.stagedFiles) {
+      const runDir = await prepareRunDir(session, dirname(run.remoteDir), run.remoteDir.split("/").at(-1)!);
+      const staged = await stageFiles(
+        session,
+        runDir,
+        plan.files.map((file) => ({ relativePath: file.relativePath, content: Buffer.from(file.contentBase64, "base64") })),
+      );
+      for (const file of staged) {
+        const expected = plan.files.find((f) => f.relativePath === file.relativePath);
+        if (expected && expected.sha256 !== file.sha256) {
+          throw new Error(`staged ${file.relativePath} does not match its sha256 on the host`);
+        }
+      }
+      await ctx.db.update(runs).set({ stagedFiles: staged, updatedAt: new Date() }).where(eq(runs.id, run.id));
+    }
+    await submitRun(ctx, run.id);
+  });
+}
+
+export async function submitRun(ctx: WorkerContext, runId: string): Promise<void> {
+  await ctx.db.transaction(async (tx) => {
+    // The row lock makes submission one-at-a-time per run across worker processes, and makes a
+    // concurrent cancel wait until the scheduler job id is recorded.
+    const [run] = await tx.select().from(runs).where(eq(runs.id, runId)).for("update");
+    if (!run || run.state !== "staging") return;
+    const { session, scheduler, job, plan } = await runtimeFor(ctx, run);
+    const submitted = await scheduler.submit(session, {
+      ...job,
+      cores: run.cores,
+      wallTimeMinutes: run.wallTimeMinutes,
+      scriptName: plan.scriptName,
+    });
+    const moved = await transitionRun(tx, run.id, ["staging"], "submitted", {
+      actor: worker,
+      message: submitted.alreadySubmitted
+        ? `Found the scheduler job ${submitted.jobId} submitted earlier`
+        : `Submitted to the scheduler as job ${submitted.jobId}`,
+      set: { schedulerJobId: submitted.jobId },
+    });
+    if (!moved) await scheduler.cancel(session, { ...job, jobId: submitted.jobId });
+  });
+}

@@ -9,6 +9,7 @@ import type { AddressInfo } from "node:net";
 import { createApp } from "../../../server/app";
 import { loadConfig } from "../../../server/config";
 import { createLogger } from "../../../server/logger";
+import { createBoss, createRunQueues } from "../../../server/queue/queues";
 import type { Mailer, OutgoingMail } from "../../../server/mail/mailer";
 import type { TestDatabase } from "./test-database";
 
@@ -52,9 +53,13 @@ export async function startTestApp(
     ...options.env,
   });
   const mailer = recordingMailer();
+  const boss = createBoss(database.url, { maintenance: false });
+  await boss.start();
+  await createRunQueues(boss);
   const app = createApp({
     db: database.db,
     pool: database.pool,
+    boss,
     config,
     mailer,
     log: createLogger("silent"),
@@ -64,10 +69,13 @@ export async function startTestApp(
     baseUrl: `http://127.0.0.1:${port}`,
     config,
     mailer,
-    close: () =>
-      new Promise<void>((resolve) => {
+    boss,
+    close: async () => {
+      await new Promise<void>((resolve) => {
         server.closeAllConnections();
         server.close(() => resolve());
-      }),
+      });
+      await boss.stop({ graceful: false, wait: true });
+    },
   };
 }

@@ -1,0 +1,3 @@
+export * from "./cross-sections";
+export * from "./eigenphase-continuity";
+export * from "./t-matrix";

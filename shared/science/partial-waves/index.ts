@@ -1,0 +1,3 @@
+export * from "./cross-sections";
+export * from "./phase-shifts";
+export * from "./spherical-bessel";

@@ -1,0 +1,2 @@
+export * from "./exponential-moments";
+export * from "./incomplete-gamma";

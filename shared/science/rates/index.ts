@@ -1,0 +1,2 @@
+export * from "./arrhenius-fit";
+export * from "./maxwellian-rate";

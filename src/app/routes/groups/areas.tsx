@@ -1,0 +1,129 @@
+import { Atom, Cpu, ListChecks, type LucideIcon, TrendingUp } from "lucide-react";
+import { EmptyState } from "@/components/ui/empty-state";
+import { PageHeader } from "@/components/ui/page-header";
+import { useCurrentGroup } from "./use-current-group";
+
+type Area = {
+  title: string;
+  summary: string;
+  icon: LucideIcon;
+  emptyTitle: string;
+  emptyBody: string;
+  /** What the page will hold. */
+  holds: string[];
+  /** What people will do on it. */
+  tasks: string[];
+};
+
+const AREAS = {
+  targets: {
+    title: "Targets",
+    summary: "The molecules your group studies, described once and reused by every calculation.",
+    icon: Atom,
+    emptyTitle: "No targets registered yet",
+    emptyBody:
+      "Target registration is the next part of Sigmaflow to arrive. Until then, nothing is stored here.",
+    holds: [
+      "Each target's geometry, charge and spin state, with its point group detected from the geometry",
+      "The basis set and target-state model chosen for it, and the states included in the close-coupling expansion",
+      "Which runs and studies use the target",
+    ],
+    tasks: [
+      "Register a molecule from Cartesian coordinates and check its symmetry",
+      "Compare target-state energies against reference values before committing cluster time",
+    ],
+  },
+  codes: {
+    title: "Codes",
+    summary: "The scattering and structure programs installed on your group's clusters, by version.",
+    icon: Cpu,
+    emptyTitle: "No codes connected yet",
+    emptyBody: "Once a cluster is connected, the programs it offers are listed here with their versions.",
+    holds: [
+      "Every installed build, the cluster it lives on and the queue it submits to",
+      "The input parameters each build accepts and its default settings",
+    ],
+    tasks: [
+      "Pick the build and version a run will use, so results stay reproducible",
+      "See at a glance which clusters can run which kind of calculation",
+    ],
+  },
+  runs: {
+    title: "Runs",
+    summary: "Calculations queued on your group's clusters, from submission to finished output.",
+    icon: ListChecks,
+    emptyTitle: "No runs yet",
+    emptyBody:
+      "Queueing calculations is the next part of Sigmaflow to arrive. Your group's runs will be listed here, newest first.",
+    holds: [
+      "Each run's target, code, energy grid and state: queued, running, finished or failed",
+      "Its logs and its output: K-matrices, eigenphase sums and partial cross sections",
+    ],
+    tasks: [
+      "Queue a calculation for a target on one of your group's clusters and follow its progress",
+      "Resubmit a failed run with corrected parameters",
+    ],
+  },
+  studies: {
+    title: "Studies",
+    summary: "Collections of finished runs turned into physical quantities you can compare and export.",
+    icon: TrendingUp,
+    emptyTitle: "No studies yet",
+    emptyBody: "Studies build on finished runs; the first one can be started once runs exist.",
+    holds: [
+      "Integral and momentum-transfer cross sections against collision energy",
+      "Rate coefficients against temperature, and resonance positions and widths fitted from eigenphase sums",
+    ],
+    tasks: [
+      "Compare runs that differ in basis set or target model to judge convergence",
+      "Export tables of cross sections and rates for your plasma or astrochemistry models",
+    ],
+  },
+} satisfies Record<string, Area>;
+
+function AreaPage({ area }: { area: Area }) {
+  const { group } = useCurrentGroup();
+  const Icon = area.icon;
+  return (
+    <>
+      <PageHeader eyebrow={group.name} title={area.title} description={area.summary} />
+      <EmptyState icon={<Icon className="size-5" aria-hidden="true" />} title={area.emptyTitle}>
+        {area.emptyBody}
+      </EmptyState>
+      <div className="mt-8 grid gap-6 md:grid-cols-2">
+        <section className="rounded-xl border border-ink-100 bg-white p-5">
+          <h2 className="text-sm font-semibold text-ink-900">What will live here</h2>
+          <ul className="mt-3 flex list-disc flex-col gap-2 pl-5 text-sm text-ink-600 marker:text-flux-500">
+            {area.holds.map((item) => (
+              <li key={item}>{item}</li>
+            ))}
+          </ul>
+        </section>
+        <section className="rounded-xl border border-ink-100 bg-white p-5">
+          <h2 className="text-sm font-semibold text-ink-900">What you will do here</h2>
+          <ul className="mt-3 flex list-disc flex-col gap-2 pl-5 text-sm text-ink-600 marker:text-flux-500">
+            {area.tasks.map((item) => (
+              <li key={item}>{item}</li>
+            ))}
+          </ul>
+        </section>
+      </div>
+    </>
+  );
+}
+
+export function TargetsRoute() {
+  return <AreaPage area={AREAS.targets} />;
+}
+
+export function CodesRoute() {
+  return <AreaPage area={AREAS.codes} />;
+}
+
+export function RunsRoute() {
+  return <AreaPage area={AREAS.runs} />;
+}
+
+export function StudiesRoute() {
+  return <AreaPage area={AREAS.studies} />;
+}

@@ -1,0 +1,6 @@
+import { type ClassValue, clsx } from "clsx";
+
+/** Joins conditional class names. */
+export function cn(...values: ClassValue[]): string {
+  return clsx(values);
+}

@@ -25,6 +25,7 @@ cleanup() {
   local status=$?
   trap - INT TERM EXIT
   sf_stop_all
+  [ -d "$WORK_DIR/engines" ] && bash "$SF_ROOT/deploy/engines/stop-engines.sh" "$WORK_DIR/engines" >/dev/null 2>&1 || true
   sf_pg_stop "$WORK_DIR/pg/cluster"
   if [ "$status" -ne 0 ] && [ -d "$LOG_DIR" ]; then
     for f in "$LOG_DIR"/*.log; do [ -s "$f" ] && { echo "---- $f (last lines)"; tail -n 30 "$f"; }; done
@@ -38,7 +39,13 @@ sf_log "typecheck and lint"
 npx tsc -p tsconfig.json --noEmit
 npx biome check .
 
-sf_pg_start "$WORK_DIR/pg/cluster" "$PG_PORT" "-c fsync=off -c max_connections=200"
+sf_pg_start "$WORK_DIR/pg/cluster" "$PG_PORT" "-c fsync=off -c max_connections=300"
+
+# Real engines for the scheduler tests: Debian's OpenSSH server and a single-node Slurm with accounting.
+sf_log "starting OpenSSH and Slurm on loopback"
+bash deploy/engines/start-engines.sh "$WORK_DIR/engines" "$WORK_DIR/engines.env" >"$LOG_DIR/engines.log" 2>&1 \
+  || { tail -n 40 "$LOG_DIR/engines.log" >&2; sf_die "the test engines did not start"; }
+source "$WORK_DIR/engines.env"
 sf_pg_ensure_database "$PG_PORT" "$DB_NAME"
 node --import tsx server/db/migrate.ts
 node --import tsx deploy/demo/seed.ts

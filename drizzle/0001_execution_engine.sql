@@ -30,7 +30,8 @@ CREATE TABLE "host_accounts" (
 	"username" varchar(64) NOT NULL,
 	"public_key" text NOT NULL,
 	"private_key_encrypted" "bytea" NOT NULL,
-	"created_at" timestamp with time zone DEFAULT now() NOT NULL
+	"created_at" timestamp with time zone DEFAULT now() NOT NULL,
+	CONSTRAINT "host_accounts_owner_key" UNIQUE NULLS NOT DISTINCT("host_id","owner_user_id")
 );
 --> statement-breakpoint
 CREATE TABLE "hosts" (
@@ -176,7 +177,6 @@ ALTER TABLE "runs" ADD CONSTRAINT "runs_allocation_id_allocations_id_fk" FOREIGN
 ALTER TABLE "runs" ADD CONSTRAINT "runs_submitted_by_users_id_fk" FOREIGN KEY ("submitted_by") REFERENCES "public"."users"("id") ON DELETE set null ON UPDATE no action;--> statement-breakpoint
 CREATE INDEX "allocations_group_idx" ON "allocations" USING btree ("group_id","starts_at");--> statement-breakpoint
 CREATE UNIQUE INDEX "codes_group_name_version_key" ON "codes" USING btree ("group_id","name","version");--> statement-breakpoint
-CREATE UNIQUE INDEX "host_accounts_owner_key" ON "host_accounts" USING btree ("host_id","owner_user_id");--> statement-breakpoint
 CREATE INDEX "host_accounts_host_idx" ON "host_accounts" USING btree ("host_id");--> statement-breakpoint
 CREATE UNIQUE INDEX "hosts_group_name_key" ON "hosts" USING btree ("group_id","name");--> statement-breakpoint
 CREATE INDEX "ledger_allocation_idx" ON "ledger_entries" USING btree ("allocation_id");--> statement-breakpoint

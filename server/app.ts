@@ -22,6 +22,7 @@ import { adminRoutes } from "./routes/admin.routes";
 import { apiTokenRoutes } from "./routes/api-tokens.routes";
 import { authRoutes } from "./routes/auth.routes";
 import type { RouteContext } from "./routes/context";
+import { executionCatalogueRoutes } from "./routes/execution-catalogue.routes";
 import { groupRoutes } from "./routes/groups.routes";
 import { healthRoutes } from "./routes/health.routes";
 import { invitationRoutes } from "./routes/invitations.routes";
@@ -71,6 +72,7 @@ export function createApp(deps: AppDeps) {
   api.use(invitationRoutes(ctx));
   api.use(apiTokenRoutes(ctx));
   api.use(adminRoutes(ctx));
+  api.use(executionCatalogueRoutes(ctx));
   api.use(runRoutes(ctx));
   api.use(notFoundRoute);
   api.use(errorHandler(log));

@@ -67,13 +67,17 @@ export function compileParameterSchema(schema: Record<string, unknown>): Validat
   const cached = validators.get(key);
   if (cached) return cached;
   if (schema.type !== "object") {
-    throw new ParameterSchemaError('The parameters schema must describe an object: give it "type": "object".');
+    throw new ParameterSchemaError(
+      'The parameters schema must describe an object: give it "type": "object".',
+    );
   }
   let validate: ValidateFunction;
   try {
     validate = newAjv().compile(schema);
   } catch (error) {
-    throw new ParameterSchemaError(`The parameters schema is not valid JSON Schema: ${(error as Error).message}`);
+    throw new ParameterSchemaError(
+      `The parameters schema is not valid JSON Schema: ${(error as Error).message}`,
+    );
   }
   if (validators.size >= CACHE_LIMIT) validators.clear();
   validators.set(key, validate);

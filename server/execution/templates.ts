@@ -56,6 +56,7 @@ const STRING_METHODS = new Set([
 ]);
 const ARRAY_METHODS = new Set(["join", "slice", "indexOf", "includes", "at"]);
 const NUMBER_METHODS = new Set(["toFixed", "toPrecision", "toExponential"]);
+// biome-ignore lint/suspicious/noControlCharactersInRegex: matching control characters is the point.
 const CONTROL_CHARACTERS = /[\u0000-\u001f\u007f-\u009f\u2028\u2029]/;
 const LONE_SURROGATE = /[\uD800-\uDBFF](?![\uDC00-\uDFFF])|(?<![\uD800-\uDBFF])[\uDC00-\uDFFF]/;
 
@@ -65,11 +66,17 @@ type RootFn = (env: unknown, context: unknown, frame: unknown, runtime: unknown,
 type TemplateProps = { root: RootFn; [block: string]: unknown };
 type AstNode = { lineno: number; val?: { typename: string; value?: unknown } };
 type Internals = {
-  compiler: { compile(src: string, asyncFilters: string[], exts: unknown[], name: string, opts: object): string };
+  compiler: {
+    compile(src: string, asyncFilters: string[], exts: unknown[], name: string, opts: object): string;
+  };
   parser: { parse(src: string, exts: unknown[], opts: object): { findAll(type: unknown): AstNode[] } };
   nodes: Record<"Include" | "Import" | "FromImport" | "Extends" | "LookupVal", unknown>;
   runtime: Record<string, unknown> & { SafeString: typeof nunjucks.runtime.SafeString };
-  Template: new (src: { type: "code"; obj: TemplateProps }, env: nunjucks.Environment, path: string) => {
+  Template: new (
+    src: { type: "code"; obj: TemplateProps },
+    env: nunjucks.Environment,
+    path: string,
+  ) => {
     render(context: object): string;
   };
 };
@@ -95,7 +102,9 @@ env.addGlobal("range", (start: number, stop?: number, step = 1) => {
   return values;
 });
 env.addFilter("dump", () => {
-  throw new Error("dump is not available: print the value itself, it is already written for the file's format");
+  throw new Error(
+    "dump is not available: print the value itself, it is already written for the file's format",
+  );
 });
 
 // ---------------------------------------------------------------------------------------------------
@@ -109,13 +118,16 @@ function quoteString(value: string, format: TemplateFormat, where: string): stri
   }
   switch (format) {
     case "shell":
-      if (value.includes("\0")) throw new Error(`${where} contains a NUL character, which a shell cannot pass`);
+      if (value.includes("\0"))
+        throw new Error(`${where} contains a NUL character, which a shell cannot pass`);
       return `'${value.replaceAll("'", "'\\''")}'`;
     case "json":
       return JSON.stringify(value);
     case "namelist":
       if (CONTROL_CHARACTERS.test(value)) {
-        throw new Error(`${where} contains a control character (such as a newline); namelist strings are one line`);
+        throw new Error(
+          `${where} contains a control character (such as a newline); namelist strings are one line`,
+        );
       }
       return `'${value.replaceAll("'", "''")}'`;
     case "text":
@@ -162,7 +174,8 @@ const isPlainObject = (value: object): boolean => {
 function printScalar(value: unknown, format: TemplateFormat, inContainer: boolean): string {
   if (value instanceof SafeString) return value.toString();
   if (typeof value === "string") return inContainer ? quoteString(value, format, "a value") : value;
-  if (typeof value === "boolean") return format === "namelist" ? (value ? ".true." : ".false.") : String(value);
+  if (typeof value === "boolean")
+    return format === "namelist" ? (value ? ".true." : ".false.") : String(value);
   if (typeof value === "number") {
     if (format === "json" && !Number.isFinite(value)) throw new Error(`${value} cannot be written as JSON`);
     return String(value);
@@ -195,9 +208,9 @@ function printValue(value: unknown, format: TemplateFormat): string {
 // ---------------------------------------------------------------------------------------------------
 // The restricted runtime.
 
-const hasOwn = (target: object, key: string): boolean => Object.prototype.hasOwnProperty.call(target, key);
+const hasOwn = (target: object, key: string): boolean => Object.hasOwn(target, key);
 
-function bound(target: object, fn: unknown): (...args: unknown[]) => unknown {
+function bound(target: unknown, fn: unknown): (...args: unknown[]) => unknown {
   return (...args) => (fn as (...a: unknown[]) => unknown).apply(target, args);
 }
 
@@ -213,7 +226,7 @@ function safeMemberLookup(target: unknown, key: unknown): unknown {
     return undefined;
   }
   if (typeof target === "number") {
-    return NUMBER_METHODS.has(name) ? bound(target as never, (Number.prototype as never)[name]) : undefined;
+    return NUMBER_METHODS.has(name) ? bound(target, (Number.prototype as never)[name]) : undefined;
   }
   if (Array.isArray(target)) {
     if (name === "length" || /^\d+$/.test(name)) return target[name as never];
@@ -308,7 +321,14 @@ function compileTemplate(source: string, fileName: string): TemplateProps {
     props = new Function(code)() as TemplateProps;
   } catch (error) {
     if (error instanceof TemplateError) throw error;
-    throw new TemplateError(fileName, (error as Located).lineno ?? null, cleanReason(error));
+    const reason = cleanReason(error);
+    // The parser gives no position only when the text ends inside a tag: it stopped at the end of the file.
+    const atEnd = (error as Located).lineno === undefined;
+    throw new TemplateError(
+      fileName,
+      (error as Located).lineno ?? (atEnd ? source.split("\n").length : null),
+      atEnd ? `${reason} at the end of the file (is a tag left open?)` : reason,
+    );
   }
   if (compiledCache.size >= COMPILED_CACHE_LIMIT) compiledCache.clear();
   compiledCache.set(cacheKey, props);
@@ -337,7 +357,11 @@ function renderTemplate(
     throw new TemplateError(fileName, cause.lineno ?? null, cleanReason(cause));
   }
   if (output.length > MAX_RENDERED_CHARS) {
-    throw new TemplateError(fileName, null, `the rendered file is larger than ${MAX_RENDERED_CHARS} characters`);
+    throw new TemplateError(
+      fileName,
+      null,
+      `the rendered file is larger than ${MAX_RENDERED_CHARS} characters`,
+    );
   }
   if (LONE_SURROGATE.test(output)) {
     throw new TemplateError(fileName, null, "the rendered text contains a lone UTF-16 surrogate");
@@ -364,7 +388,10 @@ export const argumentLabel = (index: number) => `argument ${index + 1}`;
  * Renders every input file and every argument. An argument that renders to an empty string is left
  * out, so `{% if verbose %}--verbose{% endif %}` adds a flag only when asked for.
  */
-export function renderCodeFiles(definition: CodeDefinition, parameters: Record<string, unknown>): RenderedCode {
+export function renderCodeFiles(
+  definition: CodeDefinition,
+  parameters: Record<string, unknown>,
+): RenderedCode {
   const files = definition.inputTemplates.map((input) => ({
     fileName: input.fileName,
     content: renderTemplate(

@@ -8,7 +8,14 @@ import {
 } from "../../shared/schemas/execution/codes";
 import { requirePrincipal } from "../auth/principal";
 import { parseBody, parseParams, shape } from "../http/validate";
-import { createCode, deleteCode, exportCodes, getCode, importCodes, listCodes } from "../services/codes.service";
+import {
+  createCode,
+  deleteCode,
+  exportCodes,
+  getCode,
+  importCodes,
+  listCodes,
+} from "../services/codes.service";
 import { clientIp, type RouteContext } from "./context";
 
 const groupParams = z.object({ groupId: z.uuid({ error: "groupId must be a UUID" }) });
@@ -27,7 +34,9 @@ export function codeRoutes({ db }: RouteContext): Router {
     const principal = requirePrincipal(req);
     const { groupId } = parseParams(groupParams, req);
     const definition = parseBody(codeDefinitionSchema, req);
-    res.status(201).json(shape(codeSchema, await createCode(db, principal, groupId, definition, clientIp(req))));
+    res
+      .status(201)
+      .json(shape(codeSchema, await createCode(db, principal, groupId, definition, clientIp(req))));
   });
 
   router.get("/groups/:groupId/codes/export", async (req, res) => {

@@ -43,7 +43,9 @@ export function hostRoutes(ctx: RouteContext, hostDeps: HostDeps): Router {
     const principal = requirePrincipal(req);
     const { groupId } = parseParams(groupParams, req);
     const input = parseBody(createHostRequestSchema, req);
-    res.status(201).json(shape(hostSchema, await createHost(hostDeps, principal, groupId, input, clientIp(req))));
+    res
+      .status(201)
+      .json(shape(hostSchema, await createHost(hostDeps, principal, groupId, input, clientIp(req))));
   });
 
   router.get("/hosts/:hostId", async (req, res) => {
@@ -89,7 +91,13 @@ export function hostRoutes(ctx: RouteContext, hostDeps: HostDeps): Router {
     const principal = requirePrincipal(req);
     const { hostId } = parseParams(hostParams, req);
     const input = parseBody(createHostAccountRequestSchema, req);
-    const account = await createHostAccount({ db, config: ctx.config }, principal, hostId, input, clientIp(req));
+    const account = await createHostAccount(
+      { db, config: ctx.config },
+      principal,
+      hostId,
+      input,
+      clientIp(req),
+    );
     res.status(201).json(shape(hostAccountSchema, account));
   });
 

@@ -26,7 +26,9 @@ export function recipeRoutes({ db }: RouteContext): Router {
     const principal = requirePrincipal(req);
     const { groupId } = parseParams(groupParams, req);
     const input = parseBody(createRecipeRequestSchema, req);
-    res.status(201).json(shape(recipeSchema, await createRecipe(db, principal, groupId, input, clientIp(req))));
+    res
+      .status(201)
+      .json(shape(recipeSchema, await createRecipe(db, principal, groupId, input, clientIp(req))));
   });
 
   router.get("/recipes/:recipeId", async (req, res) => {

@@ -53,7 +53,11 @@ async function ledgerTotals(db: DbExecutor, allocationIds: string[]): Promise<Ma
   return new Map(
     rows.map((row) => [
       row.allocationId,
-      { reserveSeconds: Number(row.reserve), releaseSeconds: Number(row.release), chargeSeconds: Number(row.charge) },
+      {
+        reserveSeconds: Number(row.reserve),
+        releaseSeconds: Number(row.release),
+        chargeSeconds: Number(row.charge),
+      },
     ]),
   );
 }
@@ -73,7 +77,11 @@ function toAllocation(row: AllocationRow, totals: LedgerTotals): Allocation {
   };
 }
 
-export async function listAllocations(db: Database, principal: Principal, groupId: string): Promise<Allocation[]> {
+export async function listAllocations(
+  db: Database,
+  principal: Principal,
+  groupId: string,
+): Promise<Allocation[]> {
   await requireGroupRole(db, principal, groupId, "collaborator");
   const rows = await db
     .select()
@@ -110,7 +118,11 @@ export async function createAllocation(
       .select({ name: allocations.name, startsAt: allocations.startsAt, endsAt: allocations.endsAt })
       .from(allocations)
       .where(
-        and(eq(allocations.groupId, groupId), lt(allocations.startsAt, endsAt), gt(allocations.endsAt, startsAt)),
+        and(
+          eq(allocations.groupId, groupId),
+          lt(allocations.startsAt, endsAt),
+          gt(allocations.endsAt, startsAt),
+        ),
       )
       .limit(1);
     if (overlapping) {
@@ -121,7 +133,14 @@ export async function createAllocation(
     }
     const [row] = await tx
       .insert(allocations)
-      .values({ groupId, name: input.name, grantedCoreSeconds, startsAt, endsAt, createdBy: principal.userId })
+      .values({
+        groupId,
+        name: input.name,
+        grantedCoreSeconds,
+        startsAt,
+        endsAt,
+        createdBy: principal.userId,
+      })
       .returning();
     await recordAudit(tx, {
       actorUserId: principal.userId,
@@ -175,7 +194,11 @@ export async function allocationLedger(
  * For run creation, inside its transaction: the allocation covering `at`, locked FOR UPDATE so that
  * concurrent reservations against it are serialised (read the balance after this, then reserve).
  */
-export async function activeAllocation(tx: DbExecutor, groupId: string, at: Date): Promise<AllocationRow | null> {
+export async function activeAllocation(
+  tx: DbExecutor,
+  groupId: string,
+  at: Date,
+): Promise<AllocationRow | null> {
   const [row] = await tx
     .select()
     .from(allocations)

@@ -6,11 +6,11 @@
 import { and, asc, eq, inArray, sql } from "drizzle-orm";
 import type { Code, CodeDefinition } from "../../shared/schemas/execution/codes";
 import { codeDefinitionSchema } from "../../shared/schemas/execution/codes";
-import { compileParameterSchema, ParameterSchemaError } from "../execution/parameters";
-import { checkCodeTemplates } from "../execution/templates";
 import type { Principal } from "../auth/principal";
 import type { Database } from "../db/client";
 import { codes, recipes } from "../db/schema";
+import { compileParameterSchema, ParameterSchemaError } from "../execution/parameters";
+import { checkCodeTemplates } from "../execution/templates";
 import { AppError, conflict, notFound } from "../http/errors";
 import { requireGroupRole } from "./access";
 import { recordAudit } from "./audit.service";
@@ -71,7 +71,12 @@ export async function listCodes(db: Database, principal: Principal, groupId: str
   return rows.map(toCode);
 }
 
-async function codeForCaller(db: Database, principal: Principal, codeId: string, minimum: "collaborator" | "admin") {
+async function codeForCaller(
+  db: Database,
+  principal: Principal,
+  codeId: string,
+  minimum: "collaborator" | "admin",
+) {
   const [row] = await db.select().from(codes).where(eq(codes.id, codeId));
   if (!row) throw notFound("Code");
   await requireRoleFor(db, principal, row.groupId, minimum, "Code");
@@ -182,8 +187,11 @@ export async function importCodes(
   if (problems.length > 0) throw invalidDefinition(problems);
 
   const counts = new Map<string, number>();
-  for (const definition of document.codes) counts.set(key(definition), (counts.get(key(definition)) ?? 0) + 1);
-  const repeated = document.codes.filter((d, i, all) => counts.get(key(d))! > 1 && all.findIndex((o) => key(o) === key(d)) === i);
+  for (const definition of document.codes)
+    counts.set(key(definition), (counts.get(key(definition)) ?? 0) + 1);
+  const repeated = document.codes.filter(
+    (d, i, all) => counts.get(key(d))! > 1 && all.findIndex((o) => key(o) === key(d)) === i,
+  );
   if (repeated.length > 0) {
     throw conflict(
       `The document lists the same name and version more than once: ${repeated.map(key).join(", ")}.`,

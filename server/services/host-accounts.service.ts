@@ -79,7 +79,9 @@ export async function createHostAccount(
         .where(
           and(
             eq(hostAccounts.hostId, hostId),
-            ownerUserId === null ? isNull(hostAccounts.ownerUserId) : eq(hostAccounts.ownerUserId, ownerUserId),
+            ownerUserId === null
+              ? isNull(hostAccounts.ownerUserId)
+              : eq(hostAccounts.ownerUserId, ownerUserId),
           ),
         );
       if (existing) throw alreadyThere();

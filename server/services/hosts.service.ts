@@ -4,9 +4,9 @@
  * worker connects only after an admin has compared the fingerprint and confirmed it.
  */
 import { and, asc, eq, sql } from "drizzle-orm";
-import type { GroupRole } from "../../shared/schemas/groups";
 import type { Host } from "../../shared/schemas/execution/hosts";
 import type { PatchHostRequest } from "../../shared/schemas/execution/hosts-extra";
+import type { GroupRole } from "../../shared/schemas/groups";
 import type { HostKey } from "../../worker/ssh/host-key";
 import type { Principal } from "../auth/principal";
 import type { Database, DbExecutor } from "../db/client";
@@ -178,7 +178,9 @@ export async function updateHost(
   const { db } = deps;
   const { host } = await hostForCaller(db, principal, hostId, "admin");
   const changes = Object.fromEntries(
-    Object.entries(input).filter(([key, value]) => value !== undefined && value !== host[key as keyof HostRow]),
+    Object.entries(input).filter(
+      ([key, value]) => value !== undefined && value !== host[key as keyof HostRow],
+    ),
   ) as PatchHostRequest;
   if (Object.keys(changes).length === 0) return toHost(host);
   const endpointChanged = changes.address !== undefined || changes.port !== undefined;

@@ -16,6 +16,7 @@ import {
   primaryKey,
   text,
   timestamp,
+  unique,
   uniqueIndex,
   uuid,
   varchar,
@@ -83,7 +84,8 @@ export const hostAccounts = pgTable(
     createdAt: createdAt(),
   },
   (t) => [
-    uniqueIndex("host_accounts_owner_key").on(t.hostId, t.ownerUserId),
+    // One personal account per person and one group account (owner null) per host.
+    unique("host_accounts_owner_key").on(t.hostId, t.ownerUserId).nullsNotDistinct(),
     index("host_accounts_host_idx").on(t.hostId),
   ],
 );

@@ -1,0 +1,324 @@
+/**
+ * Every execution-catalogue route × every kind of caller gets exactly the status it should (the same six
+ * callers as authorization-matrix.test.ts). Rule being checked (Sigmaflow's access policy): deny by
+ * default; a group one does not belong to is a 404, also when reached through a host, code, recipe or
+ * allocation id; a role too low is a 403; site admins may do everything.
+ */
+import { randomBytes } from "node:crypto";
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { allocations, codes, hostAccounts, hosts, recipes } from "../../server/db/schema";
+import { minimalCode, startTestCluster, type TestCluster } from "./support/catalogue-app";
+import { addMember, createGroup, createUser, tokenFor } from "./support/people";
+import { startTestApp } from "./support/test-app";
+import { createTestDatabase, type TestDatabase } from "./support/test-database";
+
+const CALLERS = [
+  "anonymous",
+  "collaborator",
+  "member",
+  "otherGroupAdmin",
+  "groupAdmin",
+  "siteAdmin",
+] as const;
+type Caller = (typeof CALLERS)[number];
+type Expected = Record<Caller, number>;
+
+let database: TestDatabase;
+let app: Awaited<ReturnType<typeof startTestApp>>;
+let cluster: TestCluster;
+const tokens = new Map<Caller, string>();
+let groupId = "";
+let groupAdminId = "";
+let hostId = "";
+let codeId = "";
+let recipeId = "";
+let allocationId = "";
+let yearOffset = 0;
+
+const suffix = () => randomBytes(3).toString("hex");
+
+async function freshHost(): Promise<string> {
+  const [row] = await database.db
+    .insert(hosts)
+    .values({
+      groupId,
+      name: `host-${suffix()}`,
+      address: "127.0.0.1",
+      port: cluster.port,
+      scheduler: "direct",
+      remoteBaseDir: "/scratch",
+      hostKey: cluster.hostPublicKey,
+      hostKeyFingerprint: cluster.hostKeyFingerprint,
+    })
+    .returning();
+  return row!.id;
+}
+
+async function freshGroupAccount(): Promise<string> {
+  const [row] = await database.db
+    .insert(hostAccounts)
+    .values({
+      hostId: await freshHost(),
+      ownerUserId: null,
+      username: "shared",
+      publicKey: "ssh-ed25519 AAAA",
+      privateKeyEncrypted: Buffer.from("unused"),
+    })
+    .returning();
+  return row!.id;
+}
+
+async function freshCode(): Promise<string> {
+  const definition = minimalCode();
+  const [row] = await database.db
+    .insert(codes)
+    .values({ groupId, name: definition.name, version: definition.version, definition })
+    .returning();
+  return row!.id;
+}
+
+async function freshRecipe(): Promise<string> {
+  const [row] = await database.db
+    .insert(recipes)
+    .values({
+      groupId,
+      name: `recipe-${suffix()}`,
+      stages: [{ name: "one", codeId }],
+      createdBy: groupAdminId,
+    })
+    .returning();
+  return row!.id;
+}
+
+/** A one-day period no earlier call has used, so allocations never overlap. */
+function freshPeriod() {
+  yearOffset += 1;
+  const year = 2100 + yearOffset;
+  return { startsAt: `${year}-01-01T00:00:00Z`, endsAt: `${year}-01-02T00:00:00Z` };
+}
+
+type Case = {
+  name: string;
+  method: "GET" | "POST" | "PATCH" | "DELETE";
+  path: () => Promise<string> | string;
+  body?: () => unknown;
+  expected: Expected;
+};
+
+const groupRead = (status: number): Expected => ({
+  anonymous: 401,
+  collaborator: status,
+  member: status,
+  otherGroupAdmin: 404,
+  groupAdmin: status,
+  siteAdmin: status,
+});
+const groupWrite = (status: number): Expected => ({ ...groupRead(status), collaborator: 403 });
+const groupAdminOnly = (status: number): Expected => ({ ...groupWrite(status), member: 403 });
+
+const CASES: Case[] = [
+  { name: "list hosts", method: "GET", path: () => `/api/groups/${groupId}/hosts`, expected: groupRead(200) },
+  {
+    name: "register a host",
+    method: "POST",
+    path: () => `/api/groups/${groupId}/hosts`,
+    body: () => ({
+      name: `node-${suffix()}`,
+      address: "127.0.0.1",
+      port: cluster.port,
+      scheduler: "slurm",
+      remoteBaseDir: "/scratch",
+    }),
+    expected: groupAdminOnly(201),
+  },
+  { name: "read a host", method: "GET", path: () => `/api/hosts/${hostId}`, expected: groupRead(200) },
+  {
+    name: "change a host",
+    method: "PATCH",
+    path: () => `/api/hosts/${hostId}`,
+    body: () => ({ maxConcurrentRuns: 3 }),
+    expected: groupAdminOnly(200),
+  },
+  {
+    name: "refresh a host key",
+    method: "POST",
+    path: () => `/api/hosts/${hostId}/host-key/refresh`,
+    expected: groupAdminOnly(200),
+  },
+  {
+    name: "confirm a host key",
+    method: "POST",
+    path: () => `/api/hosts/${hostId}/host-key/confirm`,
+    body: () => ({ fingerprint: cluster.hostKeyFingerprint }),
+    expected: groupAdminOnly(200),
+  },
+  {
+    name: "delete a host",
+    method: "DELETE",
+    path: async () => `/api/hosts/${await freshHost()}`,
+    expected: groupAdminOnly(204),
+  },
+  {
+    name: "list host accounts",
+    method: "GET",
+    path: () => `/api/hosts/${hostId}/accounts`,
+    expected: groupRead(200),
+  },
+  {
+    name: "set up a personal account",
+    method: "POST",
+    path: async () => `/api/hosts/${await freshHost()}/accounts`,
+    body: () => ({ kind: "personal", username: "researcher" }),
+    expected: groupWrite(201),
+  },
+  {
+    name: "set up the group account",
+    method: "POST",
+    path: async () => `/api/hosts/${await freshHost()}/accounts`,
+    body: () => ({ kind: "group", username: "shared" }),
+    expected: groupAdminOnly(201),
+  },
+  {
+    name: "delete the group account",
+    method: "DELETE",
+    path: async () => `/api/host-accounts/${await freshGroupAccount()}`,
+    expected: groupAdminOnly(204),
+  },
+  { name: "list codes", method: "GET", path: () => `/api/groups/${groupId}/codes`, expected: groupRead(200) },
+  {
+    name: "register a code",
+    method: "POST",
+    path: () => `/api/groups/${groupId}/codes`,
+    body: () => minimalCode(),
+    expected: groupWrite(201),
+  },
+  { name: "read a code", method: "GET", path: () => `/api/codes/${codeId}`, expected: groupRead(200) },
+  {
+    name: "delete a code",
+    method: "DELETE",
+    path: async () => `/api/codes/${await freshCode()}`,
+    expected: groupAdminOnly(204),
+  },
+  {
+    name: "export codes",
+    method: "GET",
+    path: () => `/api/groups/${groupId}/codes/export`,
+    expected: groupRead(200),
+  },
+  {
+    name: "import codes",
+    method: "POST",
+    path: () => `/api/groups/${groupId}/codes/import`,
+    body: () => ({ format: "sigmaflow-code-definitions", version: 1, codes: [minimalCode()] }),
+    expected: groupWrite(201),
+  },
+  {
+    name: "list recipes",
+    method: "GET",
+    path: () => `/api/groups/${groupId}/recipes`,
+    expected: groupRead(200),
+  },
+  {
+    name: "create a recipe",
+    method: "POST",
+    path: () => `/api/groups/${groupId}/recipes`,
+    body: () => ({ name: `recipe-${suffix()}`, stages: [{ name: "one", codeId }] }),
+    expected: groupWrite(201),
+  },
+  { name: "read a recipe", method: "GET", path: () => `/api/recipes/${recipeId}`, expected: groupRead(200) },
+  {
+    name: "delete someone else's recipe",
+    method: "DELETE",
+    path: async () => `/api/recipes/${await freshRecipe()}`,
+    expected: groupAdminOnly(204),
+  },
+  {
+    name: "list allocations",
+    method: "GET",
+    path: () => `/api/groups/${groupId}/allocations`,
+    expected: groupRead(200),
+  },
+  {
+    name: "create an allocation",
+    method: "POST",
+    path: () => `/api/groups/${groupId}/allocations`,
+    body: () => ({ name: `grant ${suffix()}`, coreHours: 10, ...freshPeriod() }),
+    expected: groupAdminOnly(201),
+  },
+  {
+    name: "read an allocation's ledger",
+    method: "GET",
+    path: () => `/api/allocations/${allocationId}/ledger`,
+    expected: groupRead(200),
+  },
+];
+
+beforeAll(async () => {
+  database = await createTestDatabase("authz_exec");
+  app = await startTestApp(database);
+  cluster = await startTestCluster();
+  const db = database.db;
+  const group = await createGroup(db, "target");
+  const other = await createGroup(db, "other");
+  groupId = group.id;
+  const collaborator = await createUser(db, "collaborator");
+  const member = await createUser(db, "member");
+  const groupAdmin = await createUser(db, "group-admin");
+  const otherAdmin = await createUser(db, "other-admin");
+  const siteAdmin = await createUser(db, "site-admin", { siteAdmin: true });
+  groupAdminId = groupAdmin.id;
+  await addMember(db, collaborator.id, group.id, "collaborator");
+  await addMember(db, member.id, group.id, "member");
+  await addMember(db, groupAdmin.id, group.id, "admin");
+  await addMember(db, otherAdmin.id, other.id, "admin");
+  tokens.set("collaborator", await tokenFor(db, collaborator));
+  tokens.set("member", await tokenFor(db, member));
+  tokens.set("groupAdmin", await tokenFor(db, groupAdmin));
+  tokens.set("otherGroupAdmin", await tokenFor(db, otherAdmin));
+  tokens.set("siteAdmin", await tokenFor(db, siteAdmin));
+  hostId = await freshHost();
+  codeId = await freshCode();
+  recipeId = await freshRecipe();
+  const [allocation] = await db
+    .insert(allocations)
+    .values({
+      groupId,
+      name: "standing grant",
+      grantedCoreSeconds: 3600,
+      startsAt: new Date("2000-01-01T00:00:00Z"),
+      endsAt: new Date("2000-12-31T00:00:00Z"),
+    })
+    .returning();
+  allocationId = allocation!.id;
+});
+
+afterAll(async () => {
+  await cluster?.stop();
+  await app?.close();
+  await database?.drop();
+});
+
+describe("authorization matrix: execution catalogue", () => {
+  for (const testCase of CASES) {
+    for (const caller of CALLERS) {
+      it(`${testCase.method} ${testCase.name} as ${caller} → ${testCase.expected[caller]}`, async () => {
+        const headers: Record<string, string> = { "content-type": "application/json" };
+        const token = tokens.get(caller);
+        if (token) headers.authorization = `Bearer ${token}`;
+        const body = testCase.body?.();
+        const response = await fetch(`${app.baseUrl}${await testCase.path()}`, {
+          method: testCase.method,
+          headers,
+          body: body === undefined ? undefined : JSON.stringify(body),
+        });
+        const text = await response.text();
+        expect(response.status, text).toBe(testCase.expected[caller]);
+        if (response.status >= 400) {
+          expect(JSON.parse(text)).toMatchObject({
+            error: { code: expect.any(String), message: expect.any(String) },
+          });
+        }
+      });
+    }
+  }
+});

@@ -28,7 +28,14 @@ import { healthRoutes } from "./routes/health.routes";
 import { invitationRoutes } from "./routes/invitations.routes";
 import { runRoutes } from "./routes/runs.routes";
 
-export type AppDeps = { db: Database; pool: pg.Pool; boss: PgBoss; config: ServerConfig; mailer: Mailer; log: Logger };
+export type AppDeps = {
+  db: Database;
+  pool: pg.Pool;
+  boss: PgBoss;
+  config: ServerConfig;
+  mailer: Mailer;
+  log: Logger;
+};
 
 /** Request bodies are small JSON documents; anything bigger is refused before parsing. */
 export const JSON_BODY_LIMIT = "100kb";
@@ -65,7 +72,14 @@ export function createApp(deps: AppDeps) {
   api.use(bearerAuth(deps.db));
   api.use(csrfProtection);
 
-  const ctx: RouteContext = { db: deps.db, pool: deps.pool, boss: deps.boss, config, mailer: deps.mailer, log };
+  const ctx: RouteContext = {
+    db: deps.db,
+    pool: deps.pool,
+    boss: deps.boss,
+    config,
+    mailer: deps.mailer,
+    log,
+  };
   api.use(healthRoutes(ctx));
   api.use(authRoutes(ctx));
   api.use(groupRoutes(ctx));

@@ -22,7 +22,11 @@ const envSchema = z.object({
   SSH_MAX_CONNECTIONS_PER_TARGET: z.coerce.number().int().min(1).default(2),
   SSH_MAX_CHANNELS_PER_CONNECTION: z.coerce.number().int().min(1).default(8),
   /** Largest result file collected into the database. */
-  WORKER_MAX_ARTIFACT_BYTES: z.coerce.number().int().min(1).default(64 * 1024 * 1024),
+  WORKER_MAX_ARTIFACT_BYTES: z.coerce
+    .number()
+    .int()
+    .min(1)
+    .default(64 * 1024 * 1024),
   SMTP_HOST: z.string().default("127.0.0.1"),
   SMTP_PORT: z.coerce.number().int().default(5182),
   MAIL_FROM: z.string().default("Sigmaflow <no-reply@sigmaflow.local>"),
@@ -50,7 +54,10 @@ export function loadWorkerConfig(env: NodeJS.ProcessEnv = process.env) {
     backoffMaxMs: e.WORKER_BACKOFF_MAX_MS,
     hostUnreachableHoldMs: e.WORKER_HOST_UNREACHABLE_HOLD_MS,
     holdProbeIntervalMs: e.WORKER_HOLD_PROBE_INTERVAL_MS,
-    ssh: { maxConnectionsPerTarget: e.SSH_MAX_CONNECTIONS_PER_TARGET, maxChannelsPerConnection: e.SSH_MAX_CHANNELS_PER_CONNECTION },
+    ssh: {
+      maxConnectionsPerTarget: e.SSH_MAX_CONNECTIONS_PER_TARGET,
+      maxChannelsPerConnection: e.SSH_MAX_CHANNELS_PER_CONNECTION,
+    },
     maxArtifactBytes: e.WORKER_MAX_ARTIFACT_BYTES,
     smtp: { host: e.SMTP_HOST, port: e.SMTP_PORT, secure: false, auth: undefined, from: e.MAIL_FROM },
     logLevel: e.LOG_LEVEL,

@@ -6,14 +6,14 @@
  * so pg-boss retries the item once PostgreSQL is back.
  */
 import { and, eq, inArray, sql } from "drizzle-orm";
-import type { RunState } from "../shared/schemas/execution/runs";
 import { hosts, ledgerEntries, memberships, runs, users } from "../server/db/schema";
 import { transitionRun } from "../server/execution/run-transitions";
+import { RUN_STEP_QUEUES, type RunStepName } from "../server/queue/queues";
 import { recordAudit } from "../server/services/audit.service";
+import type { RunState } from "../shared/schemas/execution/runs";
 import type { WorkerContext } from "./context";
 import type { HostRow, RunRow } from "./run-runtime";
 import { HostKeyMismatchError, RemoteCommandError, RemotePathError, TransportError } from "./ssh/errors";
-import { RUN_STEP_QUEUES, type RunStepName } from "../server/queue/queues";
 
 /** Steps a held run repeats when it resumes; `poll` means the poller picks it up again. */
 export type HeldStep = RunStepName | "poll";
@@ -25,19 +25,43 @@ export function backoffMs(attempt: number, baseMs: number, maxMs: number, random
   return Math.round(ceiling / 2 + random() * (ceiling / 2));
 }
 
-export async function holdRun(ctx: WorkerContext, run: RunRow, step: HeldStep, message: string): Promise<void> {
+/** Unfinished states; a step's copy of the run may be older than the row, so both helpers re-read it. */
+const UNFINISHED: RunState[] = ["queued", "staging", "submitted", "running", "collecting", "held"];
+
+async function currentState(
+  tx: Parameters<Parameters<WorkerContext["db"]["transaction"]>[0]>[0],
+  runId: string,
+) {
+  const [row] = await tx
+    .select({ state: runs.state, heldFromState: runs.heldFromState })
+    .from(runs)
+    .where(eq(runs.id, runId))
+    .for("update");
+  return row ?? null;
+}
+
+export async function holdRun(
+  ctx: WorkerContext,
+  run: RunRow,
+  step: HeldStep,
+  message: string,
+): Promise<void> {
   await ctx.db.transaction(async (tx) => {
-    await transitionRun(tx, run.id, [run.state], "held", {
+    const now = await currentState(tx, run.id);
+    if (!now || now.state === "held" || !UNFINISHED.includes(now.state)) return;
+    await transitionRun(tx, run.id, [now.state], "held", {
       actor: worker,
       message,
-      set: { heldStep: step, heldFromState: run.state === "held" ? run.heldFromState : run.state },
+      set: { heldStep: step, heldFromState: now.state },
     });
   });
 }
 
 export async function failRun(ctx: WorkerContext, run: RunRow, message: string): Promise<void> {
   await ctx.db.transaction(async (tx) => {
-    const changed = await transitionRun(tx, run.id, [run.state], "failed", {
+    const now = await currentState(tx, run.id);
+    if (!now || !UNFINISHED.includes(now.state)) return;
+    const changed = await transitionRun(tx, run.id, [now.state], "failed", {
       actor: worker,
       message,
       set: { finishedAt: new Date(), chargedCoreSeconds: run.chargedCoreSeconds ?? 0 },
@@ -54,7 +78,11 @@ export async function failRun(ctx: WorkerContext, run: RunRow, message: string):
   });
 }
 
-async function tellAdminsAboutHostKey(ctx: WorkerContext, host: HostRow, error: HostKeyMismatchError): Promise<void> {
+async function tellAdminsAboutHostKey(
+  ctx: WorkerContext,
+  host: HostRow,
+  error: HostKeyMismatchError,
+): Promise<void> {
   const message = `${host.name} (${host.address}:${host.port}) presented host key ${error.actualFingerprint}, but ${error.expectedFingerprint} is pinned. Its runs are held. Check with the host's administrators, then refresh and confirm the key in Sigmaflow.`;
   const changed = await ctx.db
     .update(hosts)
@@ -77,7 +105,12 @@ async function tellAdminsAboutHostKey(ctx: WorkerContext, host: HostRow, error: 
     .where(and(eq(memberships.groupId, host.groupId), eq(memberships.role, "admin")));
   for (const admin of admins) {
     await ctx.mailer
-      .send({ to: admin.email, subject: `Sigmaflow: host key of ${host.name} changed`, text: message, html: `<p>${message}</p>` })
+      .send({
+        to: admin.email,
+        subject: `Sigmaflow: host key of ${host.name} changed`,
+        text: message,
+        html: `<p>${message}</p>`,
+      })
       .catch((mailError: unknown) => ctx.log.warn({ err: mailError }, "could not mail host-key warning"));
   }
 }
@@ -119,7 +152,11 @@ export async function guardStep(
   } catch (error) {
     if (error instanceof HostKeyMismatchError && host) {
       await tellAdminsAboutHostKey(ctx, host, error);
-      await holdHostRuns(ctx, host.id, `Held: the host key of ${host.name} changed (${error.actualFingerprint}).`);
+      await holdHostRuns(
+        ctx,
+        host.id,
+        `Held: the host key of ${host.name} changed (${error.actualFingerprint}).`,
+      );
       return;
     }
     if (error instanceof TransportError) {
@@ -129,9 +166,19 @@ export async function guardStep(
         return;
       }
       const delayMs = backoffMs(attempts, ctx.config.backoffBaseMs, ctx.config.backoffMaxMs);
-      await ctx.db.update(runs).set({ transportAttempts: attempts, nextRetryAt: new Date(Date.now() + delayMs) }).where(eq(runs.id, run.id));
-      await ctx.boss.send(RUN_STEP_QUEUES[step], { runId: run.id }, { startAfter: new Date(Date.now() + delayMs) });
-      ctx.log.warn({ runId: run.id, step, attempts, delayMs, err: error.message }, "transport trouble, retrying");
+      await ctx.db
+        .update(runs)
+        .set({ transportAttempts: attempts, nextRetryAt: new Date(Date.now() + delayMs) })
+        .where(eq(runs.id, run.id));
+      await ctx.boss.send(
+        RUN_STEP_QUEUES[step],
+        { runId: run.id },
+        { startAfter: new Date(Date.now() + delayMs) },
+      );
+      ctx.log.warn(
+        { runId: run.id, step, attempts, delayMs, err: error.message },
+        "transport trouble, retrying",
+      );
       return;
     }
     if (error instanceof RemoteCommandError || error instanceof RemotePathError) {

@@ -33,14 +33,24 @@ export async function startWorker(config = loadWorkerConfig()) {
   } as const;
   for (const [queue, handler] of Object.entries(handlers)) {
     for (let i = 0; i < config.concurrency; i += 1) {
-      await boss.work(queue, { batchSize: 4, pollingIntervalSeconds: config.queuePollSeconds }, async (jobs) => {
-        await Promise.all(
-          jobs.map(async (job) => {
-            const { runId } = runStepPayloadSchema.parse(job.data);
-            await handler(ctx, runId);
-          }),
-        );
-      });
+      await boss.work(
+        queue,
+        { batchSize: 4, pollingIntervalSeconds: config.queuePollSeconds },
+        async (jobs) => {
+          await Promise.all(
+            jobs.map(async (job) => {
+              const { runId } = runStepPayloadSchema.parse(job.data);
+              try {
+                await handler(ctx, runId);
+              } catch (error) {
+                // pg-boss retries the item; the log says why it had to.
+                log.error({ err: error, runId, queue }, "run step failed; the queue will retry it");
+                throw error;
+              }
+            }),
+          );
+        },
+      );
     }
   }
 

@@ -10,8 +10,8 @@ import { transitionRun } from "../server/execution/run-transitions";
 import { RUN_STEP_QUEUES } from "../server/queue/queues";
 import type { RunState } from "../shared/schemas/execution/runs";
 import type { WorkerContext } from "./context";
-import { groupBy } from "./group-by";
 import type { HeldStep } from "./failures";
+import { groupBy } from "./group-by";
 import { sessionFor } from "./run-runtime";
 import { markHost, pollHost } from "./steps/poll";
 
@@ -28,7 +28,10 @@ export async function pollAllHosts(ctx: WorkerContext): Promise<void> {
       const client = await ctx.pool.connect();
       const lockKey = `poll:${hostId}`;
       try {
-        const { rows: lock } = await client.query("select pg_try_advisory_lock(hashtextextended($1, 0)) as ok", [lockKey]);
+        const { rows: lock } = await client.query(
+          "select pg_try_advisory_lock(hashtextextended($1, 0)) as ok",
+          [lockKey],
+        );
         if (!lock[0]?.ok) return;
         try {
           await pollHost(ctx, hostId);
@@ -50,7 +53,9 @@ export async function resumeHeldRuns(ctx: WorkerContext): Promise<number> {
     .select({ run: runs, host: hosts })
     .from(runs)
     .innerJoin(hosts, eq(hosts.id, runs.hostId))
-    .where(and(eq(runs.state, "held"), sql`${hosts.status} <> 'key_mismatch'`, isNotNull(runs.heldFromState)));
+    .where(
+      and(eq(runs.state, "held"), sql`${hosts.status} <> 'key_mismatch'`, isNotNull(runs.heldFromState)),
+    );
   const byHost = groupBy(held, (row) => row.host.id);
   let resumed = 0;
   for (const rows of byHost.values()) {
@@ -94,7 +99,8 @@ export async function reconcileRunsInFlight(ctx: WorkerContext): Promise<number>
     .from(runs)
     .where(inArray(runs.state, ["queued", "staging", "collecting", "submitted", "running"]));
   for (const run of inFlight) {
-    if (run.state === "queued" || run.state === "staging") await ctx.boss.send(RUN_STEP_QUEUES.stage, { runId: run.id });
+    if (run.state === "queued" || run.state === "staging")
+      await ctx.boss.send(RUN_STEP_QUEUES.stage, { runId: run.id });
     if (run.state === "collecting") await ctx.boss.send(RUN_STEP_QUEUES.collect, { runId: run.id });
     if (run.cancelRequestedAt && (run.state === "submitted" || run.state === "running")) {
       await ctx.boss.send(RUN_STEP_QUEUES.cancel, { runId: run.id });
@@ -104,7 +110,11 @@ export async function reconcileRunsInFlight(ctx: WorkerContext): Promise<number>
 }
 
 /** Repeats `fn` every `intervalMs` (never overlapping itself) until the returned stop is called. */
-export function every(intervalMs: number, fn: () => Promise<unknown>, onError: (error: unknown) => void): () => Promise<void> {
+export function every(
+  intervalMs: number,
+  fn: () => Promise<unknown>,
+  onError: (error: unknown) => void,
+): () => Promise<void> {
   let stopped = false;
   let current: Promise<unknown> = Promise.resolve();
   let timer: NodeJS.Timeout | undefined;

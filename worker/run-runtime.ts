@@ -37,7 +37,11 @@ export async function loadHost(ctx: WorkerContext, hostId: string): Promise<Host
   return host;
 }
 
-export async function sessionFor(ctx: WorkerContext, host: HostRow, accountId: string): Promise<RemoteSession> {
+export async function sessionFor(
+  ctx: WorkerContext,
+  host: HostRow,
+  accountId: string,
+): Promise<RemoteSession> {
   if (!host.hostKey) throw new Error(`host ${host.name} has no pinned host key`);
   const account = await credentials(ctx, accountId);
   const target: SshTarget = {
@@ -56,7 +60,12 @@ export function planOf(run: RunRow): RunPlan {
 }
 
 export function jobRefOf(run: RunRow): JobRef {
-  return { runDir: run.remoteDir, token: run.submitToken, jobId: run.schedulerJobId, logName: planOf(run).logName };
+  return {
+    runDir: run.remoteDir,
+    token: run.submitToken,
+    jobId: run.schedulerJobId,
+    logName: planOf(run).logName,
+  };
 }
 
 export async function runtimeFor(ctx: WorkerContext, run: RunRow) {

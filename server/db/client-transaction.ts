@@ -10,7 +10,10 @@ import * as schema from "./schema";
  */
 export async function withClientTransaction<T>(
   pool: pg.Pool,
-  fn: (tx: { db: Database; executeSql: (text: string, values: unknown[]) => Promise<{ rows: unknown[] }> }) => Promise<T>,
+  fn: (tx: {
+    db: Database;
+    executeSql: (text: string, values: unknown[]) => Promise<{ rows: unknown[] }>;
+  }) => Promise<T>,
 ): Promise<T> {
   const client = await pool.connect();
   try {

@@ -6,7 +6,11 @@ import type { RunPlan } from "./run-plan";
 
 export type ParsedTiming = { stage: string; symmetry: string; elapsedMs: number };
 export type ParsedProgress = { stage: string; done?: number; total?: number; percent?: number };
-export type LogParseResult = { timings: ParsedTiming[]; progress: ParsedProgress | null; stage: string | null };
+export type LogParseResult = {
+  timings: ParsedTiming[];
+  progress: ParsedProgress | null;
+  stage: string | null;
+};
 
 const STAGE_MARKER = /^\[sigmaflow\] stage (\d+)\/(\d+) ([a-z][a-z0-9-]*): (start|exit)/;
 
@@ -49,7 +53,11 @@ export function parseLogLines(
       const groups = pattern.exec(line)?.groups;
       const seconds = groups ? Number(groups.seconds) : Number.NaN;
       if (groups?.symmetry && Number.isFinite(seconds)) {
-        timings.push({ stage: compiled.name, symmetry: groups.symmetry.slice(0, 32), elapsedMs: Math.round(seconds * 1000) });
+        timings.push({
+          stage: compiled.name,
+          symmetry: groups.symmetry.slice(0, 32),
+          elapsedMs: Math.round(seconds * 1000),
+        });
       }
     }
     for (const pattern of compiled.progress) {
@@ -57,7 +65,12 @@ export function parseLogLines(
       if (!groups) continue;
       const done = Number(groups.done);
       const total = Number(groups.total);
-      const percent = groups.percent !== undefined ? Number(groups.percent) : done && total ? (100 * done) / total : Number.NaN;
+      const percent =
+        groups.percent !== undefined
+          ? Number(groups.percent)
+          : done && total
+            ? (100 * done) / total
+            : Number.NaN;
       if (Number.isFinite(percent)) {
         progress = { stage: compiled.name, percent: Math.min(100, Math.max(0, percent)) };
         if (Number.isFinite(done)) progress.done = done;

@@ -44,6 +44,10 @@ export async function transitionRun(
 }
 
 /** Tells listening servers that something about the run changed (delivered at commit). */
-export async function notifyRun(db: DbExecutor, runId: string, payload: Record<string, unknown>): Promise<void> {
+export async function notifyRun(
+  db: DbExecutor,
+  runId: string,
+  payload: Record<string, unknown>,
+): Promise<void> {
   await db.execute(sql`select pg_notify(${RUN_NOTIFY_CHANNEL}, ${JSON.stringify({ runId, ...payload })})`);
 }

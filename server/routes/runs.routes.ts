@@ -12,7 +12,15 @@ import {
 import { requirePrincipal } from "../auth/principal";
 import { validationError } from "../http/errors";
 import { parseBody, parseParams, shape } from "../http/validate";
-import { cancelRun, createRun, getRunDetail, listRuns, readArtifact, readRunLog, resubmitRun } from "../services/runs.service";
+import {
+  cancelRun,
+  createRun,
+  getRunDetail,
+  listRuns,
+  readArtifact,
+  readRunLog,
+  resubmitRun,
+} from "../services/runs.service";
 import { clientIp, type RouteContext } from "./context";
 
 const groupParams = z.object({ groupId: z.uuid({ error: "groupId must be a UUID" }) });
@@ -82,7 +90,9 @@ export function runRoutes(ctx: RouteContext): Router {
     const principal = requirePrincipal(req);
     const { runId } = parseParams(runParams, req);
     const input = parseBody(resubmitRunRequestSchema, req);
-    res.status(201).json(shape(runSummarySchema, await resubmitRun(deps(), principal, runId, input, clientIp(req))));
+    res
+      .status(201)
+      .json(shape(runSummarySchema, await resubmitRun(deps(), principal, runId, input, clientIp(req))));
   });
 
   return router;

@@ -4,8 +4,8 @@
  */
 import { randomBytes } from "node:crypto";
 import { and, desc, eq, gt, inArray } from "drizzle-orm";
+import type pg from "pg";
 import type PgBoss from "pg-boss";
-import type { CodeDefinition } from "../../shared/schemas/execution/codes";
 import {
   type CreateRunRequest,
   codeDefinitionSchema,
@@ -16,16 +16,27 @@ import {
   type RunSummary,
   runSpecSchema,
 } from "../../shared/schemas/execution";
+import type { CodeDefinition } from "../../shared/schemas/execution/codes";
 import type { Principal } from "../auth/principal";
 import type { Database } from "../db/client";
 import { withClientTransaction } from "../db/client-transaction";
-import { codes, hosts, ledgerEntries, recipes, runArtifacts, runEvents, runLogChunks, runs, runTimings, users } from "../db/schema";
-import { buildRunPlan, runFingerprint, type StageInput } from "../execution/run-plan";
+import {
+  codes,
+  hosts,
+  ledgerEntries,
+  recipes,
+  runArtifacts,
+  runEvents,
+  runLogChunks,
+  runs,
+  runTimings,
+  users,
+} from "../db/schema";
 import { validateParameters } from "../execution/parameters";
+import { buildRunPlan, runFingerprint, type StageInput } from "../execution/run-plan";
 import { transitionRun } from "../execution/run-transitions";
 import { AppError, conflict, forbidden, notFound } from "../http/errors";
 import { RUN_STEP_QUEUES } from "../queue/queues";
-import type pg from "pg";
 import { requireGroupRole } from "./access";
 import { activeAllocation, availableCoreSeconds } from "./allocations.service";
 import { recordAudit } from "./audit.service";
@@ -45,25 +56,50 @@ async function loadStages(db: Database, groupId: string, spec: RunSpec): Promise
     .select()
     .from(recipes)
     .where(and(eq(recipes.id, spec.recipeId), eq(recipes.groupId, groupId)));
-  if (!recipe) throw new AppError(422, "validation_failed", "The recipe does not exist in this group.", [{ path: "spec.recipeId", message: "Unknown recipe." }]);
+  if (!recipe)
+    throw new AppError(422, "validation_failed", "The recipe does not exist in this group.", [
+      { path: "spec.recipeId", message: "Unknown recipe." },
+    ]);
   const stages = recipe.stages as { name: string; codeId: string }[];
   const codeRows = await db
     .select()
     .from(codes)
-    .where(and(eq(codes.groupId, groupId), inArray(codes.id, stages.map((s) => s.codeId))));
-  const byId = new Map(codeRows.map((row) => [row.id, codeDefinitionSchema.parse(row.definition) as CodeDefinition]));
+    .where(
+      and(
+        eq(codes.groupId, groupId),
+        inArray(
+          codes.id,
+          stages.map((s) => s.codeId),
+        ),
+      ),
+    );
+  const byId = new Map(
+    codeRows.map((row) => [row.id, codeDefinitionSchema.parse(row.definition) as CodeDefinition]),
+  );
   const unknownStages = Object.keys(spec.parameters).filter((name) => !stages.some((s) => s.name === name));
   if (unknownStages.length > 0) {
-    throw new AppError(422, "validation_failed", `The recipe has no stage named ${unknownStages.join(", ")}.`, unknownStages.map((name) => ({ path: `spec.parameters.${name}`, message: "No such stage in the recipe." })));
+    throw new AppError(
+      422,
+      "validation_failed",
+      `The recipe has no stage named ${unknownStages.join(", ")}.`,
+      unknownStages.map((name) => ({
+        path: `spec.parameters.${name}`,
+        message: "No such stage in the recipe.",
+      })),
+    );
   }
   const problems: { path: string; message: string }[] = [];
   const inputs = stages.map((stage) => {
     const definition = byId.get(stage.codeId);
-    if (!definition) throw new AppError(422, "validation_failed", `The code of stage ${stage.name} was deleted.`);
+    if (!definition)
+      throw new AppError(422, "validation_failed", `The code of stage ${stage.name} was deleted.`);
     const check = validateParameters(definition, spec.parameters[stage.name] ?? {});
     if (!check.valid) {
       for (const issue of check.errors) {
-        problems.push({ path: `spec.parameters.${stage.name}${issue.path ? `.${issue.path}` : ""}`, message: issue.message });
+        problems.push({
+          path: `spec.parameters.${stage.name}${issue.path ? `.${issue.path}` : ""}`,
+          message: issue.message,
+        });
       }
       return { name: stage.name, codeId: stage.codeId, definition, parameters: {} };
     }
@@ -71,19 +107,38 @@ async function loadStages(db: Database, groupId: string, spec: RunSpec): Promise
     return { name: stage.name, codeId: stage.codeId, definition, parameters: check.parameters };
   });
   if (problems.length > 0) {
-    throw new AppError(422, "validation_failed", `The parameters do not fit the codes' declarations: ${problems[0]!.path}: ${problems[0]!.message}`, problems);
+    throw new AppError(
+      422,
+      "validation_failed",
+      `The parameters do not fit the codes' declarations: ${problems[0]!.path}: ${problems[0]!.message}`,
+      problems,
+    );
   }
   return inputs;
 }
 
 async function loadHost(db: Database, groupId: string, hostId: string) {
-  const [host] = await db.select().from(hosts).where(and(eq(hosts.id, hostId), eq(hosts.groupId, groupId)));
-  if (!host) throw new AppError(422, "validation_failed", "The host does not exist in this group.", [{ path: "spec.hostId", message: "Unknown host." }]);
+  const [host] = await db
+    .select()
+    .from(hosts)
+    .where(and(eq(hosts.id, hostId), eq(hosts.groupId, groupId)));
+  if (!host)
+    throw new AppError(422, "validation_failed", "The host does not exist in this group.", [
+      { path: "spec.hostId", message: "Unknown host." },
+    ]);
   if (!host.hostKeyConfirmedAt || !host.hostKey) {
-    throw new AppError(422, "host_not_confirmed", `An admin must confirm the host key of ${host.name} before runs can use it.`);
+    throw new AppError(
+      422,
+      "host_not_confirmed",
+      `An admin must confirm the host key of ${host.name} before runs can use it.`,
+    );
   }
   if (host.status === "key_mismatch") {
-    throw new AppError(422, "host_key_mismatch", `${host.name} presented a different host key; an admin must check it before runs can use it.`);
+    throw new AppError(
+      422,
+      "host_key_mismatch",
+      `${host.name} presented a different host key; an admin must check it before runs can use it.`,
+    );
   }
   return host;
 }
@@ -111,7 +166,11 @@ export async function createRun(
   const host = await loadHost(db, groupId, spec.hostId);
   const account = await chooseAccount(db, host.id, principal.userId);
   if (!account) {
-    throw new AppError(422, "no_host_account", `You have no account on ${host.name} and the group has none: add one under the host's accounts.`);
+    throw new AppError(
+      422,
+      "no_host_account",
+      `You have no account on ${host.name} and the group has none: add one under the host's accounts.`,
+    );
   }
   const inputs = await loadStages(db, groupId, spec);
   const runId = crypto.randomUUID();
@@ -124,17 +183,25 @@ export async function createRun(
   const fingerprint = runFingerprint(inputs, plan);
   const reusable = await findReusable(db, groupId, fingerprint);
   if (reusable && request.onDuplicate === "ask") {
-    throw conflict(`A finished run with identical inputs exists ("${reusable.name}"). Reuse its results or run anyway.`, {
-      reason: "reusable_result",
-      runId: reusable.id,
-    });
+    throw conflict(
+      `A finished run with identical inputs exists ("${reusable.name}"). Reuse its results or run anyway.`,
+      {
+        reason: "reusable_result",
+        runId: reusable.id,
+      },
+    );
   }
   const reuse = reusable && request.onDuplicate === "reuse" ? reusable : null;
   const reserveCoreSeconds = reuse ? 0 : spec.resources.cores * spec.resources.wallTimeMinutes * 60;
 
   await withClientTransaction(deps.pool, async ({ db: tx, executeSql }) => {
     const allocation = await activeAllocation(tx, groupId, new Date());
-    if (!allocation) throw new AppError(422, "no_allocation", "Your group has no allocation for the current period: ask a group admin.");
+    if (!allocation)
+      throw new AppError(
+        422,
+        "no_allocation",
+        "Your group has no allocation for the current period: ask a group admin.",
+      );
     const available = await availableCoreSeconds(tx, allocation.id);
     if (reserveCoreSeconds > available) {
       throw new AppError(
@@ -177,7 +244,9 @@ export async function createRun(
       message: reuse ? `Reused the results of run ${reuse.id}` : "Submitted",
     });
     if (!reuse) {
-      await tx.insert(ledgerEntries).values({ allocationId: allocation.id, runId, kind: "reserve", coreSeconds: reserveCoreSeconds });
+      await tx
+        .insert(ledgerEntries)
+        .values({ allocationId: allocation.id, runId, kind: "reserve", coreSeconds: reserveCoreSeconds });
       await deps.boss.send(RUN_STEP_QUEUES.stage, { runId }, { db: { executeSql: executeSql as never } });
     }
     await recordAudit(tx, {
@@ -186,7 +255,12 @@ export async function createRun(
       action: reuse ? "run.reuse" : "run.create",
       targetType: "run",
       targetId: runId,
-      details: { name: spec.name, fingerprint, reserveCoreSeconds, resubmittedFrom: extra.resubmittedFrom ?? null },
+      details: {
+        name: spec.name,
+        fingerprint,
+        reserveCoreSeconds,
+        resubmittedFrom: extra.resubmittedFrom ?? null,
+      },
       ip: extra.ip ?? null,
     });
   });
@@ -226,12 +300,21 @@ function toSummary(row: { run: typeof runs.$inferSelect; submittedBy: string | n
 }
 
 async function getRunSummary(db: Database, runId: string): Promise<RunSummary | null> {
-  const [row] = await db.select(summaryColumns).from(runs).leftJoin(users, eq(users.id, runs.submittedBy)).where(eq(runs.id, runId));
+  const [row] = await db
+    .select(summaryColumns)
+    .from(runs)
+    .leftJoin(users, eq(users.id, runs.submittedBy))
+    .where(eq(runs.id, runId));
   return row ? toSummary(row) : null;
 }
 
 /** Loads a run the caller may see (any role in its group), or 404. */
-async function visibleRun(db: Database, principal: Principal, runId: string, minimum: "collaborator" | "member") {
+async function visibleRun(
+  db: Database,
+  principal: Principal,
+  runId: string,
+  minimum: "collaborator" | "member",
+) {
   const [run] = await db.select().from(runs).where(eq(runs.id, runId));
   if (!run) throw notFound("Run");
   await requireGroupRole(db, principal, run.groupId, minimum).catch((error: unknown) => {
@@ -248,7 +331,9 @@ export async function listRuns(
   filters: { state?: RunState; limit: number },
 ): Promise<RunSummary[]> {
   await requireGroupRole(db, principal, groupId, "collaborator");
-  const where = filters.state ? and(eq(runs.groupId, groupId), eq(runs.state, filters.state)) : eq(runs.groupId, groupId);
+  const where = filters.state
+    ? and(eq(runs.groupId, groupId), eq(runs.state, filters.state))
+    : eq(runs.groupId, groupId);
   const rows = await db
     .select(summaryColumns)
     .from(runs)
@@ -266,16 +351,32 @@ export async function getRunDetail(db: Database, principal: Principal, runId: st
     getRunSummary(db, runId),
     db.select().from(runEvents).where(eq(runEvents.runId, runId)).orderBy(runEvents.id),
     db
-      .select({ id: runArtifacts.id, stage: runArtifacts.stage, name: runArtifacts.name, sizeBytes: runArtifacts.sizeBytes, sha256: runArtifacts.sha256 })
+      .select({
+        id: runArtifacts.id,
+        stage: runArtifacts.stage,
+        name: runArtifacts.name,
+        sizeBytes: runArtifacts.sizeBytes,
+        sha256: runArtifacts.sha256,
+      })
       .from(runArtifacts)
       .where(eq(runArtifacts.runId, artifactRunId))
       .orderBy(runArtifacts.stage, runArtifacts.name),
-    db.select().from(runTimings).where(eq(runTimings.runId, artifactRunId)).orderBy(runTimings.stage, runTimings.symmetry),
+    db
+      .select()
+      .from(runTimings)
+      .where(eq(runTimings.runId, artifactRunId))
+      .orderBy(runTimings.stage, runTimings.symmetry),
   ]);
   return {
     ...summary!,
     spec: runSpecSchema.parse(run.spec),
-    events: events.map((e) => ({ at: e.at.toISOString(), fromState: e.fromState, toState: e.toState, actor: e.actor, message: e.message })),
+    events: events.map((e) => ({
+      at: e.at.toISOString(),
+      fromState: e.fromState,
+      toState: e.toState,
+      actor: e.actor,
+      message: e.message,
+    })),
     artifacts,
     timings: timings.map((t) => ({ stage: t.stage, symmetry: t.symmetry, seconds: t.elapsedMs / 1000 })),
   };
@@ -298,30 +399,57 @@ const BEFORE_SCHEDULER: RunState[] = ["queued", "staging"];
  * Cancels a run. Before it reaches the scheduler it is cancelled at once and its reservation released;
  * afterwards the scheduler is asked to cancel and the run becomes `cancelled` when the scheduler confirms.
  */
-export async function cancelRun(deps: RunDeps, principal: Principal, runId: string, ip: string | null): Promise<RunSummary> {
+export async function cancelRun(
+  deps: RunDeps,
+  principal: Principal,
+  runId: string,
+  ip: string | null,
+): Promise<RunSummary> {
   const { db } = deps;
   const run = await visibleRun(db, principal, runId, "member");
   const role = await requireGroupRole(db, principal, run.groupId, "member");
   if (run.submittedBy !== principal.userId && role !== "admin" && !principal.isSiteAdmin) {
     throw forbidden("Only the person who submitted the run, or a group admin, can cancel it.");
   }
-  if ((FINAL_RUN_STATES as RunState[]).includes(run.state)) throw conflict(`The run is already ${run.state}.`);
+  if ((FINAL_RUN_STATES as RunState[]).includes(run.state))
+    throw conflict(`The run is already ${run.state}.`);
   await withClientTransaction(deps.pool, async ({ db: tx, executeSql }) => {
     const actor = { kind: "user" as const, userId: principal.userId };
     const beforeScheduler =
-      BEFORE_SCHEDULER.includes(run.state) || (run.state === "held" && BEFORE_SCHEDULER.includes(run.heldFromState ?? "queued"));
-    const stopped = beforeScheduler && await transitionRun(tx, runId, [run.state], "cancelled", {
-      actor,
-      message: "Cancelled before it reached the scheduler",
-      set: { cancelRequestedAt: new Date(), finishedAt: new Date(), chargedCoreSeconds: 0 },
-    });
+      BEFORE_SCHEDULER.includes(run.state) ||
+      (run.state === "held" && BEFORE_SCHEDULER.includes(run.heldFromState ?? "queued"));
+    const stopped =
+      beforeScheduler &&
+      (await transitionRun(tx, runId, [run.state], "cancelled", {
+        actor,
+        message: "Cancelled before it reached the scheduler",
+        set: { cancelRequestedAt: new Date(), finishedAt: new Date(), chargedCoreSeconds: 0 },
+      }));
     if (stopped) {
-      await tx.insert(ledgerEntries).values({ allocationId: run.allocationId, runId, kind: "release", coreSeconds: run.reservedCoreSeconds, note: "cancelled before start" });
+      await tx
+        .insert(ledgerEntries)
+        .values({
+          allocationId: run.allocationId,
+          runId,
+          kind: "release",
+          coreSeconds: run.reservedCoreSeconds,
+          note: "cancelled before start",
+        });
     } else {
-      await tx.update(runs).set({ cancelRequestedAt: new Date(), updatedAt: new Date() }).where(eq(runs.id, runId));
+      await tx
+        .update(runs)
+        .set({ cancelRequestedAt: new Date(), updatedAt: new Date() })
+        .where(eq(runs.id, runId));
       await deps.boss.send(RUN_STEP_QUEUES.cancel, { runId }, { db: { executeSql: executeSql as never } });
     }
-    await recordAudit(tx, { actorUserId: principal.userId, groupId: run.groupId, action: "run.cancel", targetType: "run", targetId: runId, ip });
+    await recordAudit(tx, {
+      actorUserId: principal.userId,
+      groupId: run.groupId,
+      action: "run.cancel",
+      targetType: "run",
+      targetId: runId,
+      ip,
+    });
   });
   return (await getRunSummary(db, runId))!;
 }
@@ -335,11 +463,27 @@ export async function resubmitRun(
 ): Promise<RunSummary> {
   const original = await visibleRun(deps.db, principal, runId, "member");
   const base = runSpecSchema.parse(original.spec);
-  const spec = runSpecSchema.parse({ ...base, ...request.changes, name: request.changes.name ?? `${base.name} (again)` });
-  return createRun(deps, principal, original.groupId, { spec, onDuplicate: request.onDuplicate }, { resubmittedFrom: runId, ip });
+  const spec = runSpecSchema.parse({
+    ...base,
+    ...request.changes,
+    name: request.changes.name ?? `${base.name} (again)`,
+  });
+  return createRun(
+    deps,
+    principal,
+    original.groupId,
+    { spec, onDuplicate: request.onDuplicate },
+    { resubmittedFrom: runId, ip },
+  );
 }
 
-export async function readRunLog(db: Database, principal: Principal, runId: string, afterSeq: number, limit = 500) {
+export async function readRunLog(
+  db: Database,
+  principal: Principal,
+  runId: string,
+  afterSeq: number,
+  limit = 500,
+) {
   await visibleRun(db, principal, runId, "collaborator");
   const chunks = await db
     .select({ seq: runLogChunks.seq, text: runLogChunks.text, at: runLogChunks.at })

@@ -36,7 +36,11 @@ export type ConnectionTimings = {
 /** What identifies the far end and our credentials: a target whose key keeps its name but changes these is a new target. */
 export function targetSignature(target: SshTarget): string {
   return createHash("sha256")
-    .update([target.address, String(target.port), target.username, target.pinnedHostKey, target.privateKey].join("\0"))
+    .update(
+      [target.address, String(target.port), target.username, target.pinnedHostKey, target.privateKey].join(
+        "\0",
+      ),
+    )
     .digest("hex");
 }
 
@@ -80,8 +84,12 @@ export class PooledConnection {
     // Permanent handlers: ssh2 emits "error" for socket resets and keepalive timeouts; an unhandled
     // "error" event would end the worker process.
     this.client.on("error", (error: Error) => this.die(this.hostKeyError ?? classifySshError(error)));
-    this.client.on("close", () => this.die(new TransportError("closed", `connection to ${this.describe()} closed`)));
-    this.client.on("end", () => this.die(new TransportError("closed", `connection to ${this.describe()} ended`)));
+    this.client.on("close", () =>
+      this.die(new TransportError("closed", `connection to ${this.describe()} closed`)),
+    );
+    this.client.on("end", () =>
+      this.die(new TransportError("closed", `connection to ${this.describe()} ended`)),
+    );
     try {
       this.client.connect({
         host: target.address,
@@ -94,10 +102,16 @@ export class PooledConnection {
         algorithms: { serverHostKey: hostKeyAlgorithmsFor(pinned.type) },
         hostVerifier: (presented: Buffer) => {
           if (presented.equals(pinned.blob)) return true;
-          this.hostKeyError = new HostKeyMismatchError(fingerprintOfBlob(pinned.blob), fingerprintOfBlob(presented));
+          this.hostKeyError = new HostKeyMismatchError(
+            fingerprintOfBlob(pinned.blob),
+            fingerprintOfBlob(presented),
+          );
           return false;
         },
       });
+      // Commands are request/response exchanges of small packets: without TCP_NODELAY, Nagle's algorithm
+      // holds a write behind the peer's delayed ACK (up to ~40 ms on Linux) on every exec.
+      this.client.setNoDelay(true);
     } catch (error) {
       // ssh2 throws synchronously for an unusable private key: a configuration fault, not a network one.
       const message = error instanceof Error ? error.message : String(error);

@@ -73,7 +73,9 @@ export class RemoteCommandError extends SshError {
     message?: string,
   ) {
     const stderrExcerpt = excerpt(stderr);
-    super(message ?? `remote command exited ${exitCode}: ${command}${stderrExcerpt ? ` — ${stderrExcerpt}` : ""}`);
+    super(
+      message ?? `remote command exited ${exitCode}: ${command}${stderrExcerpt ? ` — ${stderrExcerpt}` : ""}`,
+    );
     this.stderrExcerpt = stderrExcerpt;
   }
 }

@@ -13,7 +13,8 @@ export type HostKey = { publicKey: string; fingerprint: string };
 export function keyTypeOfBlob(blob: Buffer): string {
   if (blob.length < 4) throw new Error("SSH public key blob too short");
   const length = blob.readUInt32BE(0);
-  if (length === 0 || length > 64 || blob.length < 4 + length) throw new Error("malformed SSH public key blob");
+  if (length === 0 || length > 64 || blob.length < 4 + length)
+    throw new Error("malformed SSH public key blob");
   return blob.toString("latin1", 4, 4 + length);
 }
 
@@ -71,7 +72,9 @@ export function fetchHostKey(address: string, port: number, timeoutMs: number): 
     const client = new Client();
     let settled = false;
     const timer = setTimeout(() => {
-      settle(() => reject(new TransportError("timeout", `no host key from ${address}:${port} in ${timeoutMs} ms`)));
+      settle(() =>
+        reject(new TransportError("timeout", `no host key from ${address}:${port} in ${timeoutMs} ms`)),
+      );
     }, timeoutMs);
     function settle(action: () => void): void {
       if (settled) return;

@@ -6,9 +6,10 @@
  * channel holds one slot for as long as it is open.
  */
 import type { SFTPWrapper } from "ssh2";
+import { retryChannelOpen } from "./channel-retry";
 import { type ConnectionTimings, PooledConnection, type SshTarget, targetSignature } from "./connection";
 import { classifySshError, TransportError } from "./errors";
-import { RemoteSessionImpl, type RemoteSession } from "./session";
+import { type RemoteSession, RemoteSessionImpl } from "./session";
 
 export type { SshTarget } from "./connection";
 export type { RemoteSession } from "./session";
@@ -35,7 +36,12 @@ export type SshPoolStats = {
   connectionsOpened: number;
 };
 
-type TargetGroup = { key: string; signature: string; connections: PooledConnection[]; waiters: Array<() => void> };
+type TargetGroup = {
+  key: string;
+  signature: string;
+  connections: PooledConnection[];
+  waiters: Array<() => void>;
+};
 
 /** A lease on one exec channel slot; `release` is idempotent. */
 export type ChannelLease = { connection: PooledConnection; release: () => void };
@@ -108,7 +114,10 @@ export class SshPool {
    * Runs `operation` on an SFTP channel of the target, opening the channel on the least busy connection
    * that has none while other SFTP channels are busy (so parallel transfers spread over connections).
    */
-  async withSftp<T>(target: SshTarget, operation: (sftp: SFTPWrapper, connection: PooledConnection) => Promise<T>) {
+  async withSftp<T>(
+    target: SshTarget,
+    operation: (sftp: SFTPWrapper, connection: PooledConnection) => Promise<T>,
+  ) {
     const connection = await this.connectionForSftp(target);
     connection.sftpOperations += 1;
     this.cancelIdle(connection);
@@ -147,10 +156,13 @@ export class SshPool {
     for (;;) {
       if (this.closed) throw new TransportError("closed", "the SSH pool is closed");
       const group = this.group(target);
-      const candidates = this.usable(group).filter((connection) => connection.channelsInUse < this.maxChannels);
+      const candidates = this.usable(group).filter(
+        (connection) => connection.channelsInUse < this.maxChannels,
+      );
       const best = leastBy(candidates, load);
       const canOpen = group.connections.length < this.maxConnections;
-      const chosen = best && (!canOpen || load(best) === 0) ? best : canOpen ? this.open(target, group) : null;
+      const chosen =
+        best && (!canOpen || load(best) === 0) ? best : canOpen ? this.open(target, group) : null;
       if (chosen) {
         chosen.execChannels += 1;
         this.cancelIdle(chosen);
@@ -171,12 +183,15 @@ export class SshPool {
         (connection) => connection.sftpOperations,
       );
       const spare = leastBy(
-        usable.filter((connection) => connection.sftp === null && connection.channelsInUse < this.maxChannels),
+        usable.filter(
+          (connection) => connection.sftp === null && connection.channelsInUse < this.maxChannels,
+        ),
         load,
       );
       const canOpen = group.connections.length < this.maxConnections;
       if (best && (best.sftpOperations === 0 || (!canOpen && !spare))) return best;
-      const host = spare && (!canOpen || load(spare) === 0) ? spare : canOpen ? this.open(target, group) : spare;
+      const host =
+        spare && (!canOpen || load(spare) === 0) ? spare : canOpen ? this.open(target, group) : spare;
       if (host) {
         this.openSftp(host);
         this.cancelIdle(host);
@@ -190,16 +205,18 @@ export class SshPool {
 
   /** Starts the SFTP channel; its slot is taken now (connection.sftp is set synchronously). */
   private openSftp(connection: PooledConnection): void {
-    const opening = connection.ready.then(
-      () =>
-        new Promise<SFTPWrapper>((resolve, reject) => {
-          const untrack = connection.track(reject);
-          connection.client.sftp((error, sftp) => {
-            untrack();
-            if (error) reject(classifySshError(error));
-            else resolve(this.keepSftp(connection, opening, sftp));
-          });
-        }),
+    const opening: Promise<SFTPWrapper> = connection.ready.then(() =>
+      retryChannelOpen(
+        () =>
+          new Promise<SFTPWrapper>((resolve, reject) => {
+            const untrack = connection.track(reject);
+            connection.client.sftp((error, sftp) => {
+              untrack();
+              if (error) reject(classifySshError(error));
+              else resolve(this.keepSftp(connection, opening, sftp));
+            });
+          }),
+      ),
     );
     connection.sftp = opening;
     opening.catch(() => {
@@ -208,7 +225,11 @@ export class SshPool {
     });
   }
 
-  private keepSftp(connection: PooledConnection, opening: Promise<SFTPWrapper>, sftp: SFTPWrapper): SFTPWrapper {
+  private keepSftp(
+    connection: PooledConnection,
+    opening: Promise<SFTPWrapper>,
+    sftp: SFTPWrapper,
+  ): SFTPWrapper {
     const drop = () => {
       if (connection.sftp !== opening) return;
       connection.sftp = null;

@@ -3,12 +3,23 @@
  * the connection's persistent SFTP channel. A session is a cheap handle; connections belong to the pool.
  */
 import { constants as osConstants } from "node:os";
-import type { ClientChannel } from "ssh2";
+import type { ClientChannel, SFTPWrapper } from "ssh2";
+import { retryChannelOpen } from "./channel-retry";
 import type { SshTarget } from "./connection";
 import { classifySshError, RemoteCommandError, TransportError } from "./errors";
 import type { SshPool } from "./pool";
 import { commandLine } from "./quote";
-import { fastPut, type RemoteStat, readWhole, statPath, type WriteOptions, writeWhole } from "./sftp-ops";
+import {
+  chmodPath,
+  fastPut,
+  mkdirPath,
+  type RemoteStat,
+  readWhole,
+  realPath,
+  statPath,
+  type WriteOptions,
+  writeWhole,
+} from "./sftp-ops";
 
 export type ExecOptions = {
   stdin?: Buffer | string;
@@ -42,20 +53,34 @@ export interface RemoteSession {
   stat(remotePath: string): Promise<RemoteStat | null>;
   /** Does not follow a final link; null when nothing is at the path. */
   lstat(remotePath: string): Promise<RemoteStat | null>;
+  /** Creates one folder with `mode`; false when something already exists at the path. */
+  mkdir(remotePath: string, mode: number): Promise<boolean>;
+  chmod(remotePath: string, mode: number): Promise<void>;
+  /** The canonical absolute path with every symbolic link resolved; relative paths start at the login folder. */
+  realpath(remotePath: string): Promise<string>;
 }
 
 const DEFAULT_MAX_OUTPUT_BYTES = 64 * 1024 * 1024;
 
 /**
- * SFTP fastPut tuning for loopback and LAN links, measured with bench/ssh/staging.bench.ts: 64 KiB WRITE
- * requests with 32 in flight (a 2 MiB window, ssh2's channel window size). ssh2's defaults (32 KiB × 64)
- * spend more CPU per byte on request framing.
+ * SFTP fastPut tuning, measured with bench/ssh/staging.bench.ts on loopback: WRITE requests as large as
+ * the server accepts (OpenSSH announces 261120 bytes through limits@openssh.com; ssh2 assumes ~32 KB for
+ * others) with about 2 MiB in flight, ssh2's channel window. ssh2's own defaults (32 KiB × 64) spend
+ * noticeably more CPU per byte on request framing against OpenSSH.
  */
-export const PUT_DEFAULTS = { concurrency: 32, chunkSizeBytes: 64 * 1024 } as const;
+export const PUT_DEFAULTS = { chunkSizeBytes: 261_120, bytesInFlight: 2 * 1024 * 1024 } as const;
+
+/** ssh2 keeps the negotiated WRITE limit in a private field (pinned ssh2 1.17.0); 32 KB if it is absent. */
+function maxWriteBytes(sftp: SFTPWrapper): number {
+  const limit = (sftp as unknown as { _maxWriteLen?: unknown })._maxWriteLen;
+  return typeof limit === "number" && limit > 0 ? limit : 32 * 1024;
+}
 
 function exitCodeOf(code: number | null | undefined, signal: string | null): number {
   if (typeof code === "number") return code;
-  const signalNumber = signal ? (osConstants.signals as Record<string, number | undefined>)[`SIG${signal}`] : undefined;
+  const signalNumber = signal
+    ? (osConstants.signals as Record<string, number | undefined>)[`SIG${signal}`]
+    : undefined;
   return 128 + (signalNumber ?? 127);
 }
 
@@ -67,6 +92,10 @@ export class RemoteSessionImpl implements RemoteSession {
 
   async exec(argv: string[], options: ExecOptions = {}): Promise<ExecResult> {
     const command = commandLine(argv);
+    return retryChannelOpen(() => this.execOnce(command, options));
+  }
+
+  private async execOnce(command: string, options: ExecOptions): Promise<ExecResult> {
     const lease = await this.pool.leaseChannel(this.target);
     const { connection } = lease;
     const maxOutputBytes = options.maxOutputBytes ?? DEFAULT_MAX_OUTPUT_BYTES;
@@ -102,14 +131,19 @@ export class RemoteSessionImpl implements RemoteSession {
       });
       if (options.timeoutMs !== undefined) {
         timer = setTimeout(
-          () => abandon(new TransportError("command-timeout", `no exit within ${options.timeoutMs} ms: ${command}`)),
+          () =>
+            abandon(
+              new TransportError("command-timeout", `no exit within ${options.timeoutMs} ms: ${command}`),
+            ),
           options.timeoutMs,
         );
       }
       const collect = (into: Buffer[]) => (chunk: Buffer) => {
         outputBytes += chunk.length;
         if (outputBytes > maxOutputBytes) {
-          abandon(new RemoteCommandError(command, -1, "", `output exceeded ${maxOutputBytes} bytes: ${command}`));
+          abandon(
+            new RemoteCommandError(command, -1, "", `output exceeded ${maxOutputBytes} bytes: ${command}`),
+          );
           return;
         }
         into.push(chunk);
@@ -173,13 +207,13 @@ export class RemoteSessionImpl implements RemoteSession {
   }
 
   putFile(localPath: string, remotePath: string, options: PutOptions = {}): Promise<void> {
-    return this.pool.withSftp(this.target, (sftp) =>
-      fastPut(sftp, localPath, remotePath, {
-        concurrency: options.concurrency ?? PUT_DEFAULTS.concurrency,
-        chunkSize: options.chunkSizeBytes ?? PUT_DEFAULTS.chunkSizeBytes,
-        mode: options.mode ?? 0o600,
-      }),
-    );
+    return this.pool.withSftp(this.target, (sftp) => {
+      // A chunk above the server's limit would be split by ssh2 into pieces sent one after another.
+      const chunkSize = Math.min(options.chunkSizeBytes ?? PUT_DEFAULTS.chunkSizeBytes, maxWriteBytes(sftp));
+      const concurrency =
+        options.concurrency ?? Math.max(1, Math.ceil(PUT_DEFAULTS.bytesInFlight / chunkSize));
+      return fastPut(sftp, localPath, remotePath, { concurrency, chunkSize, mode: options.mode ?? 0o600 });
+    });
   }
 
   readFile(remotePath: string, maxBytes: number): Promise<Buffer> {
@@ -192,5 +226,17 @@ export class RemoteSessionImpl implements RemoteSession {
 
   lstat(remotePath: string): Promise<RemoteStat | null> {
     return this.pool.withSftp(this.target, (sftp) => statPath(sftp, remotePath, false));
+  }
+
+  mkdir(remotePath: string, mode: number): Promise<boolean> {
+    return this.pool.withSftp(this.target, (sftp) => mkdirPath(sftp, remotePath, mode));
+  }
+
+  chmod(remotePath: string, mode: number): Promise<void> {
+    return this.pool.withSftp(this.target, (sftp) => chmodPath(sftp, remotePath, mode));
+  }
+
+  realpath(remotePath: string): Promise<string> {
+    return this.pool.withSftp(this.target, (sftp) => realPath(sftp, remotePath));
   }
 }

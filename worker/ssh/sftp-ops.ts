@@ -18,6 +18,7 @@ const IO_REQUESTS_IN_FLIGHT = 16;
 export type RemoteStat = {
   sizeBytes: number;
   mode: number;
+  uid: number;
   isFile: boolean;
   isDirectory: boolean;
   isSymbolicLink: boolean;
@@ -38,7 +39,8 @@ export type WriteOptions = {
 export function sftpError(error: unknown, remotePath: string): SshError {
   const code = (error as { code?: unknown } | null)?.code;
   const message = error instanceof Error ? error.message : String(error);
-  if (code === SFTP_NO_SUCH_FILE) return new RemoteFileError(remotePath, "missing", "no such file", { cause: error });
+  if (code === SFTP_NO_SUCH_FILE)
+    return new RemoteFileError(remotePath, "missing", "no such file", { cause: error });
   if (code === SFTP_PERMISSION_DENIED) {
     return new RemoteFileError(remotePath, "permission", "permission denied", { cause: error });
   }
@@ -46,7 +48,10 @@ export function sftpError(error: unknown, remotePath: string): SshError {
   return classifySshError(error);
 }
 
-function call<T>(remotePath: string, start: (done: (error: Error | undefined | null, value?: T) => void) => void) {
+function call<T>(
+  remotePath: string,
+  start: (done: (error: Error | undefined | null, value?: T) => void) => void,
+) {
   return new Promise<T>((resolve, reject) => {
     try {
       start((error, value) => (error ? reject(sftpError(error, remotePath)) : resolve(value as T)));
@@ -60,6 +65,7 @@ function toRemoteStat(stats: Stats): RemoteStat {
   return {
     sizeBytes: stats.size,
     mode: stats.mode & 0o7777,
+    uid: stats.uid,
     isFile: stats.isFile(),
     isDirectory: stats.isDirectory(),
     isSymbolicLink: stats.isSymbolicLink(),
@@ -68,7 +74,11 @@ function toRemoteStat(stats: Stats): RemoteStat {
 }
 
 /** Stat following links; null when nothing is there. */
-export async function statPath(sftp: SFTPWrapper, remotePath: string, follow = true): Promise<RemoteStat | null> {
+export async function statPath(
+  sftp: SFTPWrapper,
+  remotePath: string,
+  follow = true,
+): Promise<RemoteStat | null> {
   try {
     const stats = await call<Stats>(remotePath, (done) =>
       follow ? sftp.stat(remotePath, done) : sftp.lstat(remotePath, done),
@@ -84,23 +94,46 @@ async function closeHandle(sftp: SFTPWrapper, remotePath: string, handle: Buffer
   await call<void>(remotePath, (done) => sftp.close(handle, done));
 }
 
+/**
+ * Exclusive create first (the usual case: a fresh run folder, one round trip); only if something is
+ * already there, unlink it (a link itself, never its target) and create exclusively again. SFTP v3 has no
+ * "already exists" status: OpenSSH answers EEXIST with a generic FAILURE.
+ */
+async function openReplacingExclusively(
+  sftp: SFTPWrapper,
+  remotePath: string,
+  mode: number,
+): Promise<Buffer> {
+  const create = () => call<Buffer>(remotePath, (done) => sftp.open(remotePath, "wx", { mode }, done));
+  let refusal: unknown;
+  try {
+    return await create();
+  } catch (error) {
+    // "permission" too: a sandboxing server may refuse to open through a link that points outside it.
+    const replaceable =
+      error instanceof RemoteFileError && (error.reason === "failure" || error.reason === "permission");
+    if (!replaceable) throw error;
+    refusal = error;
+  }
+  try {
+    await call<void>(remotePath, (done) => sftp.unlink(remotePath, done));
+  } catch (error) {
+    throw error instanceof RemoteFileError && error.reason === "missing" ? refusal : error;
+  }
+  return create();
+}
+
 export async function writeWhole(
   sftp: SFTPWrapper,
   remotePath: string,
   content: Buffer,
   options: WriteOptions = {},
 ): Promise<void> {
-  if (options.replaceExclusively) {
-    try {
-      await call<void>(remotePath, (done) => sftp.unlink(remotePath, done));
-    } catch (error) {
-      if (!(error instanceof RemoteFileError && error.reason === "missing")) throw error;
-    }
-  }
-  const flags = options.replaceExclusively ? "wx" : "w";
-  const handle = await call<Buffer>(remotePath, (done) =>
-    sftp.open(remotePath, flags, { mode: options.mode ?? 0o600 }, done),
-  );
+  const handle = options.replaceExclusively
+    ? await openReplacingExclusively(sftp, remotePath, options.mode ?? 0o600)
+    : await call<Buffer>(remotePath, (done) =>
+        sftp.open(remotePath, "w", { mode: options.mode ?? 0o600 }, done),
+      );
   let failure: unknown = null;
   try {
     let nextOffset = 0;
@@ -126,18 +159,14 @@ export async function writeWhole(
 }
 
 /**
- * Reads a whole file, refusing one larger than maxBytes before reading it (and again if it grows while
- * being read), so a runaway output file cannot exhaust the worker's memory.
+ * Reads a whole file, refusing one larger than maxBytes (checked as the bytes arrive, so at most one
+ * chunk beyond the limit is ever held), so a runaway output file cannot exhaust the worker's memory.
  */
 export async function readWhole(sftp: SFTPWrapper, remotePath: string, maxBytes: number): Promise<Buffer> {
   const handle = await call<Buffer>(remotePath, (done) => sftp.open(remotePath, "r", done));
   const chunks: Buffer[] = [];
   let failure: unknown = null;
   try {
-    const stats = await call<Stats>(remotePath, (done) => sftp.fstat(handle, done));
-    if (stats.size > maxBytes) {
-      throw new RemoteFileError(remotePath, "too-large", `${stats.size} bytes exceeds the ${maxBytes}-byte limit`);
-    }
     let position = 0;
     for (;;) {
       const buffer = Buffer.allocUnsafe(IO_CHUNK_BYTES * 4);
@@ -147,7 +176,7 @@ export async function readWhole(sftp: SFTPWrapper, remotePath: string, maxBytes:
       if (bytesRead === 0) break;
       position += bytesRead;
       if (position > maxBytes) {
-        throw new RemoteFileError(remotePath, "too-large", `grew past the ${maxBytes}-byte limit while read`);
+        throw new RemoteFileError(remotePath, "too-large", `larger than the ${maxBytes}-byte limit`);
       }
       chunks.push(buffer.subarray(0, bytesRead));
     }
@@ -172,6 +201,23 @@ export function fastPut(
   return call<void>(remotePath, (done) => sftp.fastPut(localPath, remotePath, options, done));
 }
 
-export function mkdirPath(sftp: SFTPWrapper, remotePath: string, mode: number): Promise<void> {
-  return call<void>(remotePath, (done) => sftp.mkdir(remotePath, { mode }, done));
+/** Creates one folder; false when something already exists there (SFTP v3 answers that with FAILURE). */
+export async function mkdirPath(sftp: SFTPWrapper, remotePath: string, mode: number): Promise<boolean> {
+  try {
+    await call<void>(remotePath, (done) => sftp.mkdir(remotePath, { mode }, done));
+    return true;
+  } catch (error) {
+    if (!(error instanceof RemoteFileError && error.reason === "failure")) throw error;
+    if ((await statPath(sftp, remotePath, false)) === null) throw error;
+    return false;
+  }
+}
+
+export function chmodPath(sftp: SFTPWrapper, remotePath: string, mode: number): Promise<void> {
+  return call<void>(remotePath, (done) => sftp.chmod(remotePath, mode, done));
+}
+
+/** The server's canonical absolute path, every symbolic link resolved (OpenSSH: realpath(3)). */
+export function realPath(sftp: SFTPWrapper, remotePath: string): Promise<string> {
+  return call<string>(remotePath, (done) => sftp.realpath(remotePath, done));
 }

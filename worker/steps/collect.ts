@@ -26,7 +26,10 @@ export async function collectRun(ctx: WorkerContext, runId: string): Promise<voi
     for (const stage of plan.stages) {
       for (const name of stage.outputFiles) {
         try {
-          const content = await session.readFile(`${run.remoteDir}/${stage.dir}/${name}`, ctx.config.maxArtifactBytes);
+          const content = await session.readFile(
+            `${run.remoteDir}/${stage.dir}/${name}`,
+            ctx.config.maxArtifactBytes,
+          );
           collected.push({ stage: stage.name, name, content });
         } catch (error) {
           if (error instanceof RemoteFileError) missing.push(`${stage.name}/${name} (${error.message})`);
@@ -37,7 +40,11 @@ export async function collectRun(ctx: WorkerContext, runId: string): Promise<voi
     const usage = await scheduler.accounting(session, job, run.cores);
     const measuredSeconds = usage?.coreSeconds ?? fallbackCoreSeconds(run);
     const chargedCoreSeconds = Math.max(0, Math.round(measuredSeconds));
-    const finalState: RunState = run.cancelRequestedAt ? "cancelled" : run.exitCode === 0 && missing.length === 0 ? "done" : "failed";
+    const finalState: RunState = run.cancelRequestedAt
+      ? "cancelled"
+      : run.exitCode === 0 && missing.length === 0
+        ? "done"
+        : "failed";
     const message =
       finalState === "done"
         ? `Finished; ${collected.length} result file(s) collected`
@@ -67,8 +74,20 @@ export async function collectRun(ctx: WorkerContext, runId: string): Promise<voi
       });
       if (!moved) return false;
       await tx.insert(ledgerEntries).values([
-        { allocationId: run.allocationId, runId: run.id, kind: "charge", coreSeconds: chargedCoreSeconds, note: usage ? "scheduler accounting" : "measured by Sigmaflow" },
-        { allocationId: run.allocationId, runId: run.id, kind: "release", coreSeconds: run.reservedCoreSeconds, note: "reservation released" },
+        {
+          allocationId: run.allocationId,
+          runId: run.id,
+          kind: "charge",
+          coreSeconds: chargedCoreSeconds,
+          note: usage ? "scheduler accounting" : "measured by Sigmaflow",
+        },
+        {
+          allocationId: run.allocationId,
+          runId: run.id,
+          kind: "release",
+          coreSeconds: run.reservedCoreSeconds,
+          note: "reservation released",
+        },
       ]);
       return true;
     });
@@ -82,7 +101,12 @@ function fallbackCoreSeconds(run: typeof runs.$inferSelect): number {
   return run.cores * Math.max(0, (Date.now() - started.getTime()) / 1000);
 }
 
-async function mailSubmitter(ctx: WorkerContext, runId: string, state: RunState, message: string): Promise<void> {
+async function mailSubmitter(
+  ctx: WorkerContext,
+  runId: string,
+  state: RunState,
+  message: string,
+): Promise<void> {
   const [row] = await ctx.db
     .select({ email: users.email, name: runs.name })
     .from(runs)

@@ -10,8 +10,8 @@ import { compileOutputRules, parseLogLines } from "../../server/execution/output
 import { notifyRun, transitionRun } from "../../server/execution/run-transitions";
 import { RUN_STEP_QUEUES } from "../../server/queue/queues";
 import type { WorkerContext } from "../context";
-import { groupBy } from "../group-by";
 import { guardStep, holdHostRuns } from "../failures";
+import { groupBy } from "../group-by";
 import { readLogFrom } from "../logs/tail";
 import { type HostRow, jobRefOf, loadHost, planOf, type RunRow, sessionFor } from "../run-runtime";
 import { schedulerFor } from "../schedulers";
@@ -25,14 +25,24 @@ const MAX_LOG_BYTES_PER_POLL = 256 * 1024;
 
 type Progress = { stage?: string | null; done?: number; total?: number; percent?: number } | null;
 
-async function storeLog(ctx: WorkerContext, run: RunRow, session: RemoteSession, untilEmpty: boolean): Promise<void> {
+async function storeLog(
+  ctx: WorkerContext,
+  run: RunRow,
+  session: RemoteSession,
+  untilEmpty: boolean,
+): Promise<void> {
   const plan = planOf(run);
   const rules = compileOutputRules(plan);
   let offset = run.logOffsetBytes;
   let seq = run.logSeq;
   let stage = ((run.progress as Progress)?.stage as string | null | undefined) ?? null;
   for (let round = 0; round < (untilEmpty ? 64 : 1); round += 1) {
-    const chunk = await readLogFrom(session, `${run.remoteDir}/${plan.logName}`, offset, MAX_LOG_BYTES_PER_POLL);
+    const chunk = await readLogFrom(
+      session,
+      `${run.remoteDir}/${plan.logName}`,
+      offset,
+      MAX_LOG_BYTES_PER_POLL,
+    );
     if (chunk.text.length === 0 && chunk.nextOffsetBytes === offset) break;
     const parsed = parseLogLines(chunk.text, rules, stage);
     stage = parsed.stage;
@@ -52,12 +62,17 @@ async function storeLog(ctx: WorkerContext, run: RunRow, session: RemoteSession,
         .where(and(eq(runs.id, run.id), eq(runs.logOffsetBytes, chunkOffset)))
         .returning({ id: runs.id });
       if (advanced.length === 0) return;
-      await tx.insert(runLogChunks).values({ runId: run.id, seq, offsetBytes: chunkOffset, text: chunk.text });
+      await tx
+        .insert(runLogChunks)
+        .values({ runId: run.id, seq, offsetBytes: chunkOffset, text: chunk.text });
       for (const timing of parsed.timings) {
         await tx
           .insert(runTimings)
           .values({ runId: run.id, ...timing })
-          .onConflictDoUpdate({ target: [runTimings.runId, runTimings.stage, runTimings.symmetry], set: { elapsedMs: timing.elapsedMs } });
+          .onConflictDoUpdate({
+            target: [runTimings.runId, runTimings.stage, runTimings.symmetry],
+            set: { elapsedMs: timing.elapsedMs },
+          });
       }
       await notifyRun(tx, run.id, { type: "log", seq });
     });
@@ -65,7 +80,12 @@ async function storeLog(ctx: WorkerContext, run: RunRow, session: RemoteSession,
   }
 }
 
-async function applyStatus(ctx: WorkerContext, run: RunRow, status: JobStatus, session: RemoteSession): Promise<void> {
+async function applyStatus(
+  ctx: WorkerContext,
+  run: RunRow,
+  status: JobStatus,
+  session: RemoteSession,
+): Promise<void> {
   if (status.state === "pending" || status.state === "unknown") return;
   if (run.state === "submitted") {
     await ctx.db.transaction((tx) =>
@@ -85,7 +105,12 @@ async function applyStatus(ctx: WorkerContext, run: RunRow, status: JobStatus, s
       message: `The scheduler reports the job ${status.state}${status.exitCode !== null ? ` (exit code ${status.exitCode})` : ""}`,
       set: { exitCode: status.exitCode, startedAt: run.startedAt ?? status.startedAt ?? new Date() },
     });
-    if (moved) await ctx.boss.send(RUN_STEP_QUEUES.collect, { runId: run.id }, { db: { executeSql: executeSql as never } });
+    if (moved)
+      await ctx.boss.send(
+        RUN_STEP_QUEUES.collect,
+        { runId: run.id },
+        { db: { executeSql: executeSql as never } },
+      );
   });
 }
 
@@ -126,13 +151,25 @@ export async function pollHost(ctx: WorkerContext, hostId: string): Promise<void
     if (!lastHostSuccess.has(hostId)) lastHostSuccess.set(hostId, since);
     if (Date.now() - since >= ctx.config.hostUnreachableHoldMs) {
       await markHost(ctx, host, "unreachable", error.message);
-      await holdHostRuns(ctx, hostId, `Held: ${host.name} has been unreachable since ${new Date(since).toISOString()} (${error.message}).`);
+      await holdHostRuns(
+        ctx,
+        hostId,
+        `Held: ${host.name} has been unreachable since ${new Date(since).toISOString()} (${error.message}).`,
+      );
       lastHostSuccess.delete(hostId);
     }
     ctx.log.warn({ hostId, err: error.message }, "poll failed");
   }
 }
 
-export async function markHost(ctx: WorkerContext, host: HostRow, status: "ok" | "unreachable", message: string | null) {
-  await ctx.db.update(hosts).set({ status, statusMessage: message, statusChangedAt: new Date() }).where(eq(hosts.id, host.id));
+export async function markHost(
+  ctx: WorkerContext,
+  host: HostRow,
+  status: "ok" | "unreachable",
+  message: string | null,
+) {
+  await ctx.db
+    .update(hosts)
+    .set({ status, statusMessage: message, statusChangedAt: new Date() })
+    .where(eq(hosts.id, host.id));
 }

@@ -23,7 +23,10 @@ export async function stageRun(ctx: WorkerContext, runId: string): Promise<void>
     const { session, plan } = rt ?? (await runtimeFor(ctx, run));
     if (run.state === "queued") {
       const started = await ctx.db.transaction((tx) =>
-        transitionRun(tx, run.id, ["queued"], "staging", { actor: worker, message: "Copying inputs to the host" }),
+        transitionRun(tx, run.id, ["queued"], "staging", {
+          actor: worker,
+          message: "Copying inputs to the host",
+        }),
       );
       if (!started) return;
     }
@@ -32,7 +35,10 @@ export async function stageRun(ctx: WorkerContext, runId: string): Promise<void>
       const staged = await stageFiles(
         session,
         runDir,
-        plan.files.map((file) => ({ relativePath: file.relativePath, content: Buffer.from(file.contentBase64, "base64") })),
+        plan.files.map((file) => ({
+          relativePath: file.relativePath,
+          content: Buffer.from(file.contentBase64, "base64"),
+        })),
       );
       for (const file of staged) {
         const expected = plan.files.find((f) => f.relativePath === file.relativePath);
@@ -40,7 +46,10 @@ export async function stageRun(ctx: WorkerContext, runId: string): Promise<void>
           throw new Error(`staged ${file.relativePath} does not match its sha256 on the host`);
         }
       }
-      await ctx.db.update(runs).set({ stagedFiles: staged, updatedAt: new Date() }).where(eq(runs.id, run.id));
+      await ctx.db
+        .update(runs)
+        .set({ stagedFiles: staged, updatedAt: new Date() })
+        .where(eq(runs.id, run.id));
     }
     await submitRun(ctx, run.id);
   });

@@ -58,11 +58,9 @@ export const hostAccountSchema = z.object({
 export type HostAccount = z.infer<typeof hostAccountSchema>;
 export const hostAccountListSchema = z.object({ accounts: z.array(hostAccountSchema) });
 
-export const posixUsernameSchema = z
-  .string()
-  .regex(/^[a-z_][a-z0-9_-]{0,31}$/, {
-    error: "Give the POSIX user name on the host (lowercase, up to 32).",
-  });
+export const posixUsernameSchema = z.string().regex(/^[a-z_][a-z0-9_-]{0,31}$/, {
+  error: "Give the POSIX user name on the host (lowercase, up to 32).",
+});
 
 export const createHostAccountRequestSchema = z.strictObject({
   kind: z.enum(["personal", "group"]),

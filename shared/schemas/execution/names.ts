@@ -21,13 +21,15 @@ export const identifierSchema = z
   .max(64)
   .regex(/^[a-z][a-z0-9-]*$/, { error: "Use lowercase letters, digits and dashes, starting with a letter." });
 
-/** An absolute POSIX folder on a cluster host, without `..`, quotes, spaces or shell metacharacters. */
+/**
+ * A folder on a cluster host: absolute, or relative to the account's home folder (as both SSH commands
+ * and SFTP resolve it), without `..`, quotes, spaces or shell metacharacters.
+ */
 export const remoteDirSchema = z
   .string()
   .min(1)
   .max(400)
-  .regex(/^\/[A-Za-z0-9._/-]*$/, {
-    error: "Give an absolute folder using letters, digits, '.', '_', '-' and '/'.",
-  })
+  .regex(/^[A-Za-z0-9._/-]+$/, { error: "Give a folder using letters, digits, '.', '_', '-' and '/'." })
   .refine((p) => !p.split("/").includes(".."), { error: "'..' is not allowed in the folder." })
+  .refine((p) => !p.startsWith("-"), { error: "The folder must not start with '-'." })
   .transform((p) => (p.length > 1 ? p.replace(/\/+$/, "") : p));

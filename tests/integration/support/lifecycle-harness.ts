@@ -4,14 +4,14 @@
  * allocation, a host, an account on it and a code. Everything goes through the public API, as a script
  * of a researcher would.
  */
-import { spawn, type ChildProcess } from "node:child_process";
-import { mkdtemp, appendFile, writeFile } from "node:fs/promises";
+import { type ChildProcess, spawn } from "node:child_process";
+import { appendFile, mkdtemp, writeFile } from "node:fs/promises";
 import { tmpdir } from "node:os";
 import path from "node:path";
 import { expect } from "vitest";
-import { startFakeCluster, type FakeCluster } from "../../../deploy/fake-cluster/server";
-import { startWorker } from "../../../worker/index";
+import { type FakeCluster, startFakeCluster } from "../../../deploy/fake-cluster/server";
 import { loadWorkerConfig } from "../../../worker/config";
+import { startWorker } from "../../../worker/index";
 import { addMember, createGroup, createUser, tokenFor } from "./people";
 import { startTestApp } from "./test-app";
 import type { TestDatabase } from "./test-database";
@@ -25,10 +25,14 @@ export const WORKER_TEST_ENV = {
   WORKER_TRANSPORT_MAX_ATTEMPTS: "4",
   WORKER_HOST_UNREACHABLE_HOLD_MS: "1500",
   WORKER_HOLD_PROBE_INTERVAL_MS: "300",
-  LOG_LEVEL: "silent",
+  LOG_LEVEL: process.env.SF_TEST_WORKER_LOG ?? "silent",
 };
 
-export type Api = <T = any>(method: string, path: string, body?: unknown) => Promise<{ status: number; body: T }>;
+export type Api = <T = any>(
+  method: string,
+  path: string,
+  body?: unknown,
+) => Promise<{ status: number; body: T }>;
 
 export function apiClient(baseUrl: string, token: string): Api {
   return async (method, urlPath, body) => {
@@ -47,11 +51,17 @@ export function apiClient(baseUrl: string, token: string): Api {
 }
 
 /** Polls `read` until `accept` holds or the time is up (then fails with the last value seen). */
-export async function waitFor<T>(read: () => Promise<T>, accept: (value: T) => boolean, timeoutMs = 30_000, label = "condition"): Promise<T> {
+export async function waitFor<T>(
+  read: () => Promise<T>,
+  accept: (value: T) => boolean,
+  timeoutMs = 30_000,
+  label = "condition",
+): Promise<T> {
   const deadline = Date.now() + timeoutMs;
   let last: T = await read();
   while (!accept(last)) {
-    if (Date.now() > deadline) throw new Error(`timed out waiting for ${label}; last seen: ${JSON.stringify(last).slice(0, 800)}`);
+    if (Date.now() > deadline)
+      throw new Error(`timed out waiting for ${label}; last seen: ${JSON.stringify(last).slice(0, 800)}`);
     await new Promise((resolve) => setTimeout(resolve, 100));
     last = await read();
   }
@@ -81,7 +91,10 @@ export async function startFakeHost(port = 0) {
 export type FakeHost = Awaited<ReturnType<typeof startFakeHost>>;
 
 /** A group with an admin researcher, an allocation and the API client to act as them. */
-export async function startSigmaflow(database: TestDatabase, options: { coreHours?: number; inProcessWorker?: boolean } = {}) {
+export async function startSigmaflow(
+  database: TestDatabase,
+  options: { coreHours?: number; inProcessWorker?: boolean } = {},
+) {
   const app = await startTestApp(database);
   const group = await createGroup(database.db, "lifecycle");
   const researcher = await createUser(database.db, "researcher");
@@ -96,7 +109,8 @@ export async function startSigmaflow(database: TestDatabase, options: { coreHour
   });
   expect(allocation.status, JSON.stringify(allocation.body)).toBe(201);
   const workerEnv = { ...WORKER_TEST_ENV, DATABASE_URL: database.url };
-  let worker = options.inProcessWorker === false ? null : await startWorker(loadWorkerConfig(workerEnv as never));
+  let worker =
+    options.inProcessWorker === false ? null : await startWorker(loadWorkerConfig(workerEnv as never));
   let child: ChildProcess | null = null;
   return {
     app,
@@ -139,7 +153,9 @@ export async function registerHost(
   const created = await sf.api("POST", `/api/groups/${sf.groupId}/hosts`, host);
   expect(created.status, JSON.stringify(created.body)).toBe(201);
   const hostId = created.body.id as string;
-  const confirmed = await sf.api("POST", `/api/hosts/${hostId}/host-key/confirm`, { fingerprint: created.body.hostKeyFingerprint });
+  const confirmed = await sf.api("POST", `/api/hosts/${hostId}/host-key/confirm`, {
+    fingerprint: created.body.hostKeyFingerprint,
+  });
   expect(confirmed.status, JSON.stringify(confirmed.body)).toBe(200);
   const acc = await sf.api("POST", `/api/hosts/${hostId}/accounts`, {
     kind: "group",
@@ -169,7 +185,7 @@ export async function registerShellRecipe(sf: Sigmaflow, name = "two-stage") {
         template: [
           "label={{ label }}",
           'echo "target label: $label"',
-          "for sym in A1 B1 B2 A2; do echo \"symmetry $sym done in 0.25 s\"; done",
+          'for sym in A1 B1 B2 A2; do echo "symmetry $sym done in 0.25 s"; done',
           "sleep {{ sleepSeconds }}",
           'printf "%s\\n" "$label" > orbitals.dat',
           "echo progress 1/1",
@@ -179,7 +195,10 @@ export async function registerShellRecipe(sf: Sigmaflow, name = "two-stage") {
     ],
     parameters: {
       type: "object",
-      properties: { label: { type: "string", maxLength: 5000 }, sleepSeconds: { type: "number", minimum: 0, maximum: 60, default: 0 } },
+      properties: {
+        label: { type: "string", maxLength: 5000 },
+        sleepSeconds: { type: "number", minimum: 0, maximum: 60, default: 0 },
+      },
       required: ["label"],
       additionalProperties: false,
     },
@@ -195,8 +214,18 @@ export async function registerShellRecipe(sf: Sigmaflow, name = "two-stage") {
     version: "1.0",
     executable: "/bin/sh",
     arguments: ["scatter.sh"],
-    inputTemplates: [{ fileName: "scatter.sh", format: "shell", template: 'echo "K-matrix from $(cat orbitals.dat)" > kmatrix.dat\nexit {{ exitCode }}\n' }],
-    parameters: { type: "object", properties: { exitCode: { type: "integer", minimum: 0, maximum: 255, default: 0 } }, additionalProperties: false },
+    inputTemplates: [
+      {
+        fileName: "scatter.sh",
+        format: "shell",
+        template: 'echo "K-matrix from $(cat orbitals.dat)" > kmatrix.dat\nexit {{ exitCode }}\n',
+      },
+    ],
+    parameters: {
+      type: "object",
+      properties: { exitCode: { type: "integer", minimum: 0, maximum: 255, default: 0 } },
+      additionalProperties: false,
+    },
     outputFiles: ["kmatrix.dat"],
   });
   expect(scatter.status, JSON.stringify(scatter.body)).toBe(201);
@@ -211,11 +240,19 @@ export async function registerShellRecipe(sf: Sigmaflow, name = "two-stage") {
   return recipe.body.id as string;
 }
 
-export function runSpec(recipeId: string, hostId: string, parameters: Record<string, Record<string, unknown>>, name = "test run") {
-  return { spec: { name, recipeId, hostId, parameters, resources: { cores: 1, wallTimeMinutes: 10 } }, onDuplicate: "run" };
+export function runSpec(
+  recipeId: string,
+  hostId: string,
+  parameters: Record<string, Record<string, unknown>>,
+  name = "test run",
+) {
+  return {
+    spec: { name, recipeId, hostId, parameters, resources: { cores: 1, wallTimeMinutes: 10 } },
+    onDuplicate: "run",
+  };
 }
 
-export async function waitForState(sf: Sigmaflow, runId: string, states: string[], timeoutMs = 30_000) {
+export async function waitForState(sf: Sigmaflow, runId: string, states: string[], timeoutMs = 25_000) {
   const result = await waitFor(
     () => sf.api("GET", `/api/runs/${runId}`),
     (r) => states.includes(r.body?.state),

@@ -9,8 +9,8 @@ import type { AddressInfo } from "node:net";
 import { createApp } from "../../../server/app";
 import { loadConfig } from "../../../server/config";
 import { createLogger } from "../../../server/logger";
-import { createBoss, createRunQueues } from "../../../server/queue/queues";
 import type { Mailer, OutgoingMail } from "../../../server/mail/mailer";
+import { createBoss, createRunQueues } from "../../../server/queue/queues";
 import type { TestDatabase } from "./test-database";
 
 export type RecordingMailer = Mailer & { sent: OutgoingMail[]; failNext: boolean };

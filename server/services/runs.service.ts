@@ -426,15 +426,13 @@ export async function cancelRun(
         set: { cancelRequestedAt: new Date(), finishedAt: new Date(), chargedCoreSeconds: 0 },
       }));
     if (stopped) {
-      await tx
-        .insert(ledgerEntries)
-        .values({
-          allocationId: run.allocationId,
-          runId,
-          kind: "release",
-          coreSeconds: run.reservedCoreSeconds,
-          note: "cancelled before start",
-        });
+      await tx.insert(ledgerEntries).values({
+        allocationId: run.allocationId,
+        runId,
+        kind: "release",
+        coreSeconds: run.reservedCoreSeconds,
+        note: "cancelled before start",
+      });
     } else {
       await tx
         .update(runs)

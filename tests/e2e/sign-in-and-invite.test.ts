@@ -21,7 +21,9 @@ async function signIn(page: Page, subject: string) {
   await page.getByLabel("E-mail").fill(account(subject).email);
   await page.getByLabel("Password").fill(DEMO_PASSWORD);
   await page.getByRole("button", { name: "Sign in" }).click();
-  await page.waitForURL((url) => url.origin === new URL(env.appUrl).origin && !url.pathname.startsWith("/signin"));
+  await page.waitForURL(
+    (url) => url.origin === new URL(env.appUrl).origin && !url.pathname.startsWith("/signin"),
+  );
   await expect.poll(() => page.getByText(account(subject).displayName).first().isVisible()).toBe(true);
 }
 
@@ -62,7 +64,10 @@ describe("invitation by e-mail", () => {
   it("a group admin invites a newcomer, who reads the mail and joins", async () => {
     const admin = await newPage(browser);
     await signIn(admin.page, "demo-group-admin");
-    await admin.page.getByRole("navigation", { name: "Main" }).getByRole("link", { name: "Invitations" }).click();
+    await admin.page
+      .getByRole("navigation", { name: "Main" })
+      .getByRole("link", { name: "Invitations" })
+      .click();
     const form = admin.page.getByRole("form", { name: "Invite by e-mail" });
     await form.getByLabel("E-mail").fill("not an address");
     await form.getByRole("button", { name: "Send invitation" }).click();
@@ -70,7 +75,9 @@ describe("invitation by e-mail", () => {
     const newcomer = account("demo-newcomer");
     await form.getByLabel("E-mail").fill(newcomer.email);
     await form.getByRole("button", { name: "Send invitation" }).click();
-    await expect.poll(() => admin.page.getByRole("cell", { name: newcomer.email }).first().isVisible()).toBe(true);
+    await expect
+      .poll(() => admin.page.getByRole("cell", { name: newcomer.email }).first().isVisible())
+      .toBe(true);
     await screenshot(admin.page, "invitations-sent");
 
     await admin.page.goto(env.inboxUrl);
@@ -94,7 +101,9 @@ describe("invitation by e-mail", () => {
     await invitee.page.goto(href!);
     await invitee.page.getByRole("button", { name: "Accept invitation" }).click();
     await invitee.page.waitForURL(/\/groups\/[^/]+\/members/);
-    await expect.poll(() => invitee.page.getByRole("cell", { name: newcomer.email }).first().isVisible()).toBe(true);
+    await expect
+      .poll(() => invitee.page.getByRole("cell", { name: newcomer.email }).first().isVisible())
+      .toBe(true);
     await screenshot(invitee.page, "newcomer-joined");
     await invitee.context.close();
   });

@@ -11,7 +11,9 @@ export function e2eEnv() {
   const appUrl = process.env.E2E_APP_URL;
   const inboxUrl = process.env.E2E_INBOX_URL;
   if (!appUrl || !inboxUrl) {
-    throw new Error("E2E_APP_URL and E2E_INBOX_URL are not set: run the suites through `bash deploy/test.sh`.");
+    throw new Error(
+      "E2E_APP_URL and E2E_INBOX_URL are not set: run the suites through `bash deploy/test.sh`.",
+    );
   }
   const artifactsDir = process.env.E2E_ARTIFACTS_DIR ?? path.resolve(".artifacts/e2e");
   mkdirSync(artifactsDir, { recursive: true });

@@ -9,7 +9,6 @@
  */
 import { createPublicKey, verify } from "node:crypto";
 import { mkdtemp, rm } from "node:fs/promises";
-import { createServer } from "node:net";
 import { tmpdir } from "node:os";
 import path from "node:path";
 import nodemailer from "nodemailer";

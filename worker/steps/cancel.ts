@@ -8,7 +8,7 @@ import { loadRun, runtimeFor } from "../run-runtime";
 
 export async function cancelRunOnHost(ctx: WorkerContext, runId: string): Promise<void> {
   const run = await loadRun(ctx, runId);
-  if (!run || !run.cancelRequestedAt || !run.schedulerJobId) return;
+  if (!run?.cancelRequestedAt || !run.schedulerJobId) return;
   if (run.state !== "submitted" && run.state !== "running") return;
   const rt = await runtimeFor(ctx, run).catch(() => null);
   await guardStep(ctx, run, rt?.host ?? null, "cancel", async () => {

@@ -17,7 +17,7 @@ const worker = { kind: "worker" } as const;
 
 export async function collectRun(ctx: WorkerContext, runId: string): Promise<void> {
   const run = await loadRun(ctx, runId);
-  if (!run || run.state !== "collecting") return;
+  if (run?.state !== "collecting") return;
   const rt = await runtimeFor(ctx, run).catch(() => null);
   await guardStep(ctx, run, rt?.host ?? null, "collect", async () => {
     const { session, scheduler, job, plan } = rt ?? (await runtimeFor(ctx, run));

@@ -60,7 +60,7 @@ export async function submitRun(ctx: WorkerContext, runId: string): Promise<void
     // The row lock makes submission one-at-a-time per run across worker processes, and makes a
     // concurrent cancel wait until the scheduler job id is recorded.
     const [run] = await tx.select().from(runs).where(eq(runs.id, runId)).for("update");
-    if (!run || run.state !== "staging") return;
+    if (run?.state !== "staging") return;
     const { session, scheduler, job, plan } = await runtimeFor(ctx, run);
     const submitted = await scheduler.submit(session, {
       ...job,

@@ -28,6 +28,7 @@ export const WORKER_TEST_ENV = {
   LOG_LEVEL: process.env.SF_TEST_WORKER_LOG ?? "silent",
 };
 
+// biome-ignore lint/suspicious/noExplicitAny: test responses are read loosely, field by field.
 export type Api = <T = any>(
   method: string,
   path: string,

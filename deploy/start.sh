@@ -1,7 +1,8 @@
 #!/usr/bin/env bash
 # Starts Sigmaflow for development on this machine: installs what is missing, starts a project-local
 # PostgreSQL, applies migrations, seeds the demo scenario, starts the fake identity provider, the fake
-# mail sink and the server. Ctrl-C stops everything it started; a second start reuses the data in .data/.
+# mail sink, the development cluster host (registered for the Kestrel group), the server and the worker.
+# Ctrl-C stops everything it started; a second start reuses the data in .data/.
 set -euo pipefail
 source "$(dirname "${BASH_SOURCE[0]}")/lib.sh"
 cd "$SF_ROOT"
@@ -11,6 +12,7 @@ APP_PORT="${SIGMAFLOW_PORT:-5180}"
 IDP_PORT="${SIGMAFLOW_IDP_PORT:-5181}"
 SMTP_PORT="${SIGMAFLOW_SMTP_PORT:-5182}"
 INBOX_PORT="${SIGMAFLOW_INBOX_PORT:-5183}"
+CLUSTER_PORT="${SIGMAFLOW_CLUSTER_PORT:-5184}"
 DB_NAME=sigmaflow
 DATA_DIR="$SF_ROOT/.data"
 SECRETS_DIR="$DATA_DIR/secrets"
@@ -39,9 +41,15 @@ npx vite build --logLevel warn
 
 FAKE_SMTP_DIR="$DATA_DIR/mail" sf_spawn fake-smtp "$LOG_DIR/fake-smtp.log" node --import tsx deploy/fake-smtp/index.ts
 sf_spawn fake-idp "$LOG_DIR/fake-idp.log" node --import tsx deploy/fake-idp/index.ts
+export FAKE_CLUSTER_PORT="$CLUSTER_PORT" FAKE_CLUSTER_ROOT="$DATA_DIR/cluster/home"
+export FAKE_CLUSTER_HOST_KEY="$DATA_DIR/cluster/host_key" FAKE_CLUSTER_AUTHORIZED_KEYS="$DATA_DIR/cluster/authorized_keys"
+sf_spawn fake-cluster "$LOG_DIR/fake-cluster.log" node --import tsx deploy/fake-cluster/index.ts
 sf_wait_for_port "$IDP_PORT" fake-idp
 sf_wait_for_port "$SMTP_PORT" fake-smtp
+sf_wait_for_port "$CLUSTER_PORT" fake-cluster
+node --import tsx deploy/demo/seed-cluster.ts
 sf_spawn server "$LOG_DIR/server.log" node --import tsx server/index.ts
+sf_spawn worker "$LOG_DIR/worker.log" node --import tsx worker/index.ts
 sf_wait_for_port "$APP_PORT" server 60
 
 node --import tsx deploy/demo/banner.ts

@@ -11,6 +11,7 @@ console.log(
     "",
     `    App:                 ${appUrl}`,
     `    Development inbox:   ${inboxUrl}`,
+    `    Development host:    127.0.0.1:${process.env.FAKE_CLUSTER_PORT ?? "5184"} (SSH, registered as kestrel-dev)`,
     "",
     `  Demo accounts (password for all: ${DEMO_PASSWORD}):`,
     ...rows,

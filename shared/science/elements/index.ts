@@ -1,0 +1,9 @@
+export {
+  type ElementInfo,
+  getElement,
+  getElementByNumber,
+  getIsotope,
+  type IsotopeInfo,
+  isElementSymbol,
+  listElements,
+} from "./isotopes";

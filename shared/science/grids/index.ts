@@ -1,0 +1,9 @@
+export {
+  buildBaseGrid,
+  buildEnergyGrid,
+  linearGrid,
+  logGrid,
+  refineAroundThresholds,
+  sortUniqueEnergies,
+  thresholdOffsetsEv,
+} from "./energy-grid";

@@ -13,7 +13,14 @@ import { recordAudit } from "../server/services/audit.service";
 import type { RunState } from "../shared/schemas/execution/runs";
 import type { WorkerContext } from "./context";
 import type { HostRow, RunRow } from "./run-runtime";
-import { HostKeyMismatchError, RemoteCommandError, RemotePathError, TransportError } from "./ssh/errors";
+import {
+  AuthenticationError,
+  HostKeyMismatchError,
+  RemoteCommandError,
+  RemoteFileError,
+  RemotePathError,
+  TransportError,
+} from "./ssh/errors";
 
 /** Steps a held run repeats when it resumes; `poll` means the poller picks it up again. */
 export type HeldStep = RunStepName | "poll";
@@ -181,7 +188,21 @@ export async function guardStep(
       );
       return;
     }
-    if (error instanceof RemoteCommandError || error instanceof RemotePathError) {
+    if (error instanceof AuthenticationError) {
+      // Retrying cannot fix a key the host does not accept: a person must install or replace it.
+      await holdRun(
+        ctx,
+        run,
+        step,
+        `Held: the host refused the account's key (${error.message}). Install the account's public key on the host, then the run resumes.`,
+      );
+      return;
+    }
+    if (
+      error instanceof RemoteCommandError ||
+      error instanceof RemotePathError ||
+      error instanceof RemoteFileError
+    ) {
       await failRun(ctx, run, `${step} failed on the host: ${error.message}`);
       return;
     }

@@ -94,11 +94,15 @@ beforeAll(() => {
 });
 
 afterAll(async () => {
-  if (submitted.length > 0) {
-    await newPool()
-      .session(target)
-      .exec(["scancel", ...submitted])
-      .catch(() => undefined);
+  if (target) {
+    const session = newPool().session(target);
+    if (submitted.length > 0) await session.exec(["scancel", ...submitted]).catch(() => undefined);
+    // Slurm jobs may still be writing their logs for a moment after scancel: wait for them to leave squeue.
+    await waitFor(
+      () => session.run(["squeue", "-h", "-u", target.username, "-o", "%i"]).catch(() => ""),
+      (listed) => !submitted.some((id) => listed.split("\n").includes(id)),
+    ).catch(() => undefined);
+    await session.exec(["rm", "-rf", "--", remoteBase]).catch(() => undefined);
   }
   for (const pool of pools) await pool.close();
 });

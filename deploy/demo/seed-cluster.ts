@@ -31,25 +31,51 @@ export async function seedDemoCluster(): Promise<string> {
     const [group] = await db.select().from(groups).where(eq(groups.slug, "kestrel-plasma"));
     const [admin] = await db.select().from(users).where(eq(users.oidcSubject, "demo-group-admin"));
     if (!group || !admin) throw new Error("seed the demo scenario first (deploy/demo/seed.ts)");
-    const principal: Principal = { userId: admin.id, email: admin.email, displayName: admin.displayName, isSiteAdmin: false, via: "session" };
+    const principal: Principal = {
+      userId: admin.id,
+      email: admin.email,
+      displayName: admin.displayName,
+      isSiteAdmin: false,
+      via: "session",
+    };
 
-    let [host] = await db.select().from(hosts).where(and(eq(hosts.groupId, group.id), eq(hosts.name, "kestrel-dev")));
+    let [host] = await db
+      .select()
+      .from(hosts)
+      .where(and(eq(hosts.groupId, group.id), eq(hosts.name, "kestrel-dev")));
     if (!host) {
       const created = await createHost(
         { db, fetchHostKey },
         principal,
         group.id,
-        { name: "kestrel-dev", address: "127.0.0.1", port: env.port, scheduler: "direct", remoteBaseDir: "runs", maxConcurrentRuns: 50 },
+        {
+          name: "kestrel-dev",
+          address: "127.0.0.1",
+          port: env.port,
+          scheduler: "direct",
+          remoteBaseDir: "runs",
+          maxConcurrentRuns: 50,
+        },
         null,
       );
       await confirmHostKey(db, principal, created.id, created.hostKeyFingerprint!, null);
       [host] = await db.select().from(hosts).where(eq(hosts.id, created.id));
     }
-    const [account] = await db.select().from(hostAccounts).where(and(eq(hostAccounts.hostId, host!.id), isNull(hostAccounts.ownerUserId)));
+    const [account] = await db
+      .select()
+      .from(hostAccounts)
+      .where(and(eq(hostAccounts.hostId, host!.id), isNull(hostAccounts.ownerUserId)));
     const publicKey =
       account?.publicKey ??
-      (await createHostAccount({ db, config: { secretsKey: env.secretsKey } }, principal, host!.id, { kind: "group", username: "sigmaflow" }, null))
-        .publicKey;
+      (
+        await createHostAccount(
+          { db, config: { secretsKey: env.secretsKey } },
+          principal,
+          host!.id,
+          { kind: "group", username: "sigmaflow" },
+          null,
+        )
+      ).publicKey;
     const installed = await readFile(env.authorizedKeys, "utf8").catch(() => "");
     if (!installed.includes(publicKey)) await appendFile(env.authorizedKeys, `${publicKey}\n`);
 
@@ -61,7 +87,12 @@ export async function seedDemoCluster(): Promise<string> {
         db,
         principal,
         group.id,
-        { name: `Kestrel ${now.getUTCFullYear()} Q${Math.floor(now.getUTCMonth() / 3) + 1}`, coreHours: 50_000, startsAt: quarterStart.toISOString(), endsAt: quarterEnd.toISOString() },
+        {
+          name: `Kestrel ${now.getUTCFullYear()} Q${Math.floor(now.getUTCMonth() / 3) + 1}`,
+          coreHours: 50_000,
+          startsAt: quarterStart.toISOString(),
+          endsAt: quarterEnd.toISOString(),
+        },
         null,
       );
     }

@@ -214,11 +214,12 @@ describe.concurrent("OpenSSH + Slurm engines on loopback", () => {
   // For a job that starts and ends within seconds, slurmctld sends its start record to slurmdbd only on its
   // next periodic pass (measured here: up to ~5 s later). Until then sacct shows the final State and ExitCode
   // but the placeholder JobName "allocation". Wait for the full record.
-  const finalRow = (jobId: string) =>
+  const finalRow = (jobId: string, settled: (row: AccountingRow) => boolean = () => true) =>
     pollUntil(
       `sacct final record of job ${jobId}`,
       () => accounting(jobId),
-      (row) => row !== undefined && FINAL_STATES.test(row.state) && row.jobName !== "allocation",
+      (row) =>
+        row !== undefined && FINAL_STATES.test(row.state) && row.jobName !== "allocation" && settled(row),
     ) as Promise<AccountingRow>;
 
   it("refuses a server whose host key is not the pinned one", async ({ expect }) => {
@@ -280,7 +281,8 @@ describe.concurrent("OpenSSH + Slurm engines on loopback", () => {
 
   it("reports a script that exits 3 as FAILED with exit code 3:0", async ({ expect }) => {
     const jobId = await submit(`sf-${token}-fail`, "echo about to fail\nexit 3");
-    const row = await finalRow(jobId);
+    // Seen here: sacct may show FAILED with ExitCode 0:0 for a moment before the batch step's code arrives.
+    const row = await finalRow(jobId, (r) => r.exitCode !== "0:0");
     // sacct(1): ExitCode is "exit code:signal"; a non-zero exit of the batch script makes the job FAILED.
     expect(row).toMatchObject({ jobId, jobName: `sf-${token}-fail`, state: "FAILED", exitCode: "3:0" });
     const output = await run(client, `cat ${quote(`${runDir}/sf-${token}-fail.out`)}`);

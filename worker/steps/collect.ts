@@ -50,9 +50,11 @@ export async function collectRun(ctx: WorkerContext, runId: string): Promise<voi
         ? `Finished; ${collected.length} result file(s) collected`
         : finalState === "cancelled"
           ? "Cancelled; the scheduler confirmed the job ended"
-          : run.exitCode !== 0
-            ? `The job ended with exit code ${run.exitCode}; see the log`
-            : `Declared results missing: ${missing.join(", ")}`;
+          : run.exitCode === null
+            ? "The scheduler reports the job failed; see the log"
+            : run.exitCode !== 0
+              ? `The job ended with exit code ${run.exitCode}; see the log`
+              : `Declared results missing: ${missing.join(", ")}`;
     const settled = await ctx.db.transaction(async (tx) => {
       for (const file of collected) {
         await tx

@@ -99,11 +99,14 @@ async function applyStatus(
   const finished = status.state !== "running";
   await storeLog(ctx, run, session, finished);
   if (!finished) return;
+  // A job the scheduler calls failed is never a success, even if its exit code has not arrived yet.
+  const exitCode =
+    status.state === "completed" ? (status.exitCode ?? 0) : status.exitCode === 0 ? null : status.exitCode;
   await withClientTransaction(ctx.pool, async ({ db: tx, executeSql }) => {
     const moved = await transitionRun(tx, run.id, ["submitted", "running"], "collecting", {
       actor: worker,
       message: `The scheduler reports the job ${status.state}${status.exitCode !== null ? ` (exit code ${status.exitCode})` : ""}`,
-      set: { exitCode: status.exitCode, startedAt: run.startedAt ?? status.startedAt ?? new Date() },
+      set: { exitCode, startedAt: run.startedAt ?? status.startedAt ?? new Date() },
     });
     if (moved)
       await ctx.boss.send(

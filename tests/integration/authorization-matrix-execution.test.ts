@@ -5,23 +5,20 @@
  * allocation id; a role too low is a 403; site admins may do everything.
  */
 import { randomBytes } from "node:crypto";
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { afterAll, beforeAll } from "vitest";
 import { allocations, codes, hostAccounts, hosts, recipes } from "../../server/db/schema";
+import {
+  type Caller,
+  describeMatrix,
+  groupAdminOnly,
+  groupRead,
+  groupWrite,
+  type MatrixCase,
+} from "./support/authorization-matrix";
 import { minimalCode, startTestCluster, type TestCluster } from "./support/catalogue-app";
 import { addMember, createGroup, createUser, tokenFor } from "./support/people";
 import { startTestApp } from "./support/test-app";
 import { createTestDatabase, type TestDatabase } from "./support/test-database";
-
-const CALLERS = [
-  "anonymous",
-  "collaborator",
-  "member",
-  "otherGroupAdmin",
-  "groupAdmin",
-  "siteAdmin",
-] as const;
-type Caller = (typeof CALLERS)[number];
-type Expected = Record<Caller, number>;
 
 let database: TestDatabase;
 let app: Awaited<ReturnType<typeof startTestApp>>;
@@ -97,26 +94,7 @@ function freshPeriod() {
   return { startsAt: `${year}-01-01T00:00:00Z`, endsAt: `${year}-01-02T00:00:00Z` };
 }
 
-type Case = {
-  name: string;
-  method: "GET" | "POST" | "PATCH" | "DELETE";
-  path: () => Promise<string> | string;
-  body?: () => unknown;
-  expected: Expected;
-};
-
-const groupRead = (status: number): Expected => ({
-  anonymous: 401,
-  collaborator: status,
-  member: status,
-  otherGroupAdmin: 404,
-  groupAdmin: status,
-  siteAdmin: status,
-});
-const groupWrite = (status: number): Expected => ({ ...groupRead(status), collaborator: 403 });
-const groupAdminOnly = (status: number): Expected => ({ ...groupWrite(status), member: 403 });
-
-const CASES: Case[] = [
+const CASES: MatrixCase[] = [
   { name: "list hosts", method: "GET", path: () => `/api/groups/${groupId}/hosts`, expected: groupRead(200) },
   {
     name: "register a host",
@@ -298,27 +276,4 @@ afterAll(async () => {
   await database?.drop();
 });
 
-describe("authorization matrix: execution catalogue", () => {
-  for (const testCase of CASES) {
-    for (const caller of CALLERS) {
-      it(`${testCase.method} ${testCase.name} as ${caller} → ${testCase.expected[caller]}`, async () => {
-        const headers: Record<string, string> = { "content-type": "application/json" };
-        const token = tokens.get(caller);
-        if (token) headers.authorization = `Bearer ${token}`;
-        const body = testCase.body?.();
-        const response = await fetch(`${app.baseUrl}${await testCase.path()}`, {
-          method: testCase.method,
-          headers,
-          body: body === undefined ? undefined : JSON.stringify(body),
-        });
-        const text = await response.text();
-        expect(response.status, text).toBe(testCase.expected[caller]);
-        if (response.status >= 400) {
-          expect(JSON.parse(text)).toMatchObject({
-            error: { code: expect.any(String), message: expect.any(String) },
-          });
-        }
-      });
-    }
-  }
-});
+describeMatrix("authorization matrix: execution catalogue", CASES, () => ({ baseUrl: app.baseUrl, tokens }));

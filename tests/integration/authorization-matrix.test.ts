@@ -4,24 +4,23 @@
  * Rule being checked (Sigmaflow's access policy): deny by default; a group one does not belong to is a
  * 404; a role too low is a 403; site admins may do everything.
  */
-import { randomBytes } from "node:crypto";
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { randomBytes, randomUUID } from "node:crypto";
+import { afterAll, beforeAll } from "vitest";
 import { hashSecret } from "../../server/auth/tokens";
 import { invitations } from "../../server/db/schema";
+import {
+  type Caller,
+  describeMatrix,
+  everyone,
+  groupAdminOnly,
+  groupRead,
+  type MatrixCase,
+  signedIn,
+  siteAdminOnly,
+} from "./support/authorization-matrix";
 import { addMember, createGroup, createUser, tokenFor } from "./support/people";
 import { startTestApp } from "./support/test-app";
 import { createTestDatabase, type TestDatabase } from "./support/test-database";
-
-const CALLERS = [
-  "anonymous",
-  "collaborator",
-  "member",
-  "otherGroupAdmin",
-  "groupAdmin",
-  "siteAdmin",
-] as const;
-type Caller = (typeof CALLERS)[number];
-type Expected = Record<Caller, number>;
 
 let database: TestDatabase;
 let app: Awaited<ReturnType<typeof startTestApp>>;
@@ -51,35 +50,7 @@ async function freshInvitation(email = `invitee-${randomBytes(3).toString("hex")
   return { id: row!.id, secret };
 }
 
-type Case = {
-  name: string;
-  method: "GET" | "POST" | "PATCH" | "DELETE";
-  path: () => Promise<string> | string;
-  body?: () => unknown;
-  expected: Expected;
-};
-
-const everyone = (status: number): Expected => ({
-  anonymous: status,
-  collaborator: status,
-  member: status,
-  otherGroupAdmin: status,
-  groupAdmin: status,
-  siteAdmin: status,
-});
-const signedIn = (status: number): Expected => ({ ...everyone(status), anonymous: 401 });
-const groupRead = (status: number): Expected => ({ ...signedIn(status), otherGroupAdmin: 404 });
-const groupAdminOnly = (status: number): Expected => ({
-  anonymous: 401,
-  collaborator: 403,
-  member: 403,
-  otherGroupAdmin: 404,
-  groupAdmin: status,
-  siteAdmin: status,
-});
-const siteAdminOnly = (status: number): Expected => ({ ...signedIn(403), siteAdmin: status });
-
-const CASES: Case[] = [
+const CASES: MatrixCase[] = [
   { name: "health", method: "GET", path: () => "/api/health", expected: everyone(200) },
   { name: "me", method: "GET", path: () => "/api/me", expected: signedIn(200) },
   { name: "list groups", method: "GET", path: () => "/api/groups", expected: signedIn(200) },
@@ -167,6 +138,26 @@ const CASES: Case[] = [
     expected: signedIn(404),
   },
   { name: "list all people", method: "GET", path: () => "/api/admin/users", expected: siteAdminOnly(200) },
+  { name: "list runs", method: "GET", path: () => `/api/groups/${groupId}/runs`, expected: groupRead(200) },
+  {
+    name: "read a run that does not exist",
+    method: "GET",
+    path: () => `/api/runs/${randomUUID()}`,
+    expected: signedIn(404),
+  },
+  {
+    name: "cancel a run that does not exist",
+    method: "POST",
+    path: () => `/api/runs/${randomUUID()}/cancel`,
+    expected: signedIn(404),
+  },
+  {
+    name: "submit a run without a spec",
+    method: "POST",
+    path: () => `/api/groups/${groupId}/runs`,
+    body: () => ({}),
+    expected: signedIn(422),
+  },
   { name: "unknown API route", method: "GET", path: () => "/api/nothing-here", expected: everyone(404) },
 ];
 
@@ -199,27 +190,4 @@ afterAll(async () => {
   await database?.drop();
 });
 
-describe("authorization matrix", () => {
-  for (const testCase of CASES) {
-    for (const caller of CALLERS) {
-      it(`${testCase.method} ${testCase.name} as ${caller} → ${testCase.expected[caller]}`, async () => {
-        const headers: Record<string, string> = { "content-type": "application/json" };
-        const token = tokens.get(caller);
-        if (token) headers.authorization = `Bearer ${token}`;
-        const body = testCase.body?.();
-        const response = await fetch(`${app.baseUrl}${await testCase.path()}`, {
-          method: testCase.method,
-          headers,
-          body: body === undefined ? undefined : JSON.stringify(body),
-        });
-        const text = await response.text();
-        expect(response.status, text).toBe(testCase.expected[caller]);
-        if (response.status >= 400) {
-          expect(JSON.parse(text)).toMatchObject({
-            error: { code: expect.any(String), message: expect.any(String) },
-          });
-        }
-      });
-    }
-  }
-});
+describeMatrix("authorization matrix", CASES, () => ({ baseUrl: app.baseUrl, tokens }));

@@ -1,0 +1,72 @@
+/**
+ * The callers and expectation shapes of the authorization matrices, and the loop that sends every case
+ * as every caller. Rule (Sigmaflow's access policy): deny by default; a group one does not belong to is
+ * a 404; a role too low is a 403; site admins may do everything.
+ */
+import { describe, expect, it } from "vitest";
+
+export const CALLERS = [
+  "anonymous",
+  "collaborator",
+  "member",
+  "otherGroupAdmin",
+  "groupAdmin",
+  "siteAdmin",
+] as const;
+export type Caller = (typeof CALLERS)[number];
+export type Expected = Record<Caller, number>;
+
+export type MatrixCase = {
+  name: string;
+  method: "GET" | "POST" | "PATCH" | "DELETE";
+  path: () => Promise<string> | string;
+  body?: () => unknown;
+  expected: Expected;
+};
+
+export const everyone = (status: number): Expected => ({
+  anonymous: status,
+  collaborator: status,
+  member: status,
+  otherGroupAdmin: status,
+  groupAdmin: status,
+  siteAdmin: status,
+});
+export const signedIn = (status: number): Expected => ({ ...everyone(status), anonymous: 401 });
+export const groupRead = (status: number): Expected => ({ ...signedIn(status), otherGroupAdmin: 404 });
+export const groupWrite = (status: number): Expected => ({ ...groupRead(status), collaborator: 403 });
+export const groupAdminOnly = (status: number): Expected => ({ ...groupWrite(status), member: 403 });
+export const siteAdminOnly = (status: number): Expected => ({ ...signedIn(403), siteAdmin: status });
+
+/** One test per case × caller; callers without a token in `tokens` go anonymous. */
+export function describeMatrix(
+  title: string,
+  cases: MatrixCase[],
+  context: () => { baseUrl: string; tokens: Map<Caller, string> },
+): void {
+  describe(title, () => {
+    for (const testCase of cases) {
+      for (const caller of CALLERS) {
+        it(`${testCase.method} ${testCase.name} as ${caller} → ${testCase.expected[caller]}`, async () => {
+          const { baseUrl, tokens } = context();
+          const headers: Record<string, string> = { "content-type": "application/json" };
+          const token = tokens.get(caller);
+          if (token) headers.authorization = `Bearer ${token}`;
+          const body = testCase.body?.();
+          const response = await fetch(`${baseUrl}${await testCase.path()}`, {
+            method: testCase.method,
+            headers,
+            body: body === undefined ? undefined : JSON.stringify(body),
+          });
+          const text = await response.text();
+          expect(response.status, text).toBe(testCase.expected[caller]);
+          if (response.status >= 400) {
+            expect(JSON.parse(text)).toMatchObject({
+              error: { code: expect.any(String), message: expect.any(String) },
+            });
+          }
+        });
+      }
+    }
+  });
+}

@@ -40,6 +40,20 @@ export type AppDeps = {
 /** Request bodies are small JSON documents; anything bigger is refused before parsing. */
 export const JSON_BODY_LIMIT = "100kb";
 
+const utf8 = new TextDecoder("utf-8", { fatal: true });
+
+/** body-parser would decode invalid UTF-8 into U+FFFD and store it; refuse such bodies instead. */
+function requireUtf8(_req: unknown, _res: unknown, buffer: Buffer): void {
+  try {
+    utf8.decode(buffer);
+  } catch {
+    throw Object.assign(new Error("The request body is not valid UTF-8."), {
+      type: "encoding.invalid",
+      status: 400,
+    });
+  }
+}
+
 export function createApp(deps: AppDeps) {
   const { config, log } = deps;
   const app = express();
@@ -66,7 +80,7 @@ export function createApp(deps: AppDeps) {
 
   const passport = configurePassport(deps.db, config.oidc);
   const api = express.Router();
-  api.use(express.json({ limit: JSON_BODY_LIMIT, strict: true }));
+  api.use(express.json({ limit: JSON_BODY_LIMIT, strict: true, verify: requireUtf8 }));
   api.use(sessionMiddleware(deps.pool, config));
   api.use(passport.session());
   api.use(bearerAuth(deps.db));

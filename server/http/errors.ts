@@ -68,6 +68,12 @@ export function errorHandler(log: { error: (obj: object, msg: string) => void })
         );
       return;
     }
+    if (parserError.type === "encoding.invalid") {
+      res
+        .status(400)
+        .json(errorBody("invalid_encoding", "The request body is not valid UTF-8; send UTF-8 JSON."));
+      return;
+    }
     if (parserError.type === "charset.unsupported" || parserError.type === "encoding.unsupported") {
       res.status(415).json(errorBody("unsupported_encoding", "Send the body as UTF-8 JSON."));
       return;

@@ -1,0 +1,291 @@
+/**
+ * Fault injection for the engine tests: a development host that can come back with another host key,
+ * database "gates" that freeze a worker at an exact point of a step (so it can be killed there), a
+ * worker process to SIGKILL, a private PostgreSQL that can be restarted, and readers for what the host
+ * and the API hold about a run.
+ */
+import { type ChildProcess, execFile } from "node:child_process";
+import { randomBytes } from "node:crypto";
+import { appendFile, chown, mkdtemp, readFile, rm, writeFile } from "node:fs/promises";
+import { tmpdir } from "node:os";
+import path from "node:path";
+import { promisify } from "node:util";
+import pg from "pg";
+import { expect } from "vitest";
+import { type FakeCluster, startFakeCluster } from "../../../deploy/fake-cluster/server";
+import { createDatabase } from "../../../server/db/client";
+import { applyMigrations } from "../../../server/db/migrate";
+import { loadWorkerConfig } from "../../../worker/config";
+import { startWorker } from "../../../worker/index";
+import { freePort } from "./http-browser";
+import { type Api, type Sigmaflow, waitFor } from "./lifecycle-harness";
+
+const run = promisify(execFile);
+
+/** A development host like the harness's, which can also come back on its port with a new host key. */
+export async function startRekeyableHost(port = 0) {
+  const dir = await mkdtemp(path.join(tmpdir(), "sf-fault-host-"));
+  const rootDir = path.join(dir, "home");
+  const authorizedKeysPath = path.join(dir, "authorized_keys");
+  await writeFile(authorizedKeysPath, "");
+  let hostKeyPath = path.join(dir, "host_key");
+  let generation = 0;
+  const options = () => ({ rootDir, authorizedKeysPath, hostKeyPath });
+  let cluster: FakeCluster = await startFakeCluster({ ...options(), port });
+  let stopped = false;
+  return {
+    dir,
+    rootDir,
+    get port() {
+      return cluster.port;
+    },
+    get fingerprint() {
+      return cluster.hostKeyFingerprint;
+    },
+    authorize: (publicKey: string) => appendFile(authorizedKeysPath, `${publicKey}\n`),
+    async stop() {
+      stopped = true;
+      await cluster.close();
+    },
+    async restart() {
+      if (!stopped) await cluster.close();
+      cluster = await startFakeCluster({ ...options(), port: cluster.port });
+      stopped = false;
+    },
+    /** The same host (files, accounts, port) presenting a freshly generated host key. */
+    async restartWithNewHostKey(): Promise<string> {
+      if (!stopped) await cluster.close();
+      generation += 1;
+      hostKeyPath = path.join(dir, `host_key_${generation}`);
+      cluster = await startFakeCluster({ ...options(), port: cluster.port });
+      stopped = false;
+      return cluster.hostKeyFingerprint;
+    },
+    cleanup: () => rm(dir, { recursive: true, force: true }),
+  };
+}
+export type RekeyableHost = Awaited<ReturnType<typeof startRekeyableHost>>;
+
+let nextGateKey = 7_300_000 + Math.floor(Math.random() * 100_000);
+
+/**
+ * A trigger that makes matching inserts wait while the gate is closed: the worker's transaction stops
+ * right there, holding everything it did so far uncommitted, and can be killed at that exact point. The
+ * trigger takes a shared advisory lock that conflicts with the exclusive one the closed gate holds.
+ */
+export async function installGate(databaseUrl: string, table: string, when: string) {
+  const key = nextGateKey++;
+  const name = `sf_fault_gate_${key}`;
+  const admin = new pg.Client({ connectionString: databaseUrl });
+  await admin.connect();
+  await admin.query(`create or replace function sf_fault_gate() returns trigger language plpgsql as $$
+    begin perform pg_advisory_xact_lock_shared(tg_argv[0]::bigint); return new; end $$`);
+  await admin.query(
+    `create trigger ${name} before insert on ${table} for each row when (${when}) execute function sf_fault_gate('${key}')`,
+  );
+  let holder: pg.Client | null = null;
+  const gate = {
+    async close() {
+      holder = new pg.Client({ connectionString: databaseUrl });
+      await holder.connect();
+      await holder.query("select pg_advisory_lock($1)", [key]);
+    },
+    /** Waits until a transaction is stopped at the gate. */
+    async waitForWaiter(timeoutMs = 20_000) {
+      await waitFor(
+        async () => {
+          const { rows } = await admin.query(
+            "select count(*)::int as n from pg_locks where locktype = 'advisory' and not granted and objid = $1",
+            [key],
+          );
+          return rows[0].n as number;
+        },
+        (n) => n > 0,
+        timeoutMs,
+        `a transaction waiting at gate ${name}`,
+      );
+    },
+    async open() {
+      const client = holder;
+      holder = null;
+      if (!client) return;
+      await client.query("select pg_advisory_unlock($1)", [key]).catch(() => {});
+      await client.end().catch(() => {});
+    },
+    async remove() {
+      await gate.open();
+      await admin.query(`drop trigger if exists ${name} on ${table}`);
+      await admin.end();
+    },
+  };
+  return gate;
+}
+export type Gate = Awaited<ReturnType<typeof installGate>>;
+
+/** SIGKILLs a worker process and waits until it is gone. */
+export async function killHard(child: ChildProcess): Promise<void> {
+  if (child.exitCode !== null || child.signalCode !== null) return;
+  const gone = new Promise<void>((resolve) => child.once("exit", () => resolve()));
+  child.kill("SIGKILL");
+  await gone;
+}
+
+/** A worker in this process with extra settings (mail relay, intervals). */
+export async function startInProcessWorker(sf: Sigmaflow, extraEnv: Record<string, string> = {}) {
+  return startWorker(loadWorkerConfig({ ...sf.workerEnv, ...extraEnv } as never));
+}
+
+/** Every log chunk of a run through the API, in order, paging by sequence number. */
+export async function apiLogText(api: Api, runId: string): Promise<string> {
+  let afterSeq = 0;
+  let text = "";
+  for (;;) {
+    const page = await api("GET", `/api/runs/${runId}/log?afterSeq=${afterSeq}`);
+    expect(page.status).toBe(200);
+    const chunks = page.body.chunks as { seq: number; text: string }[];
+    if (chunks.length === 0) return text;
+    text += chunks.map((chunk) => chunk.text).join("");
+    afterSeq = page.body.lastSeq;
+  }
+}
+
+export const runDirOnHost = (rootDir: string, runId: string) => path.join(rootDir, "runs", `sf-run-${runId}`);
+
+export const hostFile = (rootDir: string, runId: string, name: string) =>
+  readFile(path.join(runDirOnHost(rootDir, runId), name), "utf8");
+
+export function occurrences(text: string, needle: string): number {
+  return text.split(needle).length - 1;
+}
+
+/**
+ * A two-stage recipe like the harness's, whose prepare stage also appends its process id to
+ * `prepare.starts` in the run folder: an append-only record of how often the job really started there.
+ */
+export async function registerCountingRecipe(sf: Sigmaflow, name = "counted") {
+  const prepare = await sf.api("POST", `/api/groups/${sf.groupId}/codes`, {
+    name: `${name}-prepare`,
+    version: "1.0",
+    executable: "/bin/sh",
+    arguments: ["prepare.sh"],
+    inputTemplates: [
+      {
+        fileName: "prepare.sh",
+        format: "shell",
+        template: [
+          'echo "$$" >> ../prepare.starts',
+          "label={{ label }}",
+          'echo "target label: $label"',
+          'for sym in A1 B1 B2 A2; do echo "symmetry $sym done in 0.25 s"; done',
+          "i=0",
+          "n=$(({{ sleepSeconds }} * 10))",
+          // Ticks while sleeping, so the log grows during the run and polls store it in pieces.
+          'while [ "$i" -lt "$n" ]; do echo "tick $i"; sleep 0.1; i=$((i + 1)); done',
+          'printf "%s\\n" "$label" > orbitals.dat',
+          "echo progress 1/1",
+        ].join("\n"),
+      },
+    ],
+    parameters: {
+      type: "object",
+      properties: {
+        label: { type: "string", maxLength: 5000 },
+        sleepSeconds: { type: "integer", minimum: 0, maximum: 60, default: 0 },
+      },
+      required: ["label"],
+      additionalProperties: false,
+    },
+    outputFiles: ["orbitals.dat"],
+    outputRules: {
+      timings: ["^symmetry (?<symmetry>\\S+) done in (?<seconds>[0-9.]+) s$"],
+      progress: ["^progress (?<done>\\d+)/(?<total>\\d+)$"],
+    },
+  });
+  expect(prepare.status, JSON.stringify(prepare.body)).toBe(201);
+  const scatter = await sf.api("POST", `/api/groups/${sf.groupId}/codes`, {
+    name: `${name}-scatter`,
+    version: "1.0",
+    executable: "/bin/sh",
+    arguments: ["scatter.sh"],
+    inputTemplates: [
+      {
+        fileName: "scatter.sh",
+        format: "shell",
+        template: 'echo "K-matrix from $(cat orbitals.dat)" > kmatrix.dat\n',
+      },
+    ],
+    outputFiles: ["kmatrix.dat"],
+  });
+  expect(scatter.status, JSON.stringify(scatter.body)).toBe(201);
+  const recipe = await sf.api("POST", `/api/groups/${sf.groupId}/recipes`, {
+    name,
+    stages: [
+      { name: "prepare", codeId: prepare.body.id },
+      { name: "scatter", codeId: scatter.body.id },
+    ],
+  });
+  expect(recipe.status, JSON.stringify(recipe.body)).toBe(201);
+  return recipe.body.id as string;
+}
+
+/** createTestDatabase against any PostgreSQL: a fresh database with the migrations applied. */
+export async function createDatabaseAt(adminUrl: string, label: string) {
+  const name = `sf_${label.replace(/[^a-z0-9]/gi, "_").toLowerCase()}_${randomBytes(4).toString("hex")}`;
+  const admin = new pg.Client({ connectionString: adminUrl });
+  await admin.connect();
+  await admin.query(`create database ${name}`);
+  await admin.end();
+  const url = new URL(adminUrl);
+  url.pathname = `/${name}`;
+  await applyMigrations(url.toString());
+  const { db, pool } = createDatabase(url.toString());
+  return {
+    db,
+    pool,
+    url: url.toString(),
+    async drop() {
+      await pool.end();
+      const client = new pg.Client({ connectionString: adminUrl });
+      await client.connect();
+      await client.query(`drop database if exists ${name} with (force)`);
+      await client.end();
+    },
+  };
+}
+
+const PG_BIN = process.env.SF_PG_BIN ?? "/usr/lib/postgresql/15/bin";
+
+/**
+ * A PostgreSQL cluster of its own (initdb as the postgres user, trust authentication, no fsync), for
+ * tests that restart the database or load it heavily without disturbing the shared one.
+ */
+export async function startPrivatePostgres() {
+  const dir = await mkdtemp(path.join(tmpdir(), "sf-private-pg-"));
+  const { uid, gid } = await postgresIds();
+  await chown(dir, uid, gid);
+  const dataDir = path.join(dir, "data");
+  const asPostgres = (bin: string, args: string[]) =>
+    run("runuser", ["-u", "postgres", "--", path.join(PG_BIN, bin), ...args], { timeout: 60_000 });
+  await asPostgres("initdb", ["-D", dataDir, "-A", "trust", "-U", "postgres", "--no-sync"]);
+  const port = await freePort();
+  const serverOptions = `-p ${port} -k ${dir} -c listen_addresses=127.0.0.1 -c fsync=off -c max_connections=200`;
+  const ctl = (action: string, extra: string[] = []) =>
+    asPostgres("pg_ctl", ["-D", dataDir, "-l", path.join(dir, "server.log"), "-w", ...extra, action]);
+  await ctl("start", ["-o", serverOptions]);
+  return {
+    port,
+    adminUrl: `postgres://postgres@127.0.0.1:${port}/postgres`,
+    /** `pg_ctl restart -m fast`: every connection is cut, the server is back when this resolves. */
+    restart: () => ctl("restart", ["-m", "fast", "-o", serverOptions]),
+    async stop() {
+      await ctl("stop", ["-m", "immediate"]).catch(() => {});
+      await rm(dir, { recursive: true, force: true });
+    },
+  };
+}
+export type PrivatePostgres = Awaited<ReturnType<typeof startPrivatePostgres>>;
+
+async function postgresIds(): Promise<{ uid: number; gid: number }> {
+  const [uid, gid] = await Promise.all([run("id", ["-u", "postgres"]), run("id", ["-g", "postgres"])]);
+  return { uid: Number(uid.stdout.trim()), gid: Number(gid.stdout.trim()) };
+}

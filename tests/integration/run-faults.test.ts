@@ -271,8 +271,8 @@ describe("the host goes away", () => {
       "the host-key mail to the group admin",
     );
     expect(mail).toHaveLength(1);
-    expect(mail[0].subject).toBe("Sigmaflow: host key of fault-host changed");
-    expect(mail[0].text).toContain(newFingerprint);
+    expect(mail[0]!.subject).toBe("Sigmaflow: host key of fault-host changed");
+    expect(mail[0]!.text).toContain(newFingerprint);
     const refused = await sf.api(
       "POST",
       `/api/groups/${sf.groupId}/runs`,

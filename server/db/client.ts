@@ -7,6 +7,9 @@ export function createDatabase(databaseUrl: string) {
   // An idle client that loses its connection (e.g. PostgreSQL restarting) must not crash the process;
   // the pool replaces it on next use.
   pool.on("error", () => {});
+  // A client checked out while the server goes away emits "error" itself; its query rejects anyway, so
+  // the listener only keeps the event from crashing the process.
+  pool.on("connect", (client) => client.on("error", () => {}));
   const db = drizzle(pool, { schema });
   return { pool, db };
 }

@@ -16,6 +16,7 @@ import type { HostRow, RunRow } from "./run-runtime";
 import {
   AuthenticationError,
   HostKeyMismatchError,
+  HostKeyUnconfirmedError,
   RemoteCommandError,
   RemoteFileError,
   RemotePathError,
@@ -186,6 +187,10 @@ export async function guardStep(
         { runId: run.id, step, attempts, delayMs, err: error.message },
         "transport trouble, retrying",
       );
+      return;
+    }
+    if (error instanceof HostKeyUnconfirmedError) {
+      await holdRun(ctx, run, step, `Held: ${error.message}.`);
       return;
     }
     if (error instanceof AuthenticationError) {

@@ -47,14 +47,22 @@ export async function pollAllHosts(ctx: WorkerContext): Promise<void> {
   );
 }
 
-/** Resumes held runs whose host answers again (never those held for a changed host key). */
+/**
+ * Resumes held runs whose host answers again — never while the host's key is mismatched or a replaced
+ * key is not yet confirmed by an admin.
+ */
 export async function resumeHeldRuns(ctx: WorkerContext): Promise<number> {
   const held = await ctx.db
     .select({ run: runs, host: hosts })
     .from(runs)
     .innerJoin(hosts, eq(hosts.id, runs.hostId))
     .where(
-      and(eq(runs.state, "held"), sql`${hosts.status} <> 'key_mismatch'`, isNotNull(runs.heldFromState)),
+      and(
+        eq(runs.state, "held"),
+        sql`${hosts.status} <> 'key_mismatch'`,
+        isNotNull(hosts.hostKeyConfirmedAt),
+        isNotNull(runs.heldFromState),
+      ),
     );
   const byHost = groupBy(held, (row) => row.host.id);
   let resumed = 0;

@@ -9,6 +9,7 @@ import { loadAccountCredentials } from "../server/services/host-accounts.service
 import type { WorkerContext } from "./context";
 import { schedulerFor } from "./schedulers";
 import type { JobRef } from "./schedulers/types";
+import { HostKeyUnconfirmedError } from "./ssh/errors";
 import type { RemoteSession, SshTarget } from "./ssh/pool";
 
 export type RunRow = typeof runs.$inferSelect;
@@ -43,6 +44,7 @@ export async function sessionFor(
   accountId: string,
 ): Promise<RemoteSession> {
   if (!host.hostKey) throw new Error(`host ${host.name} has no pinned host key`);
+  if (!host.hostKeyConfirmedAt) throw new HostKeyUnconfirmedError(host.name);
   const account = await credentials(ctx, accountId);
   const target: SshTarget = {
     key: `${host.id}:${accountId}`,

@@ -129,8 +129,7 @@ async function expectDoneExactlyOnce(runId: string, label: string, timeoutMs = 4
 }
 
 describe("a worker killed with SIGKILL, and restarted", () => {
-  // Open in issue 4: this check still fails against the current worker; see the closing note.
-  it.skip("killed in staging, after the host started the job and before the worker recorded it: no second job", async () => {
+  it("killed in staging, after the host started the job and before the worker recorded it: no second job", async () => {
     const gate = await installGate(database.url, "run_events", "new.to_state = 'submitted'");
     try {
       await gate.close();
@@ -155,8 +154,7 @@ describe("a worker killed with SIGKILL, and restarted", () => {
     }
   });
 
-  // Open in issue 4: this check still fails against the current worker; see the closing note.
-  it.skip("killed in submitted, while the poller was recording that the job started", async () => {
+  it("killed in submitted, while the poller was recording that the job started", async () => {
     const gate = await installGate(database.url, "run_events", "new.to_state = 'running'");
     try {
       await gate.close();
@@ -187,8 +185,7 @@ describe("a worker killed with SIGKILL, and restarted", () => {
     await expectDoneExactlyOnce(runId, "kill-running");
   });
 
-  // Open in issue 4: this check still fails against the current worker; see the closing note.
-  it.skip("killed in collecting, inside the transaction that settles the run", async () => {
+  it("killed in collecting, inside the transaction that settles the run", async () => {
     const gate = await installGate(
       database.url,
       "run_events",
@@ -239,8 +236,7 @@ describe("the host goes away", () => {
     expect((await sf.api("GET", `/api/hosts/${hostId}`)).body.status).toBe("ok");
   });
 
-  // Open in issue 4: this check still fails against the current worker; see the closing note.
-  it.skip("holds everything on a changed host key, tells the admins, and resumes only after an admin confirms", async () => {
+  it("holds everything on a changed host key, tells the admins, and resumes only after an admin confirms", async () => {
     await fetch(inboxUrl, { method: "DELETE" });
     const runId = await submit("rekeyed", 4);
     await waitForState(sf, runId, ["running"]);
@@ -438,8 +434,7 @@ describe("hostile input at the API", () => {
     expect(await rowCounts()).toEqual(before);
   });
 
-  // Open in issue 4: this check still fails against the current worker; see the closing note.
-  it.skip("runs hostile values only as data, and nothing lands outside the run folders", async () => {
+  it("runs hostile values only as data, and nothing lands outside the run folders", async () => {
     const hostile = `'; touch ../../../pwned; echo '$(touch /tmp/sf-pwned)\`touch pwned\`"../../etc/passwd /abs/path *`;
     const runId = await submit(hostile.slice(0, 100), 0);
     const run = await waitForState(sf, runId, ["done", "failed"]);

@@ -46,6 +46,18 @@ export class HostKeyMismatchError extends SshError {
   }
 }
 
+/**
+ * The pinned host key was replaced (refreshed) but no admin has confirmed it yet: Sigmaflow does not
+ * connect with a key nobody vouched for, so the run waits for a person.
+ */
+export class HostKeyUnconfirmedError extends SshError {
+  readonly retryable = false;
+  override readonly name = "HostKeyUnconfirmedError";
+  constructor(readonly hostName: string) {
+    super(`the host key of ${hostName} waits for an admin's confirmation`);
+  }
+}
+
 /** The host refused our key (wrong account key, locked account): needs a person, not a retry. */
 export class AuthenticationError extends SshError {
   readonly retryable = false;

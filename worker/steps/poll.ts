@@ -16,7 +16,7 @@ import { readLogFrom } from "../logs/tail";
 import { type HostRow, jobRefOf, loadHost, planOf, type RunRow, sessionFor } from "../run-runtime";
 import { schedulerFor } from "../schedulers";
 import type { JobStatus } from "../schedulers/types";
-import { HostKeyMismatchError, TransportError } from "../ssh/errors";
+import { HostKeyMismatchError, HostKeyUnconfirmedError, TransportError } from "../ssh/errors";
 import type { RemoteSession } from "../ssh/pool";
 
 const worker = { kind: "worker" } as const;
@@ -123,6 +123,11 @@ const lastHostSuccess = new Map<string, number>();
 export async function pollHost(ctx: WorkerContext, hostId: string): Promise<void> {
   const host = await loadHost(ctx, hostId);
   if (host.status === "key_mismatch") return;
+  if (!host.hostKeyConfirmedAt) {
+    // A replaced key nobody confirmed yet: no connection with it; the runs wait for an admin.
+    await holdHostRuns(ctx, hostId, `Held: ${new HostKeyUnconfirmedError(host.name).message}.`);
+    return;
+  }
   const active = await ctx.db
     .select()
     .from(runs)

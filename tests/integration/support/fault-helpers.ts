@@ -84,6 +84,7 @@ export async function installGate(databaseUrl: string, table: string, when: stri
     `create trigger ${name} before insert on ${table} for each row when (${when}) execute function sf_fault_gate('${key}')`,
   );
   let holder: pg.Client | null = null;
+  let removed = false;
   const gate = {
     async close() {
       holder = new pg.Client({ connectionString: databaseUrl });
@@ -112,8 +113,11 @@ export async function installGate(databaseUrl: string, table: string, when: stri
       await client.query("select pg_advisory_unlock($1)", [key]).catch(() => {});
       await client.end().catch(() => {});
     },
+    /** Opens the gate and drops its trigger; safe to call more than once. */
     async remove() {
       await gate.open();
+      if (removed) return;
+      removed = true;
       await admin.query(`drop trigger if exists ${name} on ${table}`);
       await admin.end();
     },

@@ -12,13 +12,22 @@ import type { RunState } from "../shared/schemas/execution/runs";
 import type { WorkerContext } from "./context";
 import type { HeldStep } from "./failures";
 import { groupBy } from "./group-by";
+import { wakeWaitingRuns } from "./host-slots";
 import { sessionFor } from "./run-runtime";
 import { markHost, pollHost } from "./steps/poll";
 
 const worker = { kind: "worker" } as const;
 
-/** Polls each host with active runs, at most one poller per host at a time across worker processes. */
+/**
+ * Polls each host with active runs, at most one poller per host at a time across worker processes, then
+ * hands runs waiting for a host slot back to staging where slots came free.
+ */
 export async function pollAllHosts(ctx: WorkerContext): Promise<void> {
+  await pollHostsWithActiveRuns(ctx);
+  await wakeWaitingRuns(ctx);
+}
+
+async function pollHostsWithActiveRuns(ctx: WorkerContext): Promise<void> {
   const rows = await ctx.db
     .selectDistinct({ hostId: runs.hostId })
     .from(runs)

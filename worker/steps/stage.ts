@@ -10,6 +10,7 @@ import { runs } from "../../server/db/schema";
 import { transitionRun } from "../../server/execution/run-transitions";
 import type { WorkerContext } from "../context";
 import { guardStep } from "../failures";
+import { takeHostSlot } from "../host-slots";
 import { loadRun, runtimeFor } from "../run-runtime";
 import { prepareRunDir, stageFiles } from "../ssh/remote-fs";
 
@@ -21,15 +22,7 @@ export async function stageRun(ctx: WorkerContext, runId: string): Promise<void>
   const rt = await runtimeFor(ctx, run).catch(() => null);
   await guardStep(ctx, run, rt?.host ?? null, "stage", async () => {
     const { session, plan } = rt ?? (await runtimeFor(ctx, run));
-    if (run.state === "queued") {
-      const started = await ctx.db.transaction((tx) =>
-        transitionRun(tx, run.id, ["queued"], "staging", {
-          actor: worker,
-          message: "Copying inputs to the host",
-        }),
-      );
-      if (!started) return;
-    }
+    if (run.state === "queued" && !(await takeHostSlot(ctx, run))) return;
     if (!run.stagedFiles) {
       const runDir = await prepareRunDir(session, dirname(run.remoteDir), run.remoteDir.split("/").at(-1)!);
       const staged = await stageFiles(

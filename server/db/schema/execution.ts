@@ -3,6 +3,8 @@
  * allocations with their ledger, and runs with their events, log chunks, timings and artefacts.
  * Core-hours are stored as whole core-seconds (bigint) so sums and balances are exact.
  */
+
+import { sql } from "drizzle-orm";
 import {
   bigint,
   bigserial,
@@ -169,6 +171,11 @@ export const runs = pgTable(
     fingerprint: varchar("fingerprint", { length: 64 }).notNull(),
     state: runState("state").notNull().default("queued"),
     stateMessage: text("state_message"),
+    /**
+     * Set while a queued run waits because its host already runs its `max_concurrent_runs`; the poller
+     * hands such runs back to staging, oldest first, as slots free up.
+     */
+    waitingForSlotSince: timestamp("waiting_for_slot_since", { withTimezone: true }),
     cores: integer("cores").notNull(),
     wallTimeMinutes: integer("wall_time_minutes").notNull(),
     reservedCoreSeconds: coreSeconds("reserved_core_seconds").notNull(),
@@ -201,6 +208,9 @@ export const runs = pgTable(
   (t) => [
     index("runs_group_created_idx").on(t.groupId, t.createdAt),
     index("runs_host_state_idx").on(t.hostId, t.state),
+    index("runs_waiting_for_slot_idx")
+      .on(t.hostId, t.waitingForSlotSince)
+      .where(sql`${t.waitingForSlotSince} is not null`),
     index("runs_fingerprint_idx").on(t.groupId, t.fingerprint),
     uniqueIndex("runs_submit_token_key").on(t.submitToken),
   ],

@@ -4,12 +4,11 @@
  * worker process to SIGKILL, a private PostgreSQL that can be restarted, and readers for what the host
  * and the API hold about a run.
  */
-import { type ChildProcess, execFile } from "node:child_process";
+import type { ChildProcess } from "node:child_process";
 import { randomBytes } from "node:crypto";
-import { appendFile, chown, mkdtemp, readFile, rm, writeFile } from "node:fs/promises";
+import { appendFile, mkdtemp, readFile, rm, writeFile } from "node:fs/promises";
 import { tmpdir } from "node:os";
 import path from "node:path";
-import { promisify } from "node:util";
 import pg from "pg";
 import { expect } from "vitest";
 import { type FakeCluster, startFakeCluster } from "../../../deploy/fake-cluster/server";
@@ -17,10 +16,9 @@ import { createDatabase } from "../../../server/db/client";
 import { applyMigrations } from "../../../server/db/migrate";
 import { loadWorkerConfig } from "../../../worker/config";
 import { startWorker } from "../../../worker/index";
-import { freePort } from "./http-browser";
 import { type Api, type Sigmaflow, waitFor } from "./lifecycle-harness";
 
-const run = promisify(execFile);
+export { type PrivatePostgres, startPrivatePostgres } from "./private-postgres";
 
 /** A development host like the harness's, which can also come back on its port with a new host key. */
 export async function startRekeyableHost(port = 0) {
@@ -255,41 +253,4 @@ export async function createDatabaseAt(adminUrl: string, label: string) {
       await client.end();
     },
   };
-}
-
-const PG_BIN = process.env.SF_PG_BIN ?? "/usr/lib/postgresql/15/bin";
-
-/**
- * A PostgreSQL cluster of its own (initdb as the postgres user, trust authentication, no fsync), for
- * tests that restart the database or load it heavily without disturbing the shared one.
- */
-export async function startPrivatePostgres() {
-  const dir = await mkdtemp(path.join(tmpdir(), "sf-private-pg-"));
-  const { uid, gid } = await postgresIds();
-  await chown(dir, uid, gid);
-  const dataDir = path.join(dir, "data");
-  const asPostgres = (bin: string, args: string[]) =>
-    run("runuser", ["-u", "postgres", "--", path.join(PG_BIN, bin), ...args], { timeout: 60_000 });
-  await asPostgres("initdb", ["-D", dataDir, "-A", "trust", "-U", "postgres", "--no-sync"]);
-  const port = await freePort();
-  const serverOptions = `-p ${port} -k ${dir} -c listen_addresses=127.0.0.1 -c fsync=off -c max_connections=200`;
-  const ctl = (action: string, extra: string[] = []) =>
-    asPostgres("pg_ctl", ["-D", dataDir, "-l", path.join(dir, "server.log"), "-w", ...extra, action]);
-  await ctl("start", ["-o", serverOptions]);
-  return {
-    port,
-    adminUrl: `postgres://postgres@127.0.0.1:${port}/postgres`,
-    /** `pg_ctl restart -m fast`: every connection is cut, the server is back when this resolves. */
-    restart: () => ctl("restart", ["-m", "fast", "-o", serverOptions]),
-    async stop() {
-      await ctl("stop", ["-m", "immediate"]).catch(() => {});
-      await rm(dir, { recursive: true, force: true });
-    },
-  };
-}
-export type PrivatePostgres = Awaited<ReturnType<typeof startPrivatePostgres>>;
-
-async function postgresIds(): Promise<{ uid: number; gid: number }> {
-  const [uid, gid] = await Promise.all([run("id", ["-u", "postgres"]), run("id", ["-g", "postgres"])]);
-  return { uid: Number(uid.stdout.trim()), gid: Number(gid.stdout.trim()) };
 }

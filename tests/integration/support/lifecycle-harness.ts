@@ -12,9 +12,12 @@ import { expect } from "vitest";
 import { type FakeCluster, startFakeCluster } from "../../../deploy/fake-cluster/server";
 import { loadWorkerConfig } from "../../../worker/config";
 import { startWorker } from "../../../worker/index";
+import { apiClient, waitFor } from "./api-client";
 import { addMember, createGroup, createUser, tokenFor } from "./people";
 import { startTestApp } from "./test-app";
 import type { TestDatabase } from "./test-database";
+
+export { type Api, apiClient, waitFor } from "./api-client";
 
 export const WORKER_TEST_ENV = {
   SIGMAFLOW_SECRETS_KEY: "integration-test-secrets-key-0123456789abcdef",
@@ -27,47 +30,6 @@ export const WORKER_TEST_ENV = {
   WORKER_HOLD_PROBE_INTERVAL_MS: "300",
   LOG_LEVEL: process.env.SF_TEST_WORKER_LOG ?? "silent",
 };
-
-// biome-ignore lint/suspicious/noExplicitAny: test responses are read loosely, field by field.
-export type Api = <T = any>(
-  method: string,
-  path: string,
-  body?: unknown,
-) => Promise<{ status: number; body: T }>;
-
-export function apiClient(baseUrl: string, token: string): Api {
-  return async (method, urlPath, body) => {
-    const response = await fetch(`${baseUrl}${urlPath}`, {
-      method,
-      headers: { authorization: `Bearer ${token}`, "content-type": "application/json" },
-      body: body === undefined ? undefined : JSON.stringify(body),
-    });
-    const text = await response.text();
-    let parsed: unknown = text;
-    try {
-      parsed = text ? JSON.parse(text) : null;
-    } catch {}
-    return { status: response.status, body: parsed as never };
-  };
-}
-
-/** Polls `read` until `accept` holds or the time is up (then fails with the last value seen). */
-export async function waitFor<T>(
-  read: () => Promise<T>,
-  accept: (value: T) => boolean,
-  timeoutMs = 30_000,
-  label = "condition",
-): Promise<T> {
-  const deadline = Date.now() + timeoutMs;
-  let last: T = await read();
-  while (!accept(last)) {
-    if (Date.now() > deadline)
-      throw new Error(`timed out waiting for ${label}; last seen: ${JSON.stringify(last).slice(0, 800)}`);
-    await new Promise((resolve) => setTimeout(resolve, 100));
-    last = await read();
-  }
-  return last;
-}
 
 export async function startFakeHost(port = 0) {
   const dir = await mkdtemp(path.join(tmpdir(), "sf-fake-host-"));
@@ -148,7 +110,14 @@ export type Sigmaflow = Awaited<ReturnType<typeof startSigmaflow>>;
 /** Registers a host through the API, confirms its key and installs a generated group account key. */
 export async function registerHost(
   sf: Sigmaflow,
-  host: { name: string; address: string; port: number; scheduler: "direct" | "slurm"; remoteBaseDir: string },
+  host: {
+    name: string;
+    address: string;
+    port: number;
+    scheduler: "direct" | "slurm";
+    remoteBaseDir: string;
+    maxConcurrentRuns?: number;
+  },
   account: { username: string; privateKey?: string; authorize?: (publicKey: string) => Promise<void> },
 ) {
   const created = await sf.api("POST", `/api/groups/${sf.groupId}/hosts`, host);

@@ -1,0 +1,2 @@
+ALTER TABLE "runs" ADD COLUMN "waiting_for_slot_since" timestamp with time zone;--> statement-breakpoint
+CREATE INDEX "runs_waiting_for_slot_idx" ON "runs" USING btree ("host_id","waiting_for_slot_since") WHERE "runs"."waiting_for_slot_since" is not null;

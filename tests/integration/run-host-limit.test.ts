@@ -1,0 +1,105 @@
+/**
+ * A host's limit of runs at once (max_concurrent_runs): more runs than slots are submitted together;
+ * the extra ones wait `queued` with a message saying why, start as slots free up, and all finish. The
+ * limit is checked from the recorded state changes (each run holds a slot from `staging` until it is
+ * settled), so the check does not depend on sampling at the right moment.
+ */
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import {
+  type FakeHost,
+  registerHost,
+  registerShellRecipe,
+  runSpec,
+  type Sigmaflow,
+  startFakeHost,
+  startSigmaflow,
+  waitFor,
+  waitForState,
+} from "./support/lifecycle-harness";
+import { createTestDatabase, type TestDatabase } from "./support/test-database";
+
+const LIMIT = 2;
+const RUNS = 6;
+
+let database: TestDatabase;
+let sf: Sigmaflow;
+let host: FakeHost;
+let hostId: string;
+let recipeId: string;
+
+beforeAll(async () => {
+  database = await createTestDatabase("hostlimit");
+  sf = await startSigmaflow(database);
+  host = await startFakeHost();
+  hostId = await registerHost(
+    sf,
+    {
+      name: "narrow-host",
+      address: "127.0.0.1",
+      port: host.port,
+      scheduler: "direct",
+      remoteBaseDir: "runs",
+      maxConcurrentRuns: LIMIT,
+    },
+    { username: "sigmaflow", authorize: host.authorize },
+  );
+  recipeId = await registerShellRecipe(sf, "limited");
+}, 60_000);
+
+afterAll(async () => {
+  await sf?.close();
+  await host?.stop();
+  await database?.drop();
+});
+
+/** Largest number of runs holding a slot at the same instant, from their staging and settling events. */
+async function mostRunsAtOnce(runIds: string[]): Promise<number> {
+  const { rows } = await database.pool.query<{ at: Date; to_state: string }>(
+    `select at, to_state from run_events
+      where run_id = any($1) and to_state in ('staging', 'done', 'failed', 'cancelled')
+      order by at, id`,
+    [runIds],
+  );
+  let current = 0;
+  let most = 0;
+  for (const row of rows) {
+    current += row.to_state === "staging" ? 1 : -1;
+    most = Math.max(most, current);
+  }
+  return most;
+}
+
+describe("a host that runs at most two runs at once", () => {
+  it("keeps the extra runs queued with a reason, then runs them all", async () => {
+    const ids = await Promise.all(
+      Array.from({ length: RUNS }, async (_, i) => {
+        const created = await sf.api(
+          "POST",
+          `/api/groups/${sf.groupId}/runs`,
+          runSpec(recipeId, hostId, { prepare: { label: `limited-${i}`, sleepSeconds: 1 } }, `limited-${i}`),
+        );
+        expect(created.status, JSON.stringify(created.body)).toBe(201);
+        return created.body.id as string;
+      }),
+    );
+    const waiting = await waitFor(
+      () => sf.api("GET", `/api/runs/${ids.at(-1)}`),
+      (r) => r.body.state !== "queued" || /^Waiting for a free slot/.test(r.body.stateMessage ?? ""),
+      15_000,
+      "a run to wait for a slot",
+    );
+    if (waiting.body.state === "queued") {
+      expect(waiting.body.stateMessage).toBe("Waiting for a free slot: narrow-host runs at most 2 at once");
+    }
+    for (const id of ids) {
+      const run = await waitForState(sf, id, ["done", "failed", "cancelled"], 60_000);
+      expect(run.state, run.stateMessage).toBe("done");
+    }
+    expect(await mostRunsAtOnce(ids)).toBe(LIMIT);
+    const { rows } = await database.pool.query(
+      "select count(*)::int as n from runs where id = any($1) and waiting_for_slot_since is not null",
+      [ids],
+    );
+    expect(rows[0].n).toBe(0);
+  });
+});

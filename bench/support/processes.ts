@@ -20,22 +20,30 @@ export function freePort(): Promise<number> {
 }
 
 /**
- * Starts `node --import tsx <script>` with `env` and resolves once a line of its standard output
- * contains `readyText`; its standard error passes through so failures are visible.
+ * Starts `node --import tsx <script>` with `env` and resolves once its standard output contains
+ * `readyText` (at once when null); its standard error passes through so failures are visible.
  */
 export function startNodeService(
   script: string,
   env: Record<string, string>,
-  readyText: string,
+  readyText: string | null,
   timeoutMs = 30_000,
 ): Promise<ChildProcess> {
   const child = spawn(process.execPath, ["--import", "tsx", script], {
     env: { ...process.env, ...env },
     stdio: ["ignore", "pipe", "inherit"],
   });
+  if (readyText === null) {
+    child.stdout!.resume();
+    return Promise.resolve(child);
+  }
   return new Promise((resolve, reject) => {
-    const timer = setTimeout(() => reject(new Error(`${script} did not start within ${timeoutMs} ms`)), timeoutMs);
-    const onExit = (code: number | null) => reject(new Error(`${script} exited (${code}) before it was ready`));
+    const timer = setTimeout(
+      () => reject(new Error(`${script} did not start within ${timeoutMs} ms`)),
+      timeoutMs,
+    );
+    const onExit = (code: number | null) =>
+      reject(new Error(`${script} exited (${code}) before it was ready`));
     child.once("exit", onExit);
     let seen = "";
     child.stdout!.on("data", (data: Buffer) => {
@@ -44,6 +52,8 @@ export function startNodeService(
         clearTimeout(timer);
         child.off("exit", onExit);
         seen = "";
+        child.stdout!.removeAllListeners("data");
+        child.stdout!.resume();
         resolve(child);
       }
     });
@@ -70,7 +80,10 @@ export type FakeClusterProcess = {
 };
 
 /** The development cluster host (deploy/fake-cluster) in its own process, files under `workDir`. */
-export async function startFakeClusterProcess(workDir: string, authorizedKeys = ""): Promise<FakeClusterProcess> {
+export async function startFakeClusterProcess(
+  workDir: string,
+  authorizedKeys = "",
+): Promise<FakeClusterProcess> {
   const authorizedKeysPath = path.join(workDir, "authorized_keys");
   const hostKeyPath = path.join(workDir, "host_key");
   const rootDir = path.join(workDir, "root");
@@ -97,6 +110,25 @@ export function processCpuSeconds(pid: number): number {
   // Fields 14–17 of proc(5) (utime, stime, cutime, cstime) are 12–15 here, after pid and comm.
   const ticks = [11, 12, 13, 14].reduce((sum, index) => sum + Number(fields[index]), 0);
   return ticks / 100; // USER_HZ is 100 on Linux (common practice; sysconf(_SC_CLK_TCK)).
+}
+
+/** CPU seconds of a process and its live direct children (a PostgreSQL postmaster and its backends). */
+export function processTreeCpuSeconds(pid: number): number {
+  let total = processCpuSeconds(pid);
+  for (const entry of readdirSync("/proc")) {
+    if (!/^\d+$/.test(entry)) continue;
+    try {
+      const stat = readFileSync(`/proc/${entry}/stat`, "utf8");
+      const parent = Number(stat.slice(stat.lastIndexOf(")") + 2).split(" ")[1]);
+      if (parent === pid) total += processCpuSeconds(Number(entry));
+    } catch {}
+  }
+  return total;
+}
+
+/** The postmaster's pid, from the first line of postmaster.pid in the data folder. */
+export function postmasterPid(dataDir: string): number {
+  return Number(readFileSync(path.join(dataDir, "postmaster.pid"), "utf8").split("\n")[0]);
 }
 
 /**

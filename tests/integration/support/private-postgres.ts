@@ -32,6 +32,7 @@ export async function startPrivatePostgres(options: { maxConnections?: number; d
   await ctl("start", ["-o", serverOptions]);
   return {
     port,
+    dataDir,
     adminUrl: `postgres://postgres@127.0.0.1:${port}/postgres`,
     /** `pg_ctl restart -m fast`: every connection is cut, the server is back when this resolves. */
     restart: () => ctl("restart", ["-m", "fast", "-o", serverOptions]),

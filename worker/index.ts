@@ -15,6 +15,9 @@ import { cancelRunOnHost } from "./steps/cancel";
 import { collectRun } from "./steps/collect";
 import { stageRun } from "./steps/stage";
 
+/** Step items one handler loop takes per fetch. */
+const STEP_BATCH_SIZE = 4;
+
 export async function startWorker(config = loadWorkerConfig()) {
   const log = createLogger(config.logLevel).child({ service: "sigmaflow-worker" });
   await applyMigrations(config.databaseUrl);
@@ -33,10 +36,14 @@ export async function startWorker(config = loadWorkerConfig()) {
   } as const;
   for (const [queue, handler] of Object.entries(handlers)) {
     for (let i = 0; i < config.concurrency; i += 1) {
-      await boss.work(
+      // A full batch means more items are probably waiting: the loop then fetches again at once instead
+      // of sleeping for the polling interval (pg-boss sleeps unless the worker was notified).
+      let workerId = "";
+      workerId = await boss.work(
         queue,
-        { batchSize: 4, pollingIntervalSeconds: config.queuePollSeconds },
+        { batchSize: STEP_BATCH_SIZE, pollingIntervalSeconds: config.queuePollSeconds },
         async (jobs) => {
+          if (jobs.length === STEP_BATCH_SIZE) boss.notifyWorker(workerId);
           await Promise.all(
             jobs.map(async (job) => {
               const { runId } = runStepPayloadSchema.parse(job.data);

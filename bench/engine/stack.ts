@@ -37,13 +37,19 @@ export type StackOptions = {
   workerEnv?: Record<string, string>;
   maxConcurrentRuns?: number;
   code: CodeDefinition;
+  /** Load pg_stat_statements, so `topStatements()` can say which statements the work cost. */
+  statementStatistics?: boolean;
 };
 
 const SECRETS_KEY = randomBytes(32).toString("hex");
 
 export async function startEngineStack(options: StackOptions) {
   const work = mkdtempSync(path.join(tmpdir(), "sigmaflow-engine-bench-"));
-  const postgres = await startPrivatePostgres({ maxConnections: 300, durable: options.durable ?? true });
+  const postgres = await startPrivatePostgres({
+    maxConnections: 300,
+    durable: options.durable ?? true,
+    extraOptions: options.statementStatistics ? "-c shared_preload_libraries=pg_stat_statements" : "",
+  });
   const adminClient = new pg.Client({ connectionString: postgres.adminUrl });
   await adminClient.connect();
   await adminClient.query("create database sigmaflow_bench");
@@ -51,6 +57,7 @@ export async function startEngineStack(options: StackOptions) {
   const databaseUrl = postgres.adminUrl.replace(/\/postgres$/, "/sigmaflow_bench");
   await applyMigrations(databaseUrl);
   const { db, pool } = createDatabase(databaseUrl);
+  if (options.statementStatistics) await pool.query("create extension if not exists pg_stat_statements");
 
   const group = await createGroup(db, "bench");
   const researcher = await createUser(db, "bench-researcher");
@@ -184,10 +191,24 @@ export async function startEngineStack(options: StackOptions) {
     };
   }
 
+  /** The statements that cost PostgreSQL most since `resetStatements()` (needs statementStatistics). */
+  async function topStatements(limit = 25): Promise<string> {
+    const { rows } = await pool.query(
+      `select calls, round(total_exec_time::numeric, 0) as ms, left(regexp_replace(query, '\\s+', ' ', 'g'), 110) as query
+         from pg_stat_statements order by total_exec_time desc limit $1`,
+      [limit],
+    );
+    return rows
+      .map((r) => `${String(r.calls).padStart(7)} calls ${String(r.ms).padStart(7)} ms  ${r.query}`)
+      .join("\n");
+  }
+
   return {
     api,
     pool,
     cpuSeconds,
+    topStatements,
+    resetStatements: () => pool.query("select pg_stat_statements_reset()"),
     hostId,
     fake,
     server,
@@ -229,6 +250,27 @@ export async function waitUntilFinished(
     }
     await new Promise((resolve) => setTimeout(resolve, 50));
   }
+}
+
+/**
+ * Where the runs spent their time: for each state, the median and 95th percentile of how long a run
+ * stayed in it (from its recorded state changes), in seconds.
+ */
+export async function timeInStates(stack: EngineStack, runIds: string[]): Promise<string> {
+  const { rows } = await stack.pool.query<{ state: string; p50: number; p95: number; n: number }>(
+    `with spans as (
+       select coalesce(from_state::text, 'submitting') as state,
+              extract(epoch from at - lag(at) over (partition by run_id order by id)) as seconds
+         from run_events where run_id = any($1))
+     select state, count(*)::int as n,
+            percentile_disc(0.5) within group (order by seconds) as p50,
+            percentile_disc(0.95) within group (order by seconds) as p95
+       from spans where seconds is not null group by state order by min(seconds) is null, state`,
+    [runIds],
+  );
+  return rows
+    .map((r) => `${r.state} p50 ${Number(r.p50).toFixed(2)} s / p95 ${Number(r.p95).toFixed(2)} s`)
+    .join("; ");
 }
 
 /** "name 1.2 s (30%), …" of the CPU used between two `cpuSeconds()` readings. */

@@ -4,23 +4,25 @@
  * `done`. Goal (Sigmaflow's): ≥ 50 runs/s on this 2-core machine. Everything shares the two cores:
  * PostgreSQL, the server, the worker(s), the development host with the jobs' processes, and this driver.
  *
- *   node --import tsx bench/engine/throughput.bench.ts [runs=2000] [--workers=1] [--fsync=off]
+ *   node --import tsx bench/engine/throughput.bench.ts [runs=2000] [--workers=1] [--fsync=off] [--statements]
  *
  * The host's limit of runs at once is set to N so that the limit does not pace the benchmark; with the
  * default limit (50) the poll interval would (50 runs per 2 s poll).
  */
-import { cpuReport, startEngineStack, waitUntilFinished } from "./stack";
+import { cpuReport, startEngineStack, timeInStates, waitUntilFinished } from "./stack";
 
 const args = process.argv.slice(2);
 const runCount = Number(args.find((a) => /^\d+$/.test(a)) ?? 2000);
 const workers = Number(args.find((a) => a.startsWith("--workers="))?.split("=")[1] ?? 1);
 const durable = !args.includes("--fsync=off");
+const statements = args.includes("--statements");
 const submitConcurrency = 32;
 
 const stack = await startEngineStack({
   durable,
   workers,
   maxConcurrentRuns: runCount,
+  statementStatistics: statements,
   code: { name: "noop", version: "1.0", executable: "/bin/true" },
 });
 try {
@@ -28,6 +30,7 @@ try {
   const warm = await stack.submit("warm-up");
   await waitUntilFinished(stack, [warm], 60_000);
 
+  if (statements) await stack.resetStatements();
   const cpuBefore = stack.cpuSeconds();
   const started = performance.now();
   const ids: string[] = [];
@@ -52,6 +55,8 @@ try {
       `all finished in ${seconds.toFixed(1)} s = ${(runCount / seconds).toFixed(1)} runs/s (goal ≥ 50); states ${JSON.stringify(states)}`,
   );
   console.log(`CPU: ${cpuReport(cpuBefore, cpuAfter)}`);
+  console.log(`time in each state: ${await timeInStates(stack, ids)}`);
+  if (statements) console.log(`statements by PostgreSQL time:\n${await stack.topStatements()}`);
 } finally {
   await stack.stop();
 }

@@ -10,7 +10,7 @@ import { tmpdir } from "node:os";
 import path from "node:path";
 import ssh2 from "ssh2";
 import { afterAll, describe, expect, it } from "vitest";
-import { completeUtf8Length, consumableLength, parseLogRecords } from "../../worker/logs/tail";
+import { completeUtf8Length, consumableLength } from "../../worker/logs/tail";
 import { directStatusOf } from "../../worker/schedulers/direct";
 import { mapSlurmState, parseExitCode, parseSacct, parseSqueue } from "../../worker/schedulers/slurm";
 import {
@@ -246,12 +246,5 @@ describe("log chunks", () => {
     expect(consumableLength(bytes("no newline"), 100, false)).toBe(0);
     expect(consumableLength(bytes("no newline"), 10, false)).toBe(10);
     expect(consumableLength(bytes("one\ntwo"), 100, true)).toBe(7);
-  });
-
-  it("detects a batch whose records are out of step", () => {
-    const good = Buffer.from("@0 3\nab\n\n@1 -\n");
-    expect(parseLogRecords(good, 2)).toEqual([Buffer.from("ab\n"), null]);
-    expect(() => parseLogRecords(Buffer.from("@0 5\nab\n\n@1 -\n"), 2)).toThrow(/shorter|out of step/);
-    expect(() => parseLogRecords(Buffer.from("@1 -\n"), 1)).toThrow(/out of step/);
   });
 });

@@ -14,6 +14,7 @@ import {
   fastPut,
   mkdirPath,
   type RemoteStat,
+  readRange,
   readWhole,
   realPath,
   statPath,
@@ -49,6 +50,8 @@ export interface RemoteSession {
   putFile(localPath: string, remotePath: string, options?: PutOptions): Promise<void>;
   /** Reads a whole file; RemoteFileError("too-large") when it exceeds maxBytes, ("missing") when absent. */
   readFile(remotePath: string, maxBytes: number): Promise<Buffer>;
+  /** Up to maxBytes from byte offsetBytes on (fewer at the end); null when the file does not exist. */
+  readRange(remotePath: string, offsetBytes: number, maxBytes: number): Promise<Buffer | null>;
   /** Follows links; null when nothing is at the path. */
   stat(remotePath: string): Promise<RemoteStat | null>;
   /** Does not follow a final link; null when nothing is at the path. */
@@ -218,6 +221,10 @@ export class RemoteSessionImpl implements RemoteSession {
 
   readFile(remotePath: string, maxBytes: number): Promise<Buffer> {
     return this.pool.withSftp(this.target, (sftp) => readWhole(sftp, remotePath, maxBytes));
+  }
+
+  readRange(remotePath: string, offsetBytes: number, maxBytes: number): Promise<Buffer | null> {
+    return this.pool.withSftp(this.target, (sftp) => readRange(sftp, remotePath, offsetBytes, maxBytes));
   }
 
   stat(remotePath: string): Promise<RemoteStat | null> {

@@ -192,6 +192,50 @@ export async function readWhole(sftp: SFTPWrapper, remotePath: string, maxBytes:
   return Buffer.concat(chunks);
 }
 
+/**
+ * Reads at most `maxBytes` starting at byte `offsetBytes` (fewer at the end of the file); null when the
+ * file does not exist. How a growing log is followed without a remote command.
+ */
+export async function readRange(
+  sftp: SFTPWrapper,
+  remotePath: string,
+  offsetBytes: number,
+  maxBytes: number,
+): Promise<Buffer | null> {
+  let handle: Buffer;
+  try {
+    handle = await call<Buffer>(remotePath, (done) => sftp.open(remotePath, "r", done));
+  } catch (error) {
+    if (error instanceof RemoteFileError && error.reason === "missing") return null;
+    throw error;
+  }
+  const chunks: Buffer[] = [];
+  let failure: unknown = null;
+  try {
+    let position = offsetBytes;
+    let remaining = maxBytes;
+    while (remaining > 0) {
+      const buffer = Buffer.allocUnsafe(Math.min(remaining, IO_CHUNK_BYTES * 4));
+      const bytesRead = await call<number>(remotePath, (done) =>
+        sftp.read(handle, buffer, 0, buffer.length, position, (error, count) => done(error, count)),
+      );
+      if (bytesRead === 0) break;
+      chunks.push(buffer.subarray(0, bytesRead));
+      position += bytesRead;
+      remaining -= bytesRead;
+    }
+  } catch (error) {
+    failure = error;
+  }
+  try {
+    await closeHandle(sftp, remotePath, handle);
+  } catch (error) {
+    failure ??= error;
+  }
+  if (failure) throw failure;
+  return Buffer.concat(chunks);
+}
+
 export function fastPut(
   sftp: SFTPWrapper,
   localPath: string,

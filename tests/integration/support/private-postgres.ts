@@ -17,7 +17,9 @@ const PG_BIN = process.env.SF_PG_BIN ?? "/usr/lib/postgresql/15/bin";
  * A PostgreSQL cluster of its own (initdb as the postgres user, trust authentication; fsync off unless
  * `durable`, which benchmarks use to measure what a real installation would see).
  */
-export async function startPrivatePostgres(options: { maxConnections?: number; durable?: boolean } = {}) {
+export async function startPrivatePostgres(
+  options: { maxConnections?: number; durable?: boolean; extraOptions?: string } = {},
+) {
   const dir = await mkdtemp(path.join(tmpdir(), "sf-private-pg-"));
   const { uid, gid } = await postgresIds();
   await chown(dir, uid, gid);
@@ -26,7 +28,7 @@ export async function startPrivatePostgres(options: { maxConnections?: number; d
     run("runuser", ["-u", "postgres", "--", path.join(PG_BIN, bin), ...args], { timeout: 60_000 });
   await asPostgres("initdb", ["-D", dataDir, "-A", "trust", "-U", "postgres", "--no-sync"]);
   const port = await freePort();
-  const serverOptions = `-p ${port} -k ${dir} -c listen_addresses=127.0.0.1 -c max_connections=${options.maxConnections ?? 200}${options.durable ? "" : " -c fsync=off"}`;
+  const serverOptions = `-p ${port} -k ${dir} -c listen_addresses=127.0.0.1 -c max_connections=${options.maxConnections ?? 200}${options.durable ? "" : " -c fsync=off"} ${options.extraOptions ?? ""}`;
   const ctl = (action: string, extra: string[] = []) =>
     asPostgres("pg_ctl", ["-D", dataDir, "-l", path.join(dir, "server.log"), "-w", ...extra, action]);
   await ctl("start", ["-o", serverOptions]);

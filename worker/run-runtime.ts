@@ -70,6 +70,8 @@ export function jobRefOf(run: RunRow): JobRef {
   };
 }
 
+export type RunRuntime = Awaited<ReturnType<typeof runtimeFor>>;
+
 export async function runtimeFor(ctx: WorkerContext, run: RunRow) {
   const host = await loadHost(ctx, run.hostId);
   const session = await sessionFor(ctx, host, run.hostAccountId);

@@ -53,7 +53,9 @@ export function startNodeService(
         child.off("exit", onExit);
         seen = "";
         child.stdout!.removeAllListeners("data");
-        child.stdout!.resume();
+        // BENCH_SHOW_LOGS=1 passes the services' own logs through, to see why a figure is what it is.
+        if (process.env.BENCH_SHOW_LOGS === "1") child.stdout!.pipe(process.stdout);
+        else child.stdout!.resume();
         resolve(child);
       }
     });

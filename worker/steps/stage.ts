@@ -11,7 +11,7 @@ import { transitionRun } from "../../server/execution/run-transitions";
 import type { WorkerContext } from "../context";
 import { guardStep } from "../failures";
 import { takeHostSlot } from "../host-slots";
-import { loadRun, runtimeFor } from "../run-runtime";
+import { loadRun, type RunRuntime, runtimeFor } from "../run-runtime";
 import { prepareRunDir, stageFiles } from "../ssh/remote-fs";
 
 const worker = { kind: "worker" } as const;
@@ -21,7 +21,8 @@ export async function stageRun(ctx: WorkerContext, runId: string): Promise<void>
   if (!run || (run.state !== "queued" && run.state !== "staging")) return;
   const rt = await runtimeFor(ctx, run).catch(() => null);
   await guardStep(ctx, run, rt?.host ?? null, "stage", async () => {
-    const { session, plan } = rt ?? (await runtimeFor(ctx, run));
+    const runtime = rt ?? (await runtimeFor(ctx, run));
+    const { session, plan } = runtime;
     if (run.state === "queued" && !(await takeHostSlot(ctx, run))) return;
     if (!run.stagedFiles) {
       const runDir = await prepareRunDir(session, dirname(run.remoteDir), run.remoteDir.split("/").at(-1)!);
@@ -44,17 +45,22 @@ export async function stageRun(ctx: WorkerContext, runId: string): Promise<void>
         .set({ stagedFiles: staged, updatedAt: new Date() })
         .where(eq(runs.id, run.id));
     }
-    await submitRun(ctx, run.id);
+    await submitRun(ctx, run.id, runtime);
   });
 }
 
-export async function submitRun(ctx: WorkerContext, runId: string): Promise<void> {
+/**
+ * Everything the submission needs from the database is read before its transaction opens (`runtime`):
+ * a transaction that waited for a second pooled connection while holding one would, with enough
+ * submissions at once, hold every connection of the pool and wait forever.
+ */
+export async function submitRun(ctx: WorkerContext, runId: string, runtime: RunRuntime): Promise<void> {
   await ctx.db.transaction(async (tx) => {
     // The row lock makes submission one-at-a-time per run across worker processes, and makes a
     // concurrent cancel wait until the scheduler job id is recorded.
     const [run] = await tx.select().from(runs).where(eq(runs.id, runId)).for("update");
     if (run?.state !== "staging") return;
-    const { session, scheduler, job, plan } = await runtimeFor(ctx, run);
+    const { session, scheduler, job, plan } = runtime;
     const submitted = await scheduler.submit(session, {
       ...job,
       cores: run.cores,

@@ -21,6 +21,7 @@ import {
   freePort,
   postmasterPid,
   processCpuSeconds,
+  processCpuSplit,
   processTreeCpuSeconds,
   startFakeClusterProcess,
   startNodeService,
@@ -186,7 +187,8 @@ export async function startEngineStack(options: StackOptions) {
       postgres: processTreeCpuSeconds(pgPid),
       server: processCpuSeconds(server.pid!),
       workers: workers.reduce((sum, child) => sum + processCpuSeconds(child.pid!), 0),
-      "fake cluster + jobs": processCpuSeconds(fake.child.pid!),
+      "development host": processCpuSplit(fake.child.pid!).self,
+      "host commands + jobs": processCpuSplit(fake.child.pid!).children,
       "benchmark driver": (driver.user + driver.system) / 1e6,
     };
   }

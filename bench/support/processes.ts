@@ -29,7 +29,10 @@ export function startNodeService(
   readyText: string | null,
   timeoutMs = 30_000,
 ): Promise<ChildProcess> {
-  const child = spawn(process.execPath, ["--import", "tsx", script], {
+  // BENCH_CPU_PROFILE=<folder> writes a V8 CPU profile of every service there when it exits.
+  const profile = process.env.BENCH_CPU_PROFILE;
+  const flags = profile ? ["--cpu-prof", `--cpu-prof-dir=${profile}`] : [];
+  const child = spawn(process.execPath, [...flags, "--import", "tsx", script], {
     env: { ...process.env, ...env },
     stdio: ["ignore", "pipe", "inherit"],
   });
@@ -105,13 +108,22 @@ export async function startFakeClusterProcess(
   return { child, port, rootDir, hostKey, authorizedKeysPath };
 }
 
-/** CPU seconds (user + system) a process and its reaped children used, from /proc/<pid>/stat (proc(5)). */
-export function processCpuSeconds(pid: number): number {
+/**
+ * CPU seconds (user + system) a process used itself and its reaped children used, from /proc/<pid>/stat
+ * (proc(5)).
+ */
+export function processCpuSplit(pid: number): { self: number; children: number } {
   const stat = readFileSync(`/proc/${pid}/stat`, "utf8");
-  const fields = stat.slice(stat.lastIndexOf(")") + 2).split(" ");
-  // Fields 14–17 of proc(5) (utime, stime, cutime, cstime) are 12–15 here, after pid and comm.
-  const ticks = [11, 12, 13, 14].reduce((sum, index) => sum + Number(fields[index]), 0);
-  return ticks / 100; // USER_HZ is 100 on Linux (common practice; sysconf(_SC_CLK_TCK)).
+  const fields = stat.slice(stat.lastIndexOf(")") + 2).split(" ").map(Number);
+  // Fields 14–17 of proc(5) (utime, stime, cutime, cstime) are 11–14 here, after pid and comm.
+  // USER_HZ is 100 on Linux (common practice; sysconf(_SC_CLK_TCK)).
+  return { self: (fields[11]! + fields[12]!) / 100, children: (fields[13]! + fields[14]!) / 100 };
+}
+
+/** CPU seconds a process and its reaped children used. */
+export function processCpuSeconds(pid: number): number {
+  const { self, children } = processCpuSplit(pid);
+  return self + children;
 }
 
 /** CPU seconds of a process and its live direct children (a PostgreSQL postmaster and its backends). */

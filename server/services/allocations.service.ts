@@ -190,10 +190,7 @@ export async function allocationLedger(
   }));
 }
 
-/**
- * For run creation, inside its transaction: the allocation covering `at`, locked FOR UPDATE so that
- * concurrent reservations against it are serialised (read the balance after this, then reserve).
- */
+/** The allocation covering `at` (the earliest-starting one when several do), or null. */
 export async function activeAllocation(
   tx: DbExecutor,
   groupId: string,
@@ -204,16 +201,24 @@ export async function activeAllocation(
     .from(allocations)
     .where(and(eq(allocations.groupId, groupId), lte(allocations.startsAt, at), gt(allocations.endsAt, at)))
     .orderBy(asc(allocations.startsAt))
-    .limit(1)
-    .for("update");
+    .limit(1);
   return row ?? null;
 }
 
-export async function availableCoreSeconds(tx: DbExecutor, allocationId: string): Promise<number> {
+/**
+ * For run creation, inside its transaction and as its last work: locks the allocation row FOR NO KEY
+ * UPDATE, so concurrent reservations against it are serialised, then reads the balance (in a statement
+ * of its own, whose snapshot sees every reservation committed before the lock was granted). The lock is
+ * held until commit; taking it last keeps the queue of concurrent submissions short. It does not
+ * conflict with the KEY SHARE locks that inserts referencing the allocation take (the run row and
+ * ledger entries inserted earlier in the same transactions), so those cannot deadlock with it.
+ */
+export async function lockAndReadAvailableCoreSeconds(tx: DbExecutor, allocationId: string): Promise<number> {
   const [allocation] = await tx
     .select({ granted: allocations.grantedCoreSeconds })
     .from(allocations)
-    .where(eq(allocations.id, allocationId));
+    .where(eq(allocations.id, allocationId))
+    .for("no key update");
   if (!allocation) throw notFound("Allocation");
   const totals = (await ledgerTotals(tx, [allocationId])).get(allocationId) ?? ZERO;
   return balanceOf(allocation.granted, totals).availableCoreSeconds;

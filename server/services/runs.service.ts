@@ -38,7 +38,7 @@ import { transitionRun } from "../execution/run-transitions";
 import { AppError, conflict, forbidden, notFound } from "../http/errors";
 import { RUN_STEP_QUEUES } from "../queue/queues";
 import { requireGroupRole } from "./access";
-import { activeAllocation, availableCoreSeconds } from "./allocations.service";
+import { activeAllocation, lockAndReadAvailableCoreSeconds } from "./allocations.service";
 import { recordAudit } from "./audit.service";
 import { chooseAccount } from "./host-accounts.service";
 
@@ -202,15 +202,6 @@ export async function createRun(
         "no_allocation",
         "Your group has no allocation for the current period: ask a group admin.",
       );
-    const available = await availableCoreSeconds(tx, allocation.id);
-    if (reserveCoreSeconds > available) {
-      throw new AppError(
-        422,
-        "allocation_exceeded",
-        `This run needs ${hours(reserveCoreSeconds)} core-hours (cores × wall-time limit) but ${allocation.name} has ${hours(Math.max(available, 0))} left.`,
-        { neededCoreHours: hours(reserveCoreSeconds), availableCoreHours: hours(Math.max(available, 0)) },
-      );
-    }
     await tx.insert(runs).values({
       id: runId,
       groupId,
@@ -243,12 +234,8 @@ export async function createRun(
       actorUserId: principal.userId,
       message: reuse ? `Reused the results of run ${reuse.id}` : "Submitted",
     });
-    if (!reuse) {
-      await tx
-        .insert(ledgerEntries)
-        .values({ allocationId: allocation.id, runId, kind: "reserve", coreSeconds: reserveCoreSeconds });
+    if (!reuse)
       await deps.boss.send(RUN_STEP_QUEUES.stage, { runId }, { db: { executeSql: executeSql as never } });
-    }
     await recordAudit(tx, {
       actorUserId: principal.userId,
       groupId,
@@ -263,6 +250,20 @@ export async function createRun(
       },
       ip: extra.ip ?? null,
     });
+    if (reuse) return;
+    // Last, so the allocation stays locked only for the check, the reservation and the commit.
+    const available = await lockAndReadAvailableCoreSeconds(tx, allocation.id);
+    if (reserveCoreSeconds > available) {
+      throw new AppError(
+        422,
+        "allocation_exceeded",
+        `This run needs ${hours(reserveCoreSeconds)} core-hours (cores × wall-time limit) but ${allocation.name} has ${hours(Math.max(available, 0))} left.`,
+        { neededCoreHours: hours(reserveCoreSeconds), availableCoreHours: hours(Math.max(available, 0)) },
+      );
+    }
+    await tx
+      .insert(ledgerEntries)
+      .values({ allocationId: allocation.id, runId, kind: "reserve", coreSeconds: reserveCoreSeconds });
   });
   return (await getRunSummary(db, runId))!;
 }

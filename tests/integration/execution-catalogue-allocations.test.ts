@@ -6,7 +6,7 @@
  */
 import { afterAll, beforeAll, describe, expect, it, vi } from "vitest";
 import { ledgerEntries } from "../../server/db/schema";
-import { activeAllocation, availableCoreSeconds } from "../../server/services/allocations.service";
+import { activeAllocation, lockAndReadAvailableCoreSeconds } from "../../server/services/allocations.service";
 import { callApi } from "./support/catalogue-app";
 import { addMember, createGroup, createUser, tokenFor } from "./support/people";
 import { startTestApp } from "./support/test-app";
@@ -133,7 +133,9 @@ describe("balances from the ledger", () => {
       chargedCoreHours: 0.5,
       availableCoreHours: 997.5,
     });
-    expect(await availableCoreSeconds(database.db, springId)).toBe(3_600_000 - 10_800 + 3600 - 1800);
+    expect(await database.db.transaction((tx) => lockAndReadAvailableCoreSeconds(tx, springId))).toBe(
+      3_600_000 - 10_800 + 3600 - 1800,
+    );
     const ledger = await call("collaborator", "GET", `/api/allocations/${springId}/ledger`);
     expect(
       ledger.body.entries.map((e: { kind: string; coreHours: number }) => [e.kind, e.coreHours]),
@@ -162,7 +164,7 @@ describe("the active allocation", () => {
     ).toBeNull();
   });
 
-  it("is locked, so a second reservation waits for the first and sees its entry", async () => {
+  it("is locked for the reservation, so a second one waits for the first and sees its entry", async () => {
     const db = database.db;
     const at = new Date("2031-04-15T12:00:00Z");
     let letFirstCommit!: () => void;
@@ -175,6 +177,7 @@ describe("the active allocation", () => {
     });
     const first = db.transaction(async (tx) => {
       const allocation = await activeAllocation(tx, groupId, at);
+      await lockAndReadAvailableCoreSeconds(tx, allocation!.id);
       await tx
         .insert(ledgerEntries)
         .values({ allocationId: allocation!.id, kind: "reserve", coreSeconds: 36_000 });
@@ -184,13 +187,13 @@ describe("the active allocation", () => {
     await firstLocked;
     const second = db.transaction(async (tx) => {
       const allocation = await activeAllocation(tx, groupId, at);
-      return availableCoreSeconds(tx, allocation!.id);
+      return lockAndReadAvailableCoreSeconds(tx, allocation!.id);
     });
     // The second transaction is blocked on the row lock until the first commits.
     await vi.waitFor(
       async () => {
         const waiting = await database.pool.query(
-          "select count(*)::int as n from pg_stat_activity where datname = current_database() and wait_event_type = 'Lock' and query ilike '%from \"allocations\"%for update%'",
+          "select count(*)::int as n from pg_stat_activity where datname = current_database() and wait_event_type = 'Lock' and query ilike '%from \"allocations\"%for no key update%'",
         );
         expect(waiting.rows[0].n).toBe(1);
       },

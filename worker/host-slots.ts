@@ -17,38 +17,56 @@ export const SLOT_STATES: RunState[] = ["staging", "submitted", "running", "coll
 
 const worker = { kind: "worker" } as const;
 
+class NoFreeSlot extends Error {
+  constructor(
+    readonly hostName: string,
+    readonly maxConcurrentRuns: number,
+  ) {
+    super(`${hostName} runs at most ${maxConcurrentRuns} at once`);
+  }
+}
+
 /**
- * queued → staging when the host has a free slot. Returns false when the run is no longer queued or
- * must wait (then it is marked waiting, and keeps its place by the time it first waited).
+ * queued → staging when the host has a free slot. The transition is made first and the host row locked
+ * last, so the lock (which serialises the count across workers) is held only for the count and the
+ * commit; a count over the limit rolls the transition back. Returns false when the run is no longer
+ * queued or must wait (then it is marked waiting, and keeps its place by the time it first waited).
  */
 export async function takeHostSlot(ctx: WorkerContext, run: RunRow): Promise<boolean> {
-  return ctx.db.transaction(async (tx) => {
-    const [host] = await tx
-      .select({ name: hosts.name, maxConcurrentRuns: hosts.maxConcurrentRuns })
-      .from(hosts)
-      .where(eq(hosts.id, run.hostId))
-      .for("no key update");
-    if (!host) return false;
-    const [active] = await tx
-      .select({ n: count() })
-      .from(runs)
-      .where(and(eq(runs.hostId, run.hostId), inArray(runs.state, SLOT_STATES)));
-    if ((active?.n ?? 0) >= host.maxConcurrentRuns) {
-      await tx
-        .update(runs)
-        .set({
-          waitingForSlotSince: sql`coalesce(${runs.waitingForSlotSince}, now())`,
-          stateMessage: `Waiting for a free slot: ${host.name} runs at most ${host.maxConcurrentRuns} at once`,
-        })
-        .where(and(eq(runs.id, run.id), eq(runs.state, "queued")));
-      return false;
-    }
-    return transitionRun(tx, run.id, ["queued"], "staging", {
-      actor: worker,
-      message: "Copying inputs to the host",
-      set: { waitingForSlotSince: null },
+  try {
+    return await ctx.db.transaction(async (tx) => {
+      const moved = await transitionRun(tx, run.id, ["queued"], "staging", {
+        actor: worker,
+        message: "Copying inputs to the host",
+        set: { waitingForSlotSince: null },
+      });
+      if (!moved) return false;
+      const [host] = await tx
+        .select({ name: hosts.name, maxConcurrentRuns: hosts.maxConcurrentRuns })
+        .from(hosts)
+        .where(eq(hosts.id, run.hostId))
+        .for("no key update");
+      const [active] = await tx
+        .select({ n: count() })
+        .from(runs)
+        .where(and(eq(runs.hostId, run.hostId), inArray(runs.state, SLOT_STATES)));
+      // This run is already counted among the active ones.
+      if (host && (active?.n ?? 0) > host.maxConcurrentRuns) {
+        throw new NoFreeSlot(host.name, host.maxConcurrentRuns);
+      }
+      return true;
     });
-  });
+  } catch (error) {
+    if (!(error instanceof NoFreeSlot)) throw error;
+    await ctx.db
+      .update(runs)
+      .set({
+        waitingForSlotSince: sql`coalesce(${runs.waitingForSlotSince}, now())`,
+        stateMessage: `Waiting for a free slot: ${error.message}`,
+      })
+      .where(and(eq(runs.id, run.id), eq(runs.state, "queued")));
+    return false;
+  }
 }
 
 /**

@@ -194,10 +194,11 @@ export async function startEngineStack(options: StackOptions) {
   }
 
   /** The statements that cost PostgreSQL most since `resetStatements()` (needs statementStatistics). */
-  async function topStatements(limit = 25): Promise<string> {
+  async function topStatements(limit = 25, by: "time" | "calls" = "time"): Promise<string> {
+    const order = by === "time" ? "total_exec_time" : "calls";
     const { rows } = await pool.query(
       `select calls, round(total_exec_time::numeric, 0) as ms, left(regexp_replace(query, '\\s+', ' ', 'g'), 110) as query
-         from pg_stat_statements order by total_exec_time desc limit $1`,
+         from pg_stat_statements order by ${order} desc limit $1`,
       [limit],
     );
     return rows

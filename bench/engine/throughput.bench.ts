@@ -56,7 +56,10 @@ try {
   );
   console.log(`CPU: ${cpuReport(cpuBefore, cpuAfter)}`);
   console.log(`time in each state: ${await timeInStates(stack, ids)}`);
-  if (statements) console.log(`statements by PostgreSQL time:\n${await stack.topStatements()}`);
+  if (statements) {
+    console.log(`statements by PostgreSQL time:\n${await stack.topStatements()}`);
+    console.log(`statements by calls:\n${await stack.topStatements(40, "calls")}`);
+  }
 } finally {
   await stack.stop();
 }

@@ -206,20 +206,21 @@ export async function activeAllocation(
 }
 
 /**
- * For run creation, inside its transaction and as its last work: locks the allocation row FOR NO KEY
- * UPDATE, so concurrent reservations against it are serialised, then reads the balance (in a statement
- * of its own, whose snapshot sees every reservation committed before the lock was granted). The lock is
- * held until commit; taking it last keeps the queue of concurrent submissions short. It does not
- * conflict with the KEY SHARE locks that inserts referencing the allocation take (the run row and
- * ledger entries inserted earlier in the same transactions), so those cannot deadlock with it.
+ * For run creation, inside its transaction and as its last work: reserves `coreSeconds` for the run
+ * when the allocation's balance allows, in one call of sigmaflow_reserve_core_seconds (drizzle/0003),
+ * which locks the allocation row so concurrent reservations are serialised and reads the balance after
+ * the lock is granted. The lock lasts until commit; taking it last, in one round trip, keeps the queue
+ * of concurrent submissions short. Returns the balance before the reservation and whether it was made.
  */
-export async function lockAndReadAvailableCoreSeconds(tx: DbExecutor, allocationId: string): Promise<number> {
-  const [allocation] = await tx
-    .select({ granted: allocations.grantedCoreSeconds })
-    .from(allocations)
-    .where(eq(allocations.id, allocationId))
-    .for("no key update");
-  if (!allocation) throw notFound("Allocation");
-  const totals = (await ledgerTotals(tx, [allocationId])).get(allocationId) ?? ZERO;
-  return balanceOf(allocation.granted, totals).availableCoreSeconds;
+export async function reserveAgainstAllocation(
+  tx: DbExecutor,
+  allocationId: string,
+  runId: string | null,
+  coreSeconds: number,
+): Promise<{ reserved: boolean; availableCoreSeconds: number }> {
+  const result = await tx.execute<{ available: string }>(
+    sql`select sigmaflow_reserve_core_seconds(${allocationId}, ${runId}, ${coreSeconds}) as available`,
+  );
+  const available = Number(result.rows[0]!.available);
+  return { reserved: available >= coreSeconds, availableCoreSeconds: available };
 }

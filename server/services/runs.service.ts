@@ -38,7 +38,7 @@ import { transitionRun } from "../execution/run-transitions";
 import { AppError, conflict, forbidden, notFound } from "../http/errors";
 import { RUN_STEP_QUEUES } from "../queue/queues";
 import { requireGroupRole } from "./access";
-import { activeAllocation, lockAndReadAvailableCoreSeconds } from "./allocations.service";
+import { activeAllocation, reserveAgainstAllocation } from "./allocations.service";
 import { recordAudit } from "./audit.service";
 import { chooseAccount } from "./host-accounts.service";
 
@@ -252,8 +252,13 @@ export async function createRun(
     });
     if (reuse) return;
     // Last, so the allocation stays locked only for the check, the reservation and the commit.
-    const available = await lockAndReadAvailableCoreSeconds(tx, allocation.id);
-    if (reserveCoreSeconds > available) {
+    const { reserved, availableCoreSeconds: available } = await reserveAgainstAllocation(
+      tx,
+      allocation.id,
+      runId,
+      reserveCoreSeconds,
+    );
+    if (!reserved) {
       throw new AppError(
         422,
         "allocation_exceeded",
@@ -261,9 +266,6 @@ export async function createRun(
         { neededCoreHours: hours(reserveCoreSeconds), availableCoreHours: hours(Math.max(available, 0)) },
       );
     }
-    await tx
-      .insert(ledgerEntries)
-      .values({ allocationId: allocation.id, runId, kind: "reserve", coreSeconds: reserveCoreSeconds });
   });
   return (await getRunSummary(db, runId))!;
 }

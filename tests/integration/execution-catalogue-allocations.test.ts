@@ -6,7 +6,7 @@
  */
 import { afterAll, beforeAll, describe, expect, it, vi } from "vitest";
 import { ledgerEntries } from "../../server/db/schema";
-import { activeAllocation, lockAndReadAvailableCoreSeconds } from "../../server/services/allocations.service";
+import { activeAllocation, reserveAgainstAllocation } from "../../server/services/allocations.service";
 import { callApi } from "./support/catalogue-app";
 import { addMember, createGroup, createUser, tokenFor } from "./support/people";
 import { startTestApp } from "./support/test-app";
@@ -133,9 +133,10 @@ describe("balances from the ledger", () => {
       chargedCoreHours: 0.5,
       availableCoreHours: 997.5,
     });
-    expect(await database.db.transaction((tx) => lockAndReadAvailableCoreSeconds(tx, springId))).toBe(
-      3_600_000 - 10_800 + 3600 - 1800,
-    );
+    expect(
+      (await database.db.transaction((tx) => reserveAgainstAllocation(tx, springId, null, 0)))
+        .availableCoreSeconds,
+    ).toBe(3_600_000 - 10_800 + 3600 - 1800);
     const ledger = await call("collaborator", "GET", `/api/allocations/${springId}/ledger`);
     expect(
       ledger.body.entries.map((e: { kind: string; coreHours: number }) => [e.kind, e.coreHours]),
@@ -177,23 +178,20 @@ describe("the active allocation", () => {
     });
     const first = db.transaction(async (tx) => {
       const allocation = await activeAllocation(tx, groupId, at);
-      await lockAndReadAvailableCoreSeconds(tx, allocation!.id);
-      await tx
-        .insert(ledgerEntries)
-        .values({ allocationId: allocation!.id, kind: "reserve", coreSeconds: 36_000 });
+      expect((await reserveAgainstAllocation(tx, allocation!.id, null, 36_000)).reserved).toBe(true);
       firstHoldsLock();
       await firstMayCommit;
     });
     await firstLocked;
     const second = db.transaction(async (tx) => {
       const allocation = await activeAllocation(tx, groupId, at);
-      return lockAndReadAvailableCoreSeconds(tx, allocation!.id);
+      return (await reserveAgainstAllocation(tx, allocation!.id, null, 0)).availableCoreSeconds;
     });
     // The second transaction is blocked on the row lock until the first commits.
     await vi.waitFor(
       async () => {
         const waiting = await database.pool.query(
-          "select count(*)::int as n from pg_stat_activity where datname = current_database() and wait_event_type = 'Lock' and query ilike '%from \"allocations\"%for no key update%'",
+          "select count(*)::int as n from pg_stat_activity where datname = current_database() and wait_event_type = 'Lock' and query ilike '%sigmaflow_reserve_core_seconds%'",
         );
         expect(waiting.rows[0].n).toBe(1);
       },

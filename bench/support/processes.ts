@@ -114,7 +114,10 @@ export async function startFakeClusterProcess(
  */
 export function processCpuSplit(pid: number): { self: number; children: number } {
   const stat = readFileSync(`/proc/${pid}/stat`, "utf8");
-  const fields = stat.slice(stat.lastIndexOf(")") + 2).split(" ").map(Number);
+  const fields = stat
+    .slice(stat.lastIndexOf(")") + 2)
+    .split(" ")
+    .map(Number);
   // Fields 14–17 of proc(5) (utime, stime, cutime, cstime) are 11–14 here, after pid and comm.
   // USER_HZ is 100 on Linux (common practice; sysconf(_SC_CLK_TCK)).
   return { self: (fields[11]! + fields[12]!) / 100, children: (fields[13]! + fields[14]!) / 100 };

@@ -8,9 +8,8 @@
  *
  *   node --import tsx bench/ssh/run-cycle.bench.ts [runs] [concurrency]
  */
-import { type ChildProcess, spawn } from "node:child_process";
-import { mkdtempSync, readFileSync, rmSync, writeFileSync } from "node:fs";
-import { createServer } from "node:net";
+import type { ChildProcess } from "node:child_process";
+import { mkdtempSync, readFileSync, rmSync } from "node:fs";
 import { tmpdir } from "node:os";
 import path from "node:path";
 import ssh2 from "ssh2";
@@ -20,58 +19,24 @@ import type { JobSubmission } from "../../worker/schedulers/types";
 import { SshPool, type SshTarget } from "../../worker/ssh/pool";
 import { prepareRunDir, stageFiles } from "../../worker/ssh/remote-fs";
 import type { RemoteSession } from "../../worker/ssh/session";
+import { processCpuSeconds, startFakeClusterProcess } from "../support/processes";
 
 const runCount = Number(process.argv[2] ?? 200);
 const concurrency = Number(process.argv[3] ?? 32);
 const work = mkdtempSync(path.join(tmpdir(), "sigmaflow-run-cycle-bench-"));
 
-function freePort(): Promise<number> {
-  return new Promise((resolve, reject) => {
-    const server = createServer();
-    server.once("error", reject);
-    server.listen(0, "127.0.0.1", () => {
-      const address = server.address();
-      server.close(() => resolve(typeof address === "object" && address ? address.port : 0));
-    });
-  });
-}
-
-async function startFakeClusterProcess(): Promise<{ child: ChildProcess; target: SshTarget }> {
+async function startFakeHost(): Promise<{ child: ChildProcess; target: SshTarget }> {
   const keys = ssh2.utils.generateKeyPairSync("ed25519");
-  const authorizedKeys = path.join(work, "authorized_keys");
-  const hostKey = path.join(work, "host_key");
-  writeFileSync(authorizedKeys, `${keys.public}\n`);
-  const port = await freePort();
-  const child = spawn(process.execPath, ["--import", "tsx", "deploy/fake-cluster/index.ts"], {
-    env: {
-      ...process.env,
-      FAKE_CLUSTER_PORT: String(port),
-      FAKE_CLUSTER_ROOT: path.join(work, "root"),
-      FAKE_CLUSTER_HOST_KEY: hostKey,
-      FAKE_CLUSTER_AUTHORIZED_KEYS: authorizedKeys,
-    },
-    stdio: ["ignore", "pipe", "inherit"],
-  });
-  await new Promise<void>((resolve, reject) => {
-    const timer = setTimeout(() => reject(new Error("fake cluster did not start within 20 s")), 20_000);
-    child.once("exit", (code) => reject(new Error(`fake cluster exited (${code})`)));
-    child.stdout!.on("data", (data: Buffer) => {
-      if (data.toString().includes("listening on")) {
-        clearTimeout(timer);
-        resolve();
-      }
-    });
-  });
-  const pinnedHostKey = readFileSync(`${hostKey}.pub`, "utf8").trim().split(" ").slice(0, 2).join(" ");
+  const fake = await startFakeClusterProcess(work, `${keys.public}\n`);
   return {
-    child,
+    child: fake.child,
     target: {
       key: "bench:fake",
       address: "127.0.0.1",
-      port,
+      port: fake.port,
       username: "sigmaflow",
       privateKey: keys.private,
-      pinnedHostKey,
+      pinnedHostKey: fake.hostKey,
     },
   };
 }
@@ -89,15 +54,6 @@ function counting(session: RemoteSession): { session: RemoteSession; commands: (
     return session.run(argv, options);
   };
   return { session: counted, commands: () => commands };
-}
-
-/** CPU seconds (user + system) a process and its reaped children used, from /proc/<pid>/stat (proc(5)). */
-function processCpuSeconds(pid: number): number {
-  const stat = readFileSync(`/proc/${pid}/stat`, "utf8");
-  const fields = stat.slice(stat.lastIndexOf(")") + 2).split(" ");
-  // Fields 14–17 of proc(5) (utime, stime, cutime, cstime) are 12–15 here, after pid and comm.
-  const ticks = [11, 12, 13, 14].reduce((sum, index) => sum + Number(fields[index]), 0);
-  return ticks / 100; // USER_HZ is 100 on Linux (common practice; sysconf(_SC_CLK_TCK)).
 }
 
 async function cycle(
@@ -185,7 +141,7 @@ async function cycle(
   await rawSession.run(["sh", "-c", 'rm -rf -- "$1"/run-"$2"-*', "sh", baseDir, String(process.pid)]);
 }
 
-const fake = await startFakeClusterProcess();
+const fake = await startFakeHost();
 const pool = new SshPool();
 try {
   await cycle("fake cluster", pool.session(fake.target), "runs", fake.child.pid);

@@ -12,7 +12,7 @@ import type { ChildProcess } from "node:child_process";
 import { mkdtempSync, readFileSync, rmSync } from "node:fs";
 import { tmpdir } from "node:os";
 import path from "node:path";
-import ssh2 from "ssh2";
+import { testKeyPair } from "../../tests/integration/support/keys";
 import { readLogsFrom } from "../../worker/logs/tail";
 import { directScheduler } from "../../worker/schedulers/direct";
 import type { JobSubmission } from "../../worker/schedulers/types";
@@ -26,7 +26,7 @@ const concurrency = Number(process.argv[3] ?? 32);
 const work = mkdtempSync(path.join(tmpdir(), "sigmaflow-run-cycle-bench-"));
 
 async function startFakeHost(): Promise<{ child: ChildProcess; target: SshTarget }> {
-  const keys = ssh2.utils.generateKeyPairSync("ed25519");
+  const keys = testKeyPair();
   const fake = await startFakeClusterProcess(work, `${keys.public}\n`);
   return {
     child: fake.child,

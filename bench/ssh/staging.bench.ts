@@ -18,7 +18,7 @@ import { createReadStream, mkdtempSync, readFileSync, rmSync, writeFileSync } fr
 import { createServer } from "node:net";
 import { tmpdir } from "node:os";
 import path from "node:path";
-import ssh2 from "ssh2";
+import { testKeyPair } from "../../tests/integration/support/keys";
 import { SshPool, type SshTarget } from "../../worker/ssh/pool";
 import { prepareRunDir } from "../../worker/ssh/remote-fs";
 import type { RemoteSession } from "../../worker/ssh/session";
@@ -68,7 +68,7 @@ function freePort(): Promise<number> {
 
 /** The fake cluster in its own process, so its CPU is not our event loop's, like sshd. */
 async function startFakeClusterProcess(): Promise<{ child: ChildProcess; target: SshTarget }> {
-  const keys = ssh2.utils.generateKeyPairSync("ed25519");
+  const keys = testKeyPair();
   const authorizedKeys = path.join(work, "fake-authorized_keys");
   const hostKey = path.join(work, "fake-host_key");
   writeFileSync(authorizedKeys, `${keys.public}\n`);

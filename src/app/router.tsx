@@ -15,7 +15,8 @@ const pages = {
   landing: async () => (await import("./routes/landing")).LandingRoute,
   targets: async () => (await import("./routes/groups/areas")).TargetsRoute,
   codes: async () => (await import("./routes/groups/areas")).CodesRoute,
-  runs: async () => (await import("./routes/groups/areas")).RunsRoute,
+  runs: async () => (await import("./routes/groups/runs")).RunsRoute,
+  run: async () => (await import("./routes/groups/runs")).RunRoute,
   studies: async () => (await import("./routes/groups/areas")).StudiesRoute,
   members: async () => (await import("./routes/groups/members")).MembersRoute,
   invitations: async () => (await import("./routes/groups/invitations")).InvitationsRoute,
@@ -61,6 +62,7 @@ export function createAppRoutes(queryClient: QueryClient): RouteObject[] {
                         { path: "targets", lazy: { Component: pages.targets } },
                         { path: "codes", lazy: { Component: pages.codes } },
                         { path: "runs", lazy: { Component: pages.runs } },
+                        { path: "runs/:runId", lazy: { Component: pages.run } },
                         { path: "studies", lazy: { Component: pages.studies } },
                         { path: "members", loader: loaders.members, lazy: { Component: pages.members } },
                         {

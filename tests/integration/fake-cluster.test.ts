@@ -33,6 +33,7 @@ import path from "node:path";
 import ssh2, { type ClientChannel, type ConnectConfig, type SFTPWrapper } from "ssh2";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { type FakeCluster, startFakeCluster } from "../../deploy/fake-cluster/server";
+import { testKeyPair } from "./support/keys";
 
 const USERNAME = "sigmaflow";
 const MAX_SESSIONS = 4;
@@ -124,7 +125,7 @@ describe("fake cluster host", () => {
   let hostKeyPath: string;
   let authorizedKeysPath: string;
   let cluster: FakeCluster;
-  const clientKey = ssh2.utils.generateKeyPairSync("ed25519", { comment: "sigmaflow-worker" });
+  const clientKey = testKeyPair("sigmaflow-worker");
   const clients: ssh2.Client[] = [];
 
   function connect(overrides: Partial<ConnectConfig> = {}): Promise<ssh2.Client> {
@@ -210,14 +211,14 @@ describe("fake cluster host", () => {
   describe("authentication", () => {
     it("accepts the pinned host key and is refused when the pinned key differs", async () => {
       await expect(connect()).resolves.toBeInstanceOf(ssh2.Client);
-      const otherKey = blobOf(ssh2.utils.generateKeyPairSync("ed25519").public);
+      const otherKey = blobOf(testKeyPair().public);
       await expect(connect({ hostVerifier: (key: Buffer) => key.equals(otherKey) })).rejects.toThrow(
         /verification failed/i,
       );
     });
 
     it("rejects an unauthorized key, another user name and passwords", async () => {
-      const stranger = ssh2.utils.generateKeyPairSync("ed25519");
+      const stranger = testKeyPair();
       await expect(connect({ privateKey: stranger.private })).rejects.toThrow(
         /authentication methods failed/,
       );
@@ -228,7 +229,7 @@ describe("fake cluster host", () => {
     });
 
     it("reads authorized_keys again at each login, so a key added while running works", async () => {
-      const newcomer = ssh2.utils.generateKeyPairSync("ed25519");
+      const newcomer = testKeyPair();
       await expect(connect({ privateKey: newcomer.private })).rejects.toThrow(
         /authentication methods failed/,
       );

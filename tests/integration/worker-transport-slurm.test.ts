@@ -14,7 +14,6 @@ import { mkdtempSync, readFileSync, rmSync, writeFileSync } from "node:fs";
 import { chown, lchown, readFile, stat, symlink, writeFile } from "node:fs/promises";
 import { tmpdir } from "node:os";
 import path from "node:path";
-import ssh2 from "ssh2";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { readLogFrom, readLogsFrom } from "../../worker/logs/tail";
 import { directScheduler } from "../../worker/schedulers/direct";
@@ -25,6 +24,7 @@ import { fetchHostKey, fingerprintOf } from "../../worker/ssh/host-key";
 import { SshPool, type SshTarget } from "../../worker/ssh/pool";
 import { prepareRunDir, stageFiles } from "../../worker/ssh/remote-fs";
 import type { RemoteSession } from "../../worker/ssh/session";
+import { testKeyPair } from "./support/keys";
 
 const env = process.env;
 const pools: SshPool[] = [];
@@ -129,7 +129,7 @@ describe("SSH pool over OpenSSH", () => {
     const other = {
       ...target,
       key: "engines:wrong-key",
-      pinnedHostKey: ssh2.utils.generateKeyPairSync("ed25519").public,
+      pinnedHostKey: testKeyPair().public,
     };
     const error = await pool
       .session(other)

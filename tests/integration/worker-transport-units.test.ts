@@ -8,7 +8,6 @@ import { execFileSync, spawnSync } from "node:child_process";
 import { mkdtempSync, rmSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import path from "node:path";
-import ssh2 from "ssh2";
 import { afterAll, describe, expect, it } from "vitest";
 import { completeUtf8Length, consumableLength } from "../../worker/logs/tail";
 import { directStatusOf } from "../../worker/schedulers/direct";
@@ -23,6 +22,7 @@ import {
 import { fingerprintOf, parsePublicKeyLine } from "../../worker/ssh/host-key";
 import { commandLine, shellQuote } from "../../worker/ssh/quote";
 import { assertInside, normaliseBaseDir, parseSha256sum } from "../../worker/ssh/remote-fs";
+import { testKeyPair } from "./support/keys";
 
 const scratch = mkdtempSync(path.join(tmpdir(), "sigmaflow-transport-units-"));
 afterAll(() => rmSync(scratch, { recursive: true, force: true }));
@@ -63,7 +63,7 @@ describe("shell quoting", () => {
 
 describe("host keys", () => {
   it("prints the fingerprint ssh-keygen -l prints", () => {
-    const pair = ssh2.utils.generateKeyPairSync("ed25519", { comment: "fingerprint-check" });
+    const pair = testKeyPair("fingerprint-check");
     const file = path.join(scratch, "key.pub");
     writeFileSync(file, `${pair.public}\n`);
     // ssh-keygen -l -f: "<bits> SHA256:<base64> <comment> (ED25519)".
@@ -72,7 +72,7 @@ describe("host keys", () => {
   });
 
   it("refuses a key line whose type does not match its key", () => {
-    const pair = ssh2.utils.generateKeyPairSync("ed25519");
+    const pair = testKeyPair();
     const blob = pair.public.split(" ")[1]!;
     expect(() => parsePublicKeyLine(`ssh-rsa ${blob}`)).toThrow(/ssh-ed25519/);
     expect(() => parsePublicKeyLine("not a key")).toThrow();

@@ -13,7 +13,6 @@ import { createHash } from "node:crypto";
 import { mkdir, mkdtemp, readFile, rm, stat, symlink, writeFile } from "node:fs/promises";
 import { tmpdir } from "node:os";
 import path from "node:path";
-import ssh2 from "ssh2";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { type FakeCluster, startFakeCluster } from "../../deploy/fake-cluster/server";
 import { readLogFrom, readLogsFrom } from "../../worker/logs/tail";
@@ -24,6 +23,7 @@ import { fetchHostKey } from "../../worker/ssh/host-key";
 import { SshPool, type SshTarget } from "../../worker/ssh/pool";
 import { prepareRunDir, stageFiles } from "../../worker/ssh/remote-fs";
 import type { RemoteSession } from "../../worker/ssh/session";
+import { testKeyPair } from "./support/keys";
 
 let workDir: string;
 let rootDir: string;
@@ -98,7 +98,7 @@ function countingSession(session: RemoteSession): { session: RemoteSession; exec
 beforeAll(async () => {
   workDir = await mkdtemp(path.join(tmpdir(), "sigmaflow-transport-"));
   rootDir = path.join(workDir, "home");
-  clientKey = ssh2.utils.generateKeyPairSync("ed25519");
+  clientKey = testKeyPair();
   await writeFile(path.join(workDir, "authorized_keys"), `${clientKey.public}\n`);
   cluster = await startFakeCluster(clusterOptions(0));
 });
@@ -179,7 +179,7 @@ describe("SSH pool", () => {
   });
 
   it("refuses a host whose key differs from the pinned one and keeps no connection", async () => {
-    const impostor = ssh2.utils.generateKeyPairSync("ed25519").public;
+    const impostor = testKeyPair().public;
     const pool = newPool();
     const session = pool.session(targetFor(cluster.port, impostor, "pinned-elsewhere"));
     const error = await session.exec(["true"]).catch((caught: unknown) => caught);

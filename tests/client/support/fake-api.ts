@@ -1,4 +1,5 @@
 import type { AdminUser, ApiToken, Group, Invitation, Me, Member } from "@shared/schemas";
+import type { RunDetail } from "@shared/schemas/execution";
 import { HttpResponse, http } from "msw";
 import { adminUsers, kestrel, kestrelMembers, marrow } from "./fixtures";
 import { server } from "./server";
@@ -13,6 +14,9 @@ type FakeApiState = {
   invitations: Record<string, Invitation[]>;
   tokens: ApiToken[];
   users: AdminUser[];
+  runs: Record<string, RunDetail[]>;
+  /** Log text per run id, served as one chunk. */
+  logs: Record<string, string>;
 };
 
 function apiError(status: number, code: string, message: string, details?: unknown) {
@@ -32,6 +36,8 @@ export function installFakeApi(initial: Partial<FakeApiState> = {}) {
     invitations: { [kestrel.id]: [], [marrow.id]: [] },
     tokens: [],
     users: adminUsers,
+    runs: {},
+    logs: {},
     ...initial,
   };
   const requests: RecordedRequest[] = [];
@@ -135,7 +141,32 @@ export function installFakeApi(initial: Partial<FakeApiState> = {}) {
       return new HttpResponse(null, { status: 204 });
     }),
     http.get("/api/admin/users", () => HttpResponse.json({ users: state.users })),
+    http.get("/api/groups/:groupId/runs", ({ params }) =>
+      HttpResponse.json({ runs: state.runs[String(params.groupId)] ?? [] }),
+    ),
+    http.get("/api/runs/:runId", ({ params }) => {
+      const run = findRun(String(params.runId));
+      return run ? HttpResponse.json(run) : apiError(404, "not_found", "No such run.");
+    }),
+    http.get("/api/runs/:runId/log", ({ params, request }) => {
+      const afterSeq = Number(new URL(request.url).searchParams.get("afterSeq") ?? 0);
+      const text = state.logs[String(params.runId)];
+      if (!text || afterSeq >= 1) return HttpResponse.json({ chunks: [], lastSeq: afterSeq });
+      return HttpResponse.json({ chunks: [{ seq: 1, text, at: "2026-11-30T10:02:00.000Z" }], lastSeq: 1 });
+    }),
+    http.post("/api/runs/:runId/cancel", ({ params }) => {
+      const run = findRun(String(params.runId));
+      if (!run) return apiError(404, "not_found", "No such run.");
+      run.cancelRequested = true;
+      return HttpResponse.json(run);
+    }),
   );
+
+  function findRun(runId: string): RunDetail | undefined {
+    return Object.values(state.runs)
+      .flat()
+      .find((run) => run.id === runId);
+  }
 
   return { state, requests };
 }

@@ -1,4 +1,4 @@
-import { Atom, Cpu, ListChecks, type LucideIcon, TrendingUp } from "lucide-react";
+import { Atom, Cpu, type LucideIcon, TrendingUp } from "lucide-react";
 import { EmptyState } from "@/components/ui/empty-state";
 import { PageHeader } from "@/components/ui/page-header";
 import { useCurrentGroup } from "./use-current-group";
@@ -46,22 +46,6 @@ const AREAS = {
     tasks: [
       "Pick the build and version a run will use, so results stay reproducible",
       "See at a glance which clusters can run which kind of calculation",
-    ],
-  },
-  runs: {
-    title: "Runs",
-    summary: "Calculations queued on your group's clusters, from submission to finished output.",
-    icon: ListChecks,
-    emptyTitle: "No runs yet",
-    emptyBody:
-      "Queueing calculations is the next part of Sigmaflow to arrive. Your group's runs will be listed here, newest first.",
-    holds: [
-      "Each run's target, code, energy grid and state: queued, running, finished or failed",
-      "Its logs and its output: K-matrices, eigenphase sums and partial cross sections",
-    ],
-    tasks: [
-      "Queue a calculation for a target on one of your group's clusters and follow its progress",
-      "Resubmit a failed run with corrected parameters",
     ],
   },
   studies: {
@@ -118,10 +102,6 @@ export function TargetsRoute() {
 
 export function CodesRoute() {
   return <AreaPage area={AREAS.codes} />;
-}
-
-export function RunsRoute() {
-  return <AreaPage area={AREAS.runs} />;
 }
 
 export function StudiesRoute() {

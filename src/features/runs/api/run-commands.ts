@@ -1,0 +1,12 @@
+import { runSummarySchema } from "@shared/schemas/execution";
+import { api } from "@/lib/api-client";
+
+/** Queued: never starts. On the scheduler: cancelled there, then `cancelled` once it confirms. */
+export function cancelRun(runId: string) {
+  return api.post(`/api/runs/${encodeURIComponent(runId)}/cancel`, {}, runSummarySchema);
+}
+
+/** A new run from the same specification, linked to its origin. */
+export function resubmitRun(runId: string) {
+  return api.post(`/api/runs/${encodeURIComponent(runId)}/resubmit`, { changes: {} }, runSummarySchema);
+}

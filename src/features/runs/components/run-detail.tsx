@@ -1,0 +1,132 @@
+import type { RunDetail } from "@shared/schemas/execution";
+import { useQuery } from "@tanstack/react-query";
+import { Card, CardBody } from "@/components/ui/card";
+import { Table, TBody, TD, TH, THead, TR } from "@/components/ui/table";
+import { apiUrl } from "@/lib/api-client";
+import { formatDateTime } from "@/lib/format";
+import { isFinished, runQueries } from "../api/run-queries";
+import { RunStateBadge } from "./run-state-badge";
+
+function Section({ title, children }: { title: string; children: React.ReactNode }) {
+  return (
+    <section className="mt-8">
+      <h2 className="mb-3 text-sm font-semibold text-ink-900">{title}</h2>
+      {children}
+    </section>
+  );
+}
+
+/** A run's history, per-symmetry timings, collected files and log, refreshed while it is unfinished. */
+export function RunDetailView({ run }: { run: RunDetail }) {
+  const log = useQuery(runQueries.log(run.id, isFinished(run)));
+  return (
+    <>
+      <Card>
+        <CardBody className="grid gap-4 text-sm sm:grid-cols-4">
+          <div>
+            <div className="text-xs text-ink-500">State</div>
+            <RunStateBadge state={run.state} />
+          </div>
+          <div>
+            <div className="text-xs text-ink-500">Scheduler job</div>
+            <div className="font-mono">{run.schedulerJobId ?? "—"}</div>
+          </div>
+          <div>
+            <div className="text-xs text-ink-500">Core-hours reserved / charged</div>
+            <div className="font-mono">
+              {run.reservedCoreHours.toFixed(2)} / {run.chargedCoreHours?.toFixed(2) ?? "—"}
+            </div>
+          </div>
+          <div>
+            <div className="text-xs text-ink-500">Fingerprint</div>
+            <div className="truncate font-mono text-xs" title={run.fingerprint}>
+              {run.fingerprint.slice(0, 16)}…
+            </div>
+          </div>
+          {run.stateMessage ? <p className="text-ink-700 sm:col-span-4">{run.stateMessage}</p> : null}
+        </CardBody>
+      </Card>
+
+      <Section title="History">
+        <Table caption="State changes">
+          <THead>
+            <TR>
+              <TH>When</TH>
+              <TH>State</TH>
+              <TH>By</TH>
+              <TH>Note</TH>
+            </TR>
+          </THead>
+          <TBody>
+            {run.events.map((event) => (
+              <TR key={`${event.at}-${event.toState}-${event.message ?? ""}`}>
+                <TD className="text-xs">{formatDateTime(event.at)}</TD>
+                <TD>
+                  <RunStateBadge state={event.toState} />
+                </TD>
+                <TD className="text-xs">{event.actor}</TD>
+                <TD className="text-xs text-ink-600">{event.message ?? ""}</TD>
+              </TR>
+            ))}
+          </TBody>
+        </Table>
+      </Section>
+
+      {run.timings.length > 0 ? (
+        <Section title="Time per symmetry">
+          <Table caption="Time per symmetry">
+            <THead>
+              <TR>
+                <TH>Stage</TH>
+                <TH>Symmetry</TH>
+                <TH>Seconds</TH>
+              </TR>
+            </THead>
+            <TBody>
+              {run.timings.map((timing) => (
+                <TR key={`${timing.stage}-${timing.symmetry}`}>
+                  <TD>{timing.stage}</TD>
+                  <TD className="font-mono">{timing.symmetry}</TD>
+                  <TD className="font-mono">{timing.seconds.toFixed(2)}</TD>
+                </TR>
+              ))}
+            </TBody>
+          </Table>
+        </Section>
+      ) : null}
+
+      <Section title="Collected files">
+        {run.artifacts.length === 0 ? (
+          <p className="text-sm text-ink-500">Nothing collected yet.</p>
+        ) : (
+          <ul className="flex flex-col gap-1 text-sm">
+            {run.artifacts.map((artifact) => (
+              <li key={artifact.id}>
+                <a
+                  className="font-mono text-flux-800 hover:underline"
+                  href={apiUrl(
+                    `/api/runs/${encodeURIComponent(run.id)}/artifacts/${encodeURIComponent(artifact.id)}`,
+                  )}
+                >
+                  {artifact.stage}/{artifact.name}
+                </a>{" "}
+                <span className="text-xs text-ink-500">
+                  {artifact.sizeBytes} bytes, sha256 {artifact.sha256.slice(0, 12)}…
+                </span>
+              </li>
+            ))}
+          </ul>
+        )}
+      </Section>
+
+      <Section title="Log">
+        <pre
+          data-testid="run-log"
+          className="max-h-96 overflow-auto rounded-xl bg-ink-900 p-4 font-mono text-xs leading-relaxed text-ink-50"
+        >
+          {log.data === undefined ? "Loading…" : log.data || "No output yet."}
+        </pre>
+      </Section>
+    </>
+  );
+}

@@ -5,6 +5,7 @@ import { Table, TBody, TD, TH, THead, TR } from "@/components/ui/table";
 import { apiUrl } from "@/lib/api-client";
 import { formatDateTime } from "@/lib/format";
 import { isFinished, runQueries } from "../api/run-queries";
+import { formatCoreHours } from "../format-core-hours";
 import { RunStateBadge } from "./run-state-badge";
 
 function Section({ title, children }: { title: string; children: React.ReactNode }) {
@@ -34,7 +35,7 @@ export function RunDetailView({ run }: { run: RunDetail }) {
           <div>
             <div className="text-xs text-ink-500">Core-hours reserved / charged</div>
             <div className="font-mono">
-              {run.reservedCoreHours.toFixed(2)} / {run.chargedCoreHours?.toFixed(2) ?? "—"}
+              {formatCoreHours(run.reservedCoreHours)} / {formatCoreHours(run.chargedCoreHours)}
             </div>
           </div>
           <div>

@@ -7,10 +7,9 @@ import { TableSkeleton } from "@/components/ui/skeleton";
 import { Table, TBody, TD, TH, THead, TR } from "@/components/ui/table";
 import { formatDateTime } from "@/lib/format";
 import { runQueries } from "../api/run-queries";
+import { formatCoreHours as coreHours } from "../format-core-hours";
 import { RunActions } from "./run-actions";
 import { RunStateBadge } from "./run-state-badge";
-
-const coreHours = (value: number | null) => (value === null ? "—" : value.toFixed(2));
 
 export function RunsTable({
   groupId,

@@ -34,6 +34,12 @@ export type RenderedCode = { files: { fileName: string; content: string }[]; arg
 
 /** Cap on one rendered file, so a runaway loop fails clearly instead of exhausting memory later. */
 const MAX_RENDERED_CHARS = 10 * 1024 * 1024;
+/**
+ * Longest one template may render. A loop nest can be slow without printing anything; the runtime
+ * checks the clock on every name and member lookup and at the start of every loop, so even an empty
+ * innermost loop (at most MAX_RANGE_LENGTH turns) overruns by milliseconds only.
+ */
+export const RENDER_TIME_LIMIT_MS = 2000;
 /** `range()` larger than this is refused for the same reason. */
 const MAX_RANGE_LENGTH = 100_000;
 const FORBIDDEN_NAMES = new Set(["constructor", "__proto__", "prototype"]);
@@ -71,7 +77,10 @@ type Internals = {
   };
   parser: { parse(src: string, exts: unknown[], opts: object): { findAll(type: unknown): AstNode[] } };
   nodes: Record<"Include" | "Import" | "FromImport" | "Extends" | "LookupVal", unknown>;
-  runtime: Record<string, unknown> & { SafeString: typeof nunjucks.runtime.SafeString };
+  runtime: Record<string, unknown> & {
+    SafeString: typeof nunjucks.runtime.SafeString;
+    fromIterator(value: unknown): unknown;
+  };
   Template: new (
     src: { type: "code"; obj: TemplateProps },
     env: nunjucks.Environment,
@@ -210,11 +219,21 @@ function printValue(value: unknown, format: TemplateFormat): string {
 
 const hasOwn = (target: object, key: string): boolean => Object.hasOwn(target, key);
 
+/** Set for the duration of one (synchronous) render; every runtime hook checks it. */
+let renderDeadline = Number.POSITIVE_INFINITY;
+
+function checkDeadline(): void {
+  if (Date.now() > renderDeadline) {
+    throw new Error(`rendering took longer than ${RENDER_TIME_LIMIT_MS} ms; is a loop far too large?`);
+  }
+}
+
 function bound(target: unknown, fn: unknown): (...args: unknown[]) => unknown {
   return (...args) => (fn as (...a: unknown[]) => unknown).apply(target, args);
 }
 
 function safeMemberLookup(target: unknown, key: unknown): unknown {
+  checkDeadline();
   if (target === undefined || target === null) return undefined;
   const name = String(key);
   if (FORBIDDEN_NAMES.has(name)) throw new Error(`templates cannot read "${name}"`);
@@ -244,6 +263,7 @@ type LookupContext = { ctx: Record<string, unknown>; env: { globals: Record<stri
 type LookupFrame = { lookup(name: string): unknown };
 
 function safeContextLookup(context: LookupContext, frame: LookupFrame, name: string): unknown {
+  checkDeadline();
   const local = frame.lookup(name);
   if (local !== undefined) return local;
   if (hasOwn(context.ctx, name)) return context.ctx[name];
@@ -258,7 +278,14 @@ function runtimeFor(format: TemplateFormat) {
     ...internals.runtime,
     memberLookup: safeMemberLookup,
     contextOrFrameLookup: safeContextLookup,
-    suppressValue: (value: unknown) => printValue(value, format),
+    suppressValue: (value: unknown) => {
+      checkDeadline();
+      return printValue(value, format);
+    },
+    fromIterator: (value: unknown) => {
+      checkDeadline();
+      return internals.runtime.fromIterator(value);
+    },
     // nunjucks passes 0-based positions here (ensureDefined's errors already carry 1-based ones).
     handleError(error: Located, lineno: number) {
       if (error?.lineno) return error;
@@ -350,11 +377,14 @@ function renderTemplate(
       cb(err, result);
     });
   let output: string;
+  renderDeadline = Date.now() + RENDER_TIME_LIMIT_MS;
   try {
     output = new internals.Template({ type: "code", obj: { ...props, root } }, env, fileName).render(context);
   } catch (error) {
     const cause: Located = failure ?? (error as Located);
     throw new TemplateError(fileName, cause.lineno ?? null, cleanReason(cause));
+  } finally {
+    renderDeadline = Number.POSITIVE_INFINITY;
   }
   if (output.length > MAX_RENDERED_CHARS) {
     throw new TemplateError(

@@ -295,4 +295,23 @@ describe("the template sandbox", () => {
   it("caps range()", () => {
     expect(() => renderOne("text", "{{ range(1000000) | length }}", {})).toThrow(/range\(\) is limited/);
   });
+
+  it("stops a loop nest that prints nothing but would run for hours, naming the line", () => {
+    // 100 000 × 100 000 empty turns: each range() is within its cap, the nest is not.
+    const nest = "x\n{% for i in range(100000) %}{% for j in range(100000) %}{% endfor %}{% endfor %}";
+    const started = Date.now();
+    let caught: unknown;
+    try {
+      renderOne("text", nest, {});
+    } catch (error) {
+      caught = error;
+    }
+    expect(caught).toBeInstanceOf(TemplateError);
+    expect((caught as TemplateError).message).toMatch(/rendering took longer than 2000 ms/);
+    expect((caught as TemplateError).line).toBe(2);
+    // Generous bound (the limit plus one innermost loop), far below the hours the nest would take.
+    expect(Date.now() - started).toBeLessThan(20_000);
+    // The next render starts with a fresh clock.
+    expect(renderOne("text", "{{ range(3) | length }}", {})).toBe("3");
+  });
 });

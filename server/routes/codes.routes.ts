@@ -3,6 +3,7 @@ import { z } from "zod";
 import {
   codeDefinitionSchema,
   codeExportSchema,
+  codeImportSchema,
   codeListSchema,
   codeSchema,
 } from "../../shared/schemas/execution/codes";
@@ -50,7 +51,7 @@ export function codeRoutes({ db }: RouteContext): Router {
   router.post("/groups/:groupId/codes/import", async (req, res) => {
     const principal = requirePrincipal(req);
     const { groupId } = parseParams(groupParams, req);
-    const document = parseBody(codeExportSchema, req);
+    const document = parseBody(codeImportSchema, req);
     const imported = await importCodes(db, principal, groupId, document, clientIp(req));
     res.status(201).json(shape(codeListSchema, { codes: imported }));
   });

@@ -166,7 +166,6 @@ export type CodeExport = { format: "sigmaflow-code-definitions"; version: 1; cod
 
 export async function exportCodes(db: Database, principal: Principal, groupId: string): Promise<CodeExport> {
   const all = await listCodes(db, principal, groupId);
-  if (all.length === 0) throw notFound("Code definitions to export");
   return { format: "sigmaflow-code-definitions", version: 1, codes: all.map((code) => code.definition) };
 }
 

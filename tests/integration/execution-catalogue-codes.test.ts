@@ -158,6 +158,14 @@ describe("export and import", () => {
     expect(reply.body.codes.map((c: { name: string }) => c.name)).toEqual(["scatter"]);
   });
 
+  it("exports an empty document from a group without codes, and refuses to import one", async () => {
+    const empty = await call("otherAdmin", "GET", `/api/groups/${otherGroupId}/codes/export`);
+    expect(empty.status, JSON.stringify(empty.body)).toBe(200);
+    expect(empty.body).toEqual({ format: "sigmaflow-code-definitions", version: 1, codes: [] });
+    const refused = await call("otherAdmin", "POST", `/api/groups/${otherGroupId}/codes/import`, empty.body);
+    expect(refused.status).toBe(422);
+  });
+
   it("imports a document into another group as it was exported", async () => {
     const exported = (await call("member", "GET", `/api/groups/${groupId}/codes/export`)).body;
     const reply = await call("otherAdmin", "POST", `/api/groups/${otherGroupId}/codes/import`, exported);

@@ -91,8 +91,14 @@ export type Code = z.infer<typeof codeSchema>;
 export const codeListSchema = z.object({ codes: z.array(codeSchema) });
 
 /** Export/import document: one or more code definitions. */
+/** A group's code definitions as exported (a group may have none). */
 export const codeExportSchema = z.strictObject({
   format: z.literal("sigmaflow-code-definitions"),
   version: z.literal(1),
+  codes: z.array(codeDefinitionSchema),
+});
+
+/** The same document on import: between 1 and 100 definitions per request. */
+export const codeImportSchema = codeExportSchema.extend({
   codes: z.array(codeDefinitionSchema).min(1).max(100),
 });

@@ -4,8 +4,8 @@ import { createHostRequestSchema } from "./hosts";
 const fields = createHostRequestSchema.shape;
 
 /**
- * PATCH body for a host: only the fields given change. (`updateHostRequestSchema` keeps the creation
- * defaults, so a body without `port` would reset the port to 22; this one has no defaults.)
+ * PATCH body for a host: only the fields given change. It has no defaults (unlike the creation schema,
+ * where a missing `port` means 22), so a body without `port` keeps the host's port.
  */
 export const patchHostRequestSchema = z.strictObject({
   address: fields.address.optional(),

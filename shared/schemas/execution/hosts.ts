@@ -40,8 +40,6 @@ export const createHostRequestSchema = z.strictObject({
 });
 export type CreateHostRequest = z.input<typeof createHostRequestSchema>;
 
-export const updateHostRequestSchema = createHostRequestSchema.partial().omit({ name: true });
-
 /** The admin confirms the fingerprint they were shown; a different key fetched since then is refused. */
 export const confirmHostKeyRequestSchema = z.strictObject({ fingerprint: z.string().min(10).max(80) });
 

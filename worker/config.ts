@@ -11,6 +11,8 @@ const envSchema = z.object({
   WORKER_QUEUE_POLL_SECONDS: z.coerce.number().min(0.5).default(0.5),
   /** Parallel step handlers per queue. */
   WORKER_CONCURRENCY: z.coerce.number().int().min(1).max(64).default(8),
+  /** Connections the worker's steps share (pg-boss keeps a few of its own). */
+  WORKER_DB_POOL_SIZE: z.coerce.number().int().min(2).max(200).default(10),
   /** Transport failures of one run step before the run is held for a person. */
   WORKER_TRANSPORT_MAX_ATTEMPTS: z.coerce.number().int().min(1).default(6),
   WORKER_BACKOFF_BASE_MS: z.coerce.number().int().min(10).default(1000),
@@ -49,6 +51,7 @@ export function loadWorkerConfig(env: NodeJS.ProcessEnv = process.env) {
     pollIntervalMs: e.WORKER_POLL_INTERVAL_MS,
     queuePollSeconds: e.WORKER_QUEUE_POLL_SECONDS,
     concurrency: e.WORKER_CONCURRENCY,
+    dbPoolSize: e.WORKER_DB_POOL_SIZE,
     transportMaxAttempts: e.WORKER_TRANSPORT_MAX_ATTEMPTS,
     backoffBaseMs: e.WORKER_BACKOFF_BASE_MS,
     backoffMaxMs: e.WORKER_BACKOFF_MAX_MS,

@@ -21,7 +21,7 @@ const STEP_BATCH_SIZE = 4;
 export async function startWorker(config = loadWorkerConfig()) {
   const log = createLogger(config.logLevel).child({ service: "sigmaflow-worker" });
   await applyMigrations(config.databaseUrl);
-  const { db, pool } = createDatabase(config.databaseUrl);
+  const { db, pool } = createDatabase(config.databaseUrl, { maxConnections: config.dbPoolSize });
   const boss = createBoss(config.databaseUrl);
   boss.on("error", (error) => log.error({ err: error }, "queue error"));
   await boss.start();

@@ -5,6 +5,7 @@
  * PostgreSQL, the server, the worker(s), the development host with the jobs' processes, and this driver.
  *
  *   node --import tsx bench/engine/throughput.bench.ts [runs=2000] [--workers=1] [--fsync=off] [--statements]
+ *     [--worker-env=WORKER_CONCURRENCY=16 …]
  *
  * The host's limit of runs at once is set to N so that the limit does not pace the benchmark; with the
  * default limit (50) the poll interval would (50 runs per 2 s poll).
@@ -16,6 +17,12 @@ const runCount = Number(args.find((a) => /^\d+$/.test(a)) ?? 2000);
 const workers = Number(args.find((a) => a.startsWith("--workers="))?.split("=")[1] ?? 1);
 const durable = !args.includes("--fsync=off");
 const statements = args.includes("--statements");
+/** --worker-env=NAME=value (repeatable): worker settings to try, e.g. WORKER_CONCURRENCY=16. */
+const workerEnv = Object.fromEntries(
+  args
+    .filter((a) => a.startsWith("--worker-env="))
+    .map((a) => a.slice("--worker-env=".length).split(/=(.*)/s).slice(0, 2) as [string, string]),
+);
 const submitConcurrency = 32;
 
 const stack = await startEngineStack({
@@ -23,6 +30,7 @@ const stack = await startEngineStack({
   workers,
   maxConcurrentRuns: runCount,
   statementStatistics: statements,
+  workerEnv,
   code: { name: "noop", version: "1.0", executable: "/bin/true" },
 });
 try {
@@ -50,7 +58,7 @@ try {
   const seconds = (performance.now() - started) / 1000;
   const cpuAfter = stack.cpuSeconds();
   console.log(
-    `throughput: ${runCount} trivial runs, ${workers} worker(s), fsync ${durable ? "on" : "off"}: ` +
+    `throughput: ${runCount} trivial runs, ${workers} worker(s), fsync ${durable ? "on" : "off"}${Object.keys(workerEnv).length ? `, ${JSON.stringify(workerEnv)}` : ""}: ` +
       `submitted in ${submittedSeconds.toFixed(1)} s (${(runCount / submittedSeconds).toFixed(0)} runs/s accepted), ` +
       `all finished in ${seconds.toFixed(1)} s = ${(runCount / seconds).toFixed(1)} runs/s (goal ≥ 50); states ${JSON.stringify(states)}`,
   );

@@ -2,8 +2,12 @@ import { drizzle } from "drizzle-orm/node-postgres";
 import pg from "pg";
 import * as schema from "./schema";
 
-export function createDatabase(databaseUrl: string) {
-  const pool = new pg.Pool({ connectionString: databaseUrl, max: 10, connectionTimeoutMillis: 5_000 });
+export function createDatabase(databaseUrl: string, options: { maxConnections?: number } = {}) {
+  const pool = new pg.Pool({
+    connectionString: databaseUrl,
+    max: options.maxConnections ?? 10,
+    connectionTimeoutMillis: 5_000,
+  });
   // An idle client that loses its connection (e.g. PostgreSQL restarting) must not crash the process;
   // the pool replaces it on next use.
   pool.on("error", () => {});

@@ -15,13 +15,13 @@
 import { type ChildProcess, execFileSync, spawn } from "node:child_process";
 import { createHash, randomBytes } from "node:crypto";
 import { createReadStream, mkdtempSync, readFileSync, rmSync, writeFileSync } from "node:fs";
-import { createServer } from "node:net";
 import { tmpdir } from "node:os";
 import path from "node:path";
 import { testKeyPair } from "../../tests/integration/support/keys";
 import { SshPool, type SshTarget } from "../../worker/ssh/pool";
 import { prepareRunDir } from "../../worker/ssh/remote-fs";
 import type { RemoteSession } from "../../worker/ssh/session";
+import { freePort } from "../support/processes";
 
 const FILE_COUNT = 20;
 const FILE_BYTES = 10 * 1024 * 1024;
@@ -54,17 +54,6 @@ async function sha256OfFile(file: string): Promise<string> {
   return hash.digest("hex");
 }
 const localDigests = await Promise.all(localFiles.map(sha256OfFile));
-
-function freePort(): Promise<number> {
-  return new Promise((resolve, reject) => {
-    const server = createServer();
-    server.once("error", reject);
-    server.listen(0, "127.0.0.1", () => {
-      const address = server.address();
-      server.close(() => resolve(typeof address === "object" && address ? address.port : 0));
-    });
-  });
-}
 
 /** The fake cluster in its own process, so its CPU is not our event loop's, like sshd. */
 async function startFakeClusterProcess(): Promise<{ child: ChildProcess; target: SshTarget }> {

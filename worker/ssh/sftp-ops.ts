@@ -159,25 +159,33 @@ export async function writeWhole(
 }
 
 /**
- * Reads a whole file, refusing one larger than maxBytes (checked as the bytes arrive, so at most one
- * chunk beyond the limit is ever held), so a runaway output file cannot exhaust the worker's memory.
+ * Reads `handle` from byte `start` in chunks until end of file or `maxBytes` bytes; `tooLarge` (when
+ * given) is thrown as soon as more than `maxBytes` would be needed, so at most one chunk beyond the limit
+ * is ever held. The handle is closed whatever happens; the first failure wins.
  */
-export async function readWhole(sftp: SFTPWrapper, remotePath: string, maxBytes: number): Promise<Buffer> {
-  const handle = await call<Buffer>(remotePath, (done) => sftp.open(remotePath, "r", done));
+async function readFromHandle(
+  sftp: SFTPWrapper,
+  remotePath: string,
+  handle: Buffer,
+  start: number,
+  maxBytes: number,
+  tooLarge?: () => Error,
+): Promise<Buffer> {
   const chunks: Buffer[] = [];
   let failure: unknown = null;
   try {
-    let position = 0;
-    for (;;) {
-      const buffer = Buffer.allocUnsafe(IO_CHUNK_BYTES * 4);
+    let position = start;
+    let read = 0;
+    while (tooLarge || read < maxBytes) {
+      const size = tooLarge ? IO_CHUNK_BYTES * 4 : Math.min(maxBytes - read, IO_CHUNK_BYTES * 4);
+      const buffer = Buffer.allocUnsafe(size);
       const bytesRead = await call<number>(remotePath, (done) =>
         sftp.read(handle, buffer, 0, buffer.length, position, (error, count) => done(error, count)),
       );
       if (bytesRead === 0) break;
       position += bytesRead;
-      if (position > maxBytes) {
-        throw new RemoteFileError(remotePath, "too-large", `larger than the ${maxBytes}-byte limit`);
-      }
+      read += bytesRead;
+      if (tooLarge && read > maxBytes) throw tooLarge();
       chunks.push(buffer.subarray(0, bytesRead));
     }
   } catch (error) {
@@ -190,6 +198,22 @@ export async function readWhole(sftp: SFTPWrapper, remotePath: string, maxBytes:
   }
   if (failure) throw failure;
   return Buffer.concat(chunks);
+}
+
+/**
+ * Reads a whole file, refusing one larger than maxBytes (checked as the bytes arrive), so a runaway
+ * output file cannot exhaust the worker's memory.
+ */
+export async function readWhole(sftp: SFTPWrapper, remotePath: string, maxBytes: number): Promise<Buffer> {
+  const handle = await call<Buffer>(remotePath, (done) => sftp.open(remotePath, "r", done));
+  return readFromHandle(
+    sftp,
+    remotePath,
+    handle,
+    0,
+    maxBytes,
+    () => new RemoteFileError(remotePath, "too-large", `larger than the ${maxBytes}-byte limit`),
+  );
 }
 
 /**
@@ -209,31 +233,7 @@ export async function readRange(
     if (error instanceof RemoteFileError && error.reason === "missing") return null;
     throw error;
   }
-  const chunks: Buffer[] = [];
-  let failure: unknown = null;
-  try {
-    let position = offsetBytes;
-    let remaining = maxBytes;
-    while (remaining > 0) {
-      const buffer = Buffer.allocUnsafe(Math.min(remaining, IO_CHUNK_BYTES * 4));
-      const bytesRead = await call<number>(remotePath, (done) =>
-        sftp.read(handle, buffer, 0, buffer.length, position, (error, count) => done(error, count)),
-      );
-      if (bytesRead === 0) break;
-      chunks.push(buffer.subarray(0, bytesRead));
-      position += bytesRead;
-      remaining -= bytesRead;
-    }
-  } catch (error) {
-    failure = error;
-  }
-  try {
-    await closeHandle(sftp, remotePath, handle);
-  } catch (error) {
-    failure ??= error;
-  }
-  if (failure) throw failure;
-  return Buffer.concat(chunks);
+  return readFromHandle(sftp, remotePath, handle, offsetBytes, maxBytes);
 }
 
 export function fastPut(

@@ -426,7 +426,12 @@ export async function cancelRun(
       (await transitionRun(tx, runId, [run.state], "cancelled", {
         actor,
         message: "Cancelled before it reached the scheduler",
-        set: { cancelRequestedAt: new Date(), finishedAt: new Date(), chargedCoreSeconds: 0 },
+        set: {
+          cancelRequestedAt: new Date(),
+          finishedAt: new Date(),
+          chargedCoreSeconds: 0,
+          waitingForSlotSince: null,
+        },
       }));
     if (stopped) {
       await tx.insert(ledgerEntries).values({

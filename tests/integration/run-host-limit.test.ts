@@ -102,4 +102,38 @@ describe("a host that runs at most two runs at once", () => {
     );
     expect(rows[0].n).toBe(0);
   });
+
+  it("cancels a run that waits for a slot at once, and it no longer waits", async () => {
+    const submit = async (label: string, sleepSeconds: number) => {
+      const created = await sf.api(
+        "POST",
+        `/api/groups/${sf.groupId}/runs`,
+        runSpec(recipeId, hostId, { prepare: { label, sleepSeconds } }, label),
+      );
+      expect(created.status, JSON.stringify(created.body)).toBe(201);
+      return created.body.id as string;
+    };
+    const busy = [await submit("busy-1", 4), await submit("busy-2", 4)];
+    for (const id of busy) await waitForState(sf, id, ["running"], 15_000);
+    const ids = [...busy, await submit("waiting", 0)];
+    const waitingId = ids[2]!;
+    // The two busy runs hold both slots for 4 s: the third one must wait.
+    await waitFor(
+      () => sf.api("GET", `/api/runs/${waitingId}`),
+      (r) => /^Waiting for a free slot/.test(r.body.stateMessage ?? ""),
+      15_000,
+      "the third run to wait for a slot",
+    );
+    const cancelled = await sf.api("POST", `/api/runs/${waitingId}/cancel`);
+    expect(cancelled.status, JSON.stringify(cancelled.body)).toBe(200);
+    expect(cancelled.body.state).toBe("cancelled");
+    const { rows } = await database.pool.query("select waiting_for_slot_since from runs where id = $1", [
+      waitingId,
+    ]);
+    expect(rows[0].waiting_for_slot_since).toBeNull();
+    for (const id of ids.slice(0, 2)) {
+      const run = await waitForState(sf, id, ["done", "failed", "cancelled"], 60_000);
+      expect(run.state, run.stateMessage).toBe("done");
+    }
+  });
 });

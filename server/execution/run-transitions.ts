@@ -1,9 +1,10 @@
 /**
- * The one way a run changes state: a conditional UPDATE (`where state in (...)`) plus a run_events row
- * and a NOTIFY, in the caller's transaction. A step whose expected state is gone (cancelled meanwhile,
- * or already done by a previous attempt) gets `false` and must not act.
+ * The one way a run changes state: a conditional UPDATE (`where state in (...)`) plus a run_events row,
+ * in the caller's transaction; the row's trigger notifies listeners on RUN_NOTIFY_CHANNEL at commit
+ * (drizzle/0004). A step whose expected state is gone (cancelled meanwhile, or already done by a
+ * previous attempt) gets `false` and must not act.
  */
-import { and, eq, inArray, sql } from "drizzle-orm";
+import { and, eq, inArray } from "drizzle-orm";
 import type { RunState } from "../../shared/schemas/execution/runs";
 import type { DbExecutor } from "../db/client";
 import { runEvents, runs } from "../db/schema";
@@ -12,6 +13,7 @@ export type Actor = { kind: "user"; userId: string } | { kind: "worker" } | { ki
 
 type RunUpdate = Partial<typeof runs.$inferInsert>;
 
+/** Raised by the triggers on run_events and run_log_chunks; see drizzle/0004_run_notifications.sql. */
 export const RUN_NOTIFY_CHANNEL = "sigmaflow_run_events";
 
 export async function transitionRun(
@@ -21,33 +23,33 @@ export async function transitionRun(
   to: RunState,
   options: { actor: Actor; message?: string | null; set?: RunUpdate },
 ): Promise<boolean> {
-  const [previous] = await db
-    .select({ state: runs.state })
-    .from(runs)
-    .where(and(eq(runs.id, runId), inArray(runs.state, [...from])))
-    .for("update");
+  const previous = from.length === 1 ? from[0]! : await lockedStateAmong(db, runId, from);
   if (!previous) return false;
-  await db
+  // The conditional update takes the row lock itself; with one possible source state it also tells
+  // which state the run left, so no separate read is needed.
+  const moved = await db
     .update(runs)
     .set({ ...options.set, state: to, stateMessage: options.message ?? null, updatedAt: new Date() })
-    .where(eq(runs.id, runId));
+    .where(and(eq(runs.id, runId), eq(runs.state, previous)))
+    .returning({ id: runs.id });
+  if (moved.length === 0) return false;
   await db.insert(runEvents).values({
     runId,
-    fromState: previous.state,
+    fromState: previous,
     toState: to,
     actor: options.actor.kind,
     actorUserId: options.actor.kind === "user" ? options.actor.userId : null,
     message: options.message ?? null,
   });
-  await notifyRun(db, runId, { type: "state", state: to });
   return true;
 }
 
-/** Tells listening servers that something about the run changed (delivered at commit). */
-export async function notifyRun(
-  db: DbExecutor,
-  runId: string,
-  payload: Record<string, unknown>,
-): Promise<void> {
-  await db.execute(sql`select pg_notify(${RUN_NOTIFY_CHANNEL}, ${JSON.stringify({ runId, ...payload })})`);
+/** With several possible source states: the current one, row-locked, or null when it is none of them. */
+async function lockedStateAmong(db: DbExecutor, runId: string, from: readonly RunState[]) {
+  const [row] = await db
+    .select({ state: runs.state })
+    .from(runs)
+    .where(and(eq(runs.id, runId), inArray(runs.state, [...from])))
+    .for("update");
+  return row?.state ?? null;
 }

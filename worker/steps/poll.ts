@@ -7,7 +7,7 @@ import { and, eq, inArray } from "drizzle-orm";
 import { withClientTransaction } from "../../server/db/client-transaction";
 import { hosts, runLogChunks, runs, runTimings } from "../../server/db/schema";
 import { compileOutputRules, parseLogLines } from "../../server/execution/output-rules";
-import { notifyRun, transitionRun } from "../../server/execution/run-transitions";
+import { transitionRun } from "../../server/execution/run-transitions";
 import { RUN_STEP_QUEUES } from "../../server/queue/queues";
 import type { WorkerContext } from "../context";
 import { guardStep, holdHostRuns } from "../failures";
@@ -74,7 +74,6 @@ async function storeLog(
             set: { elapsedMs: timing.elapsedMs },
           });
       }
-      await notifyRun(tx, run.id, { type: "log", seq });
     });
     if (chunk.text.length < MAX_LOG_BYTES_PER_POLL / 2) break;
   }

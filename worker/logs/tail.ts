@@ -95,7 +95,6 @@ export async function readLogsFrom(
   maxBytes: number = DEFAULT_LOG_CHUNK_BYTES,
   options: { includePartialLine?: boolean } = {},
 ): Promise<LogChunk[]> {
-  for (const request of requests) checkOffset(request.offsetBytes);
   return Promise.all(
     requests.map((request) => readLogFrom(session, request.path, request.offsetBytes, maxBytes, options)),
   );

@@ -11,6 +11,9 @@ import { api } from "@/lib/api-client";
 /** While anything is unfinished the page refreshes itself at this pace (live streaming comes later). */
 const REFRESH_WHILE_ACTIVE_MS = 3000;
 
+/** The log as the page holds it: the text so far and the sequence number of its last chunk. */
+export type RunLogText = { text: string; lastSeq: number };
+
 export const isFinished = (run: Pick<RunSummary, "state">) => FINAL_RUN_STATES.includes(run.state);
 
 export const runQueries = {
@@ -30,22 +33,25 @@ export const runQueries = {
       refetchInterval: (query) =>
         query.state.data && !isFinished(query.state.data) ? REFRESH_WHILE_ACTIVE_MS : false,
     }),
-  /** The whole stored log, read page by page by sequence number. */
+  /**
+   * The stored log, read page by page by sequence number. A refresh asks only for chunks after the last
+   * one it holds, so following a long log does not download it again every few seconds.
+   */
   log: (runId: string, finished: boolean) =>
     queryOptions({
       queryKey: [...runQueries.all, "log", runId] as const,
-      queryFn: async ({ signal }) => {
-        let afterSeq = 0;
-        let text = "";
+      queryFn: async ({ signal, client, queryKey }) => {
+        const held = client.getQueryData<RunLogText>(queryKey);
+        let { text, lastSeq } = held ?? { text: "", lastSeq: 0 };
         for (;;) {
           const page = await api.get(
-            `/api/runs/${encodeURIComponent(runId)}/log?afterSeq=${afterSeq}`,
+            `/api/runs/${encodeURIComponent(runId)}/log?afterSeq=${lastSeq}`,
             runLogSchema,
             { signal },
           );
-          if (page.chunks.length === 0) return text;
+          if (page.chunks.length === 0) return { text, lastSeq };
           text += page.chunks.map((chunk) => chunk.text).join("");
-          afterSeq = page.lastSeq;
+          lastSeq = page.lastSeq;
         }
       },
       refetchInterval: finished ? false : REFRESH_WHILE_ACTIVE_MS,

@@ -125,7 +125,7 @@ export function RunDetailView({ run }: { run: RunDetail }) {
           data-testid="run-log"
           className="max-h-96 overflow-auto rounded-xl bg-ink-900 p-4 font-mono text-xs leading-relaxed text-ink-50"
         >
-          {log.data === undefined ? "Loading…" : log.data || "No output yet."}
+          {log.data === undefined ? "Loading…" : log.data.text || "No output yet."}
         </pre>
       </Section>
     </>

@@ -1,6 +1,8 @@
 /**
- * Regularised incomplete gamma functions, used for the fraction of a Maxwellian population above an
- * energy (the energy distribution of a Maxwellian is a gamma distribution of shape 3/2).
+ * Regularised incomplete gamma functions and the complementary error function: the fraction of a
+ * Maxwellian population above an energy (the energy distribution of a Maxwellian is a gamma distribution of
+ * shape 3/2) and the charge of a Gaussian basis function beyond a radius (a gamma distribution of shape
+ * l + 3/2 in 2αr², see sphere/sphere-radius.ts).
  *
  * Reference: NIST DLMF §8.2 (definitions), §8.7 (series), §8.9 (continued fraction); the series/continued
  * fraction split at x = a + 1 and the modified Lentz evaluation follow common practice (e.g. W. H. Press et
@@ -16,10 +18,12 @@ const LANCZOS_COEFFICIENTS = [
 
 /**
  * Natural logarithm of the gamma function for a > 0 (Lanczos approximation, g = 7, 9 terms; relative
- * accuracy ≈ 1e-15).
+ * accuracy ≈ 1e-15). Reference: C. Lanczos, SIAM J. Numer. Anal. B 1, 86 (1964); coefficients as in
+ * Numerical Recipes, 3rd ed., §6.1.
  *
  * @param a - argument (> 0)
  * @returns ln Γ(a)
+ * @throws ScienceInputError for a ≤ 0 or a NaN
  */
 export function logGamma(a: number): number {
   if (!(a > 0)) throw new ScienceInputError(`logGamma needs a > 0; got ${a}.`);
@@ -78,4 +82,16 @@ export function regularizedUpperGamma(a: number, x: number): number {
     if (Math.abs(delta - 1) < EPSILON) break;
   }
   return Math.exp(logPrefactor) * h;
+}
+
+/**
+ * Complementary error function erfc(x) = Q(1/2, x²) for x ≥ 0, 2 − erfc(−x) otherwise (DLMF §7.11).
+ *
+ * @param x - argument
+ * @returns erfc(x) with relative accuracy ~1e-14
+ * @throws ScienceInputError for a NaN argument
+ */
+export function erfc(x: number): number {
+  if (x < 0) return 2 - erfc(-x);
+  return regularizedUpperGamma(0.5, x * x);
 }

@@ -1,4 +1,3 @@
-export { erfc, logGamma, regularizedUpperGamma } from "./incomplete-gamma";
 export {
   checkSphereRadius,
   gaussianChargeBeyond,

@@ -22,7 +22,7 @@ import {
 } from "../../schemas/science-target";
 import { BOHR_RADIUS_ANGSTROM } from "../constants";
 import { ScienceInputError } from "../errors";
-import { regularizedUpperGamma } from "./incomplete-gamma";
+import { regularizedUpperGamma } from "../quadrature/incomplete-gamma";
 
 /**
  * Fraction of the charge of a normalized Gaussian function r^l e^{−α r²} lying beyond a distance ρ.

@@ -1,12 +1,10 @@
 import { BOHR_RADIUS_ANGSTROM } from "@shared/science/constants";
 import { ScienceInputError } from "@shared/science/errors";
+import { erfc, logGamma, regularizedUpperGamma } from "@shared/science/quadrature/incomplete-gamma";
 import {
   checkSphereRadius,
-  erfc,
   gaussianChargeBeyond,
   gaussianTailRadiusBohr,
-  logGamma,
-  regularizedUpperGamma,
   requiredSphereRadius,
 } from "@shared/science/sphere";
 import { describe, expect, it } from "vitest";

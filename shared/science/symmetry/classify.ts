@@ -13,6 +13,7 @@
  * and their elements).
  */
 import { type Mat3, normalize, trace, type Vec3 } from "../geometry/linear-algebra";
+import { gcd } from "./greatest-common-divisor";
 import { operationOrder, type SymmetryOperationRaw } from "./operations";
 
 export interface PointGroupName {
@@ -113,10 +114,6 @@ export function describeOperation(op: SymmetryOperationRaw): OperationLabel {
     k = Math.round((phi * n) / (2 * Math.PI));
   }
   return { kind: "S", n, k, axis: improperAxis, label: power("S", n, k), elementOrder };
-}
-
-function gcd(p: number, q: number): number {
-  return q === 0 ? Math.abs(p) : gcd(q, p % q);
 }
 
 /**

@@ -33,6 +33,7 @@ import {
   sub,
   type Vec3,
 } from "../geometry/linear-algebra";
+import { gcd } from "./greatest-common-divisor";
 import { fitOrthogonal } from "./superposition";
 
 export interface SymmetryOperationRaw {
@@ -316,10 +317,6 @@ export function composeOperations(
     proper: outer.proper === inner.proper,
     maxDeviationAngstrom: outer.maxDeviationAngstrom + inner.maxDeviationAngstrom,
   };
-}
-
-function gcd(p: number, q: number): number {
-  return q === 0 ? p : gcd(q, p % q);
 }
 
 /**

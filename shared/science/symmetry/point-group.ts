@@ -21,10 +21,11 @@ import {
   type Vec3,
 } from "../geometry/linear-algebra";
 import { isotopeLabel, type TargetAtom } from "../geometry/target";
-import { canonicalFrame, chooseAbelianSubgroup } from "./abelian-subgroup";
+import { chooseAbelianSubgroup } from "./abelian-subgroup";
 import { ABELIAN_TABLES, type AbelianGroupSymbol } from "./abelian-tables";
 import { classifyPointGroup, describeOperation, type OperationKind } from "./classify";
 import { findSymmetryOperations, type SymmetryOperationRaw } from "./operations";
+import { canonicalFrame } from "./standard-orientation";
 
 /** Default distance tolerance, Å: well above the rounding of coordinates printed with 4–5 decimals and
  * of optimised geometries (~1e-4 Å), well below any bond length. */

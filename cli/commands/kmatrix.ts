@@ -5,7 +5,7 @@
 import {
   computeKMatrixCrossSections,
   kMatrixCrossSectionResultToJson,
-} from "../../shared/science/kmatrix/cross-sections";
+} from "../../shared/science/kmatrix/cross-sections-from-document";
 import { CliError } from "../errors";
 import {
   formatNumber,

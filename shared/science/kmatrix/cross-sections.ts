@@ -13,6 +13,9 @@
  * Reference: e.g. P. G. Burke, R-Matrix Theory of Atomic Collisions (Springer, 2011) (cross sections from
  * the T-matrix, spin averaging); N. F. Mott and H. S. W. Massey, The Theory of Atomic Collisions (1965).
  *
+ * The channel setup (states, spin weights, grid) is checked in ./channel-setup.ts; whole input documents
+ * are read in ./cross-sections-from-document.ts.
+ *
  * Open and closed channels: a channel is open at total energy E when E > E_i of its target state. The
  * K-matrix of a point must be over exactly the open channels, in the order of the symmetry's channel list;
  * closed channels are left out. σ(i → j) is reported as 0 where state i or j is closed.
@@ -20,50 +23,26 @@
  * Performance: one O(n³) complex LDLᵀ inversion per (symmetry, energy); every buffer is allocated once by
  * the accumulator, so feeding points allocates nothing.
  */
-import {
-  type KMatrixInput,
-  kMatrixInputSchema,
-  parseScienceInput,
-  type ScatteringChannel,
-  type TargetState,
-} from "../../schemas/science-scattering";
+import type { TargetState } from "../../schemas/science-scattering";
 import { ANGSTROM2_PER_BOHR2, HARTREE_EV } from "../constants";
 import { ScienceInputError } from "../errors";
 import { ComplexSymmetricWorkspace } from "../linear-algebra/complex-symmetric-inverse";
+import {
+  type KMatrixCrossSectionSetup,
+  type KMatrixSymmetrySetup,
+  type PreparedSymmetry,
+  prepareChannelSetup,
+} from "./channel-setup";
 import { unwrapPhases } from "./eigenphase-continuity";
 import { assertSymmetricKMatrix, invertOneMinusIK, KMATRIX_SYMMETRY_TOLERANCE } from "./t-matrix";
 
-/** Channels of one irrep and total spin, without the K-matrices. */
-export interface KMatrixSymmetrySetup {
-  irrep: string;
-  totalSpinMultiplicity: number;
-  channels: readonly ScatteringChannel[];
-}
-
-/** Everything the accumulator needs before K-matrices arrive. */
-export interface KMatrixCrossSectionSetup {
-  targetStates: readonly TargetState[];
-  symmetries: readonly KMatrixSymmetrySetup[];
-  /** The common energy grid in eV, strictly increasing. */
-  energiesEv: ArrayLike<number>;
-}
+export type { KMatrixCrossSectionSetup, KMatrixSymmetrySetup } from "./channel-setup";
 
 export interface KMatrixCrossSectionResult {
   energiesEv: Float64Array;
   symmetries: { irrep: string; totalSpinMultiplicity: number; eigenphaseSumRad: Float64Array }[];
   /** Every ordered pair of target states that appear in some channel. */
   transitions: { fromState: string; toState: string; crossSectionA2: Float64Array }[];
-}
-
-interface PreparedSymmetry {
-  label: string;
-  channelState: Int32Array;
-  /** M / (2 M_i g_i) per target state index (0 where the state has no channel here). */
-  weightByState: Float64Array;
-}
-
-function symmetryLabel(irrep: string, multiplicity: number): string {
-  return `${irrep} (2S+1 = ${multiplicity})`;
 }
 
 /**
@@ -95,62 +74,14 @@ export class KMatrixCrossSectionAccumulator {
     this.symmetryTolerance = options.symmetryTolerance ?? KMATRIX_SYMMETRY_TOLERANCE;
     this.states = setup.targetStates;
     this.setupSymmetries = setup.symmetries;
-    const stateIndex = new Map<string, number>();
-    setup.targetStates.forEach((state, index) => {
-      if (stateIndex.has(state.id)) throw new ScienceInputError(`Target state id "${state.id}" is repeated.`);
-      stateIndex.set(state.id, index);
-    });
-    const nStates = setup.targetStates.length;
-    this.thresholdsEv = Float64Array.from(setup.targetStates, (state) => state.energyEv);
-
-    this.energiesEv = Float64Array.from(setup.energiesEv);
-    for (let e = 0; e < this.energiesEv.length; e++) {
-      if (!Number.isFinite(this.energiesEv[e]!)) throw new ScienceInputError(`Energy ${e} is not finite.`);
-      if (e > 0 && !(this.energiesEv[e]! > this.energiesEv[e - 1]!)) {
-        throw new ScienceInputError(
-          `Energies must be strictly increasing (${this.energiesEv[e - 1]} eV is followed by ${this.energiesEv[e]} eV).`,
-        );
-      }
-    }
-
-    this.stateUsed = new Uint8Array(nStates);
-    const seen = new Set<string>();
-    let capacity = 1;
-    this.symmetries = setup.symmetries.map((symmetry) => {
-      const label = symmetryLabel(symmetry.irrep, symmetry.totalSpinMultiplicity);
-      const key = `${symmetry.irrep}\u0000${symmetry.totalSpinMultiplicity}`;
-      if (seen.has(key)) throw new ScienceInputError(`Symmetry ${label} is listed twice.`);
-      seen.add(key);
-      const channelState = new Int32Array(symmetry.channels.length);
-      const weightByState = new Float64Array(nStates);
-      symmetry.channels.forEach((channel, c) => {
-        const index = stateIndex.get(channel.targetState);
-        if (index === undefined) {
-          throw new ScienceInputError(
-            `${label}, channel ${c}: unknown target state "${channel.targetState}".`,
-            { channel: c },
-          );
-        }
-        const state = setup.targetStates[index]!;
-        // Electron (spin ½) + target of multiplicity M_i couples to M_i ± 1 only.
-        const total = symmetry.totalSpinMultiplicity;
-        if (total !== state.spinMultiplicity + 1 && total !== state.spinMultiplicity - 1) {
-          throw new ScienceInputError(
-            `${label}, channel ${c}: target state "${state.id}" (2S+1 = ${state.spinMultiplicity}) plus an ` +
-              `electron cannot give total 2S+1 = ${total}; allowed ${
-                state.spinMultiplicity > 1 ? `${state.spinMultiplicity - 1} or ` : ""
-              }${state.spinMultiplicity + 1}.`,
-          );
-        }
-        channelState[c] = index;
-        weightByState[index] = total / (2 * state.spinMultiplicity * state.degeneracy);
-        this.stateUsed[index] = 1;
-      });
-      capacity = Math.max(capacity, symmetry.channels.length);
-      return { label, channelState, weightByState };
-    });
-
+    const prepared = prepareChannelSetup(setup);
+    this.thresholdsEv = prepared.thresholdsEv;
+    this.energiesEv = prepared.energiesEv;
+    this.symmetries = prepared.symmetries;
+    this.stateUsed = prepared.stateUsed;
+    const nStates = this.states.length;
     const nEnergies = this.energiesEv.length;
+    const capacity = prepared.maxChannelCount;
     this.sigmaBohr2 = new Float64Array(nEnergies * nStates * nStates);
     this.eigenphaseSums = this.symmetries.map(() => new Float64Array(nEnergies));
     this.filled = this.symmetries.map(() => new Uint8Array(nEnergies));
@@ -300,98 +231,4 @@ export class KMatrixCrossSectionAccumulator {
       transitions,
     };
   }
-}
-
-const ENERGY_MATCH_TOLERANCE_EV = 1e-9;
-
-/**
- * Cross sections and eigenphase sums from a complete K-matrix input document.
- *
- * Method: validate with `kMatrixInputSchema`; sort each symmetry's points by energy; require every
- * symmetry to use the same energy grid (within 1e-9 eV); feed each K-matrix to a
- * {@link KMatrixCrossSectionAccumulator}.
- *
- * @param input - the K-matrix input (unknown JSON is validated)
- * @param options.continuousEigenphaseSum - remove π jumps from the eigenphase sums along energy
- * @param options.symmetryTolerance - relative tolerance for K symmetry (default 1e-6)
- * @returns energies (eV), eigenphase sums per symmetry (rad), σ(i → j) per energy (Å²)
- * @throws ScienceInputError for any malformed or inconsistent input, with the symmetry and energy named
- */
-export function computeKMatrixCrossSections(
-  input: unknown,
-  options: { continuousEigenphaseSum?: boolean; symmetryTolerance?: number } = {},
-): KMatrixCrossSectionResult {
-  const parsed: KMatrixInput = parseScienceInput(kMatrixInputSchema, input, "K-matrix input");
-  const sortedPoints = parsed.symmetries.map((symmetry) =>
-    [...symmetry.points].sort((p, q) => p.energyEv - q.energyEv),
-  );
-  const grid = sortedPoints[0]!.map((point) => point.energyEv);
-  sortedPoints.forEach((points, s) => {
-    const symmetry = parsed.symmetries[s]!;
-    const label = symmetryLabel(symmetry.irrep, symmetry.totalSpinMultiplicity);
-    if (points.length !== grid.length) {
-      throw new ScienceInputError(
-        `${label} has ${points.length} energies but ${symmetryLabel(parsed.symmetries[0]!.irrep, parsed.symmetries[0]!.totalSpinMultiplicity)} has ${grid.length}; all symmetries must share one energy grid.`,
-      );
-    }
-    points.forEach((point, e) => {
-      if (Math.abs(point.energyEv - grid[e]!) > ENERGY_MATCH_TOLERANCE_EV) {
-        throw new ScienceInputError(
-          `${label}: energy ${point.energyEv} eV does not match ${grid[e]} eV of the common grid; all symmetries must share one energy grid.`,
-        );
-      }
-      if (e > 0 && point.energyEv === points[e - 1]!.energyEv) {
-        throw new ScienceInputError(`${label}: energy ${point.energyEv} eV appears twice.`);
-      }
-    });
-  });
-
-  const accumulator = new KMatrixCrossSectionAccumulator(
-    { targetStates: parsed.targetStates, symmetries: parsed.symmetries, energiesEv: grid },
-    { symmetryTolerance: options.symmetryTolerance },
-  );
-  let buffer = new Float64Array(0);
-  sortedPoints.forEach((points, s) => {
-    points.forEach((point, e) => {
-      const n = accumulator.openChannelCount(s, e);
-      const rows = point.kMatrix;
-      const badRow = rows.findIndex((row) => row.length !== rows.length);
-      if (rows.length !== n || badRow >= 0) {
-        const symmetry = parsed.symmetries[s]!;
-        const shape =
-          badRow >= 0 ? `row ${badRow} has ${rows[badRow]!.length} entries` : `${rows.length} rows`;
-        throw new ScienceInputError(
-          `${symmetryLabel(symmetry.irrep, symmetry.totalSpinMultiplicity)} at ${point.energyEv} eV: ${n} ` +
-            `channel${n === 1 ? " is" : "s are"} open, so the K-matrix must be ${n}×${n}; it has ${shape}. ` +
-            "Closed channels must be left out.",
-          { openChannels: n },
-        );
-      }
-      if (buffer.length < n * n) buffer = new Float64Array(n * n);
-      for (let i = 0; i < n; i++) buffer.set(rows[i]!, i * n);
-      accumulator.addPoint(s, e, n * n === buffer.length ? buffer : buffer.subarray(0, n * n));
-    });
-  });
-  return accumulator.result({ continuousEigenphaseSum: options.continuousEigenphaseSum });
-}
-
-/**
- * Converts a result to plain arrays for JSON (see `kMatrixCrossSectionResultSchema`).
- *
- * @param result - output of {@link computeKMatrixCrossSections} or the accumulator
- */
-export function kMatrixCrossSectionResultToJson(result: KMatrixCrossSectionResult) {
-  return {
-    energiesEv: Array.from(result.energiesEv),
-    symmetries: result.symmetries.map((symmetry) => ({
-      irrep: symmetry.irrep,
-      totalSpinMultiplicity: symmetry.totalSpinMultiplicity,
-      eigenphaseSumRad: Array.from(symmetry.eigenphaseSumRad),
-    })),
-    transitions: result.transitions.map((transition) => ({
-      fromState: transition.fromState,
-      toState: transition.toState,
-      crossSectionA2: Array.from(transition.crossSectionA2),
-    })),
-  };
 }

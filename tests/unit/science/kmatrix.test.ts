@@ -5,10 +5,8 @@
 import type { KMatrixInputDocument } from "@shared/schemas/science-scattering";
 import { ANGSTROM2_PER_BOHR2, HARTREE_EV } from "@shared/science/constants";
 import { ScienceInputError } from "@shared/science/errors";
-import {
-  computeKMatrixCrossSections,
-  KMatrixCrossSectionAccumulator,
-} from "@shared/science/kmatrix/cross-sections";
+import { KMatrixCrossSectionAccumulator } from "@shared/science/kmatrix/cross-sections";
+import { computeKMatrixCrossSections } from "@shared/science/kmatrix/cross-sections-from-document";
 import {
   eigenphaseSumFromKMatrix,
   eigenphasesFromKMatrix,

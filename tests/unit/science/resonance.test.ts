@@ -1,7 +1,7 @@
 /**
  * Breit–Wigner fits of resonances in eigenphase sums.
  */
-import { computeKMatrixCrossSections } from "@shared/science/kmatrix/cross-sections";
+import { computeKMatrixCrossSections } from "@shared/science/kmatrix/cross-sections-from-document";
 import { breitWignerPhase, fitBreitWignerResonance } from "@shared/science/resonance/breit-wigner-fit";
 import { describe, expect, it } from "vitest";
 import { seededUniform } from "./support/random-matrices";

@@ -1,3 +1,5 @@
+import { existsSync, statSync } from "node:fs";
+import { fileURLToPath } from "node:url";
 import { inspectTarget } from "@shared/science/geometry";
 import { describe, expect, it } from "vitest";
 import { psi4Geometries } from "./support/crosscheck";
@@ -10,12 +12,19 @@ import { crosscheckCases } from "./support/crosscheck-cases";
  * by ≤ 2e-8 relative), hence the tolerances: 1e-6 relative on rotational constants, 1e-8 on E_nn.
  * psi4 reports A = 0 for linear molecules where we report null (no rotation about the axis).
  */
+/** psi4 writes timer.dat into its working folder; the helper must run it in a temporary one. */
+const REPOSITORY_TIMER_FILE = fileURLToPath(new URL("../../../timer.dat", import.meta.url));
+const modifiedAt = (path: string) => (existsSync(path) ? statSync(path).mtimeMs : null);
+
 describe("cross-check: psi4 geometry properties", () => {
   it("agrees on the Abelian subgroup, rotational constants and nuclear repulsion", {
     timeout: 180_000,
   }, () => {
     const cases = crosscheckCases(1);
+    const timerBefore = modifiedAt(REPOSITORY_TIMER_FILE);
     const reference = psi4Geometries(cases);
+    // regression: psi4 must not leave timer.dat in the repository (it runs in a temporary working folder)
+    expect(modifiedAt(REPOSITORY_TIMER_FILE), "psi4 wrote timer.dat into the repository").toBe(timerBefore);
     expect(reference).toHaveLength(cases.length);
     for (const [i, c] of cases.entries()) {
       const theirs = reference[i]!;

@@ -1,15 +1,15 @@
 /**
  * Runs the Python cross-check helper (./crosscheck.py) in a child process with Debian's python3, where
  * python3-pymatgen and psi4 are installed (deploy/apt-packages.txt). psi4's Python module lives in the
- * multiarch library folder, added to PYTHONPATH.
+ * multiarch library folder, added to PYTHONPATH. The helper runs in a fresh temporary working folder
+ * (./python-json.ts), where psi4 leaves its timer.dat.
  */
-import { spawnSync } from "node:child_process";
 import { existsSync, readdirSync } from "node:fs";
 import { fileURLToPath } from "node:url";
 import type { TargetAtom } from "@shared/science/geometry/target";
+import { runPythonJson } from "./python-json";
 
 const SCRIPT = fileURLToPath(new URL("./crosscheck.py", import.meta.url));
-const PYTHON = existsSync("/usr/bin/python3") ? "/usr/bin/python3" : "python3";
 /** Multiarch folders holding Debian's psi4 package (/usr/lib/x86_64-linux-gnu/psi4 on amd64). */
 const PSI4_PATHS = existsSync("/usr/lib")
   ? readdirSync("/usr/lib")
@@ -47,24 +47,12 @@ function payload(molecules: readonly CrosscheckMolecule[]) {
 }
 
 function run(request: unknown): unknown[] {
-  const env = {
-    ...process.env,
-    PYTHONPATH: [...PSI4_PATHS, process.env.PYTHONPATH].filter(Boolean).join(":"),
-  };
-  const child = spawnSync(PYTHON, [SCRIPT], {
-    input: JSON.stringify(request),
-    encoding: "utf8",
-    env,
-    maxBuffer: 64 * 1024 * 1024,
-    timeout: 300_000,
+  const output = runPythonJson(SCRIPT, request, {
+    pythonPath: PSI4_PATHS,
+    installHint:
+      "Install the reference tools with: apt-get install -y --no-install-recommends python3-pymatgen psi4",
   });
-  if (child.status !== 0) {
-    throw new Error(
-      `${PYTHON} ${SCRIPT} failed (status ${child.status}): ${child.stderr || child.error?.message}\n` +
-        "Install the reference tools with: apt-get install -y --no-install-recommends python3-pymatgen psi4",
-    );
-  }
-  return (JSON.parse(child.stdout) as { results: unknown[] }).results;
+  return (output as { results: unknown[] }).results;
 }
 
 /**

@@ -11,7 +11,8 @@ import type PgBoss from "pg-boss";
 import { pinoHttp } from "pino-http";
 import { bearerAuth } from "./auth/bearer";
 import { csrfProtection } from "./auth/csrf";
-import { configurePassport } from "./auth/oidc";
+import { redactRequest } from "./auth/log-redaction";
+import { configureSignIn } from "./auth/oidc";
 import { sessionMiddleware } from "./auth/session";
 import type { ServerConfig } from "./config";
 import type { Database } from "./db/client";
@@ -76,13 +77,19 @@ export function createApp(deps: AppDeps) {
       strictTransportSecurity: config.secureCookies,
     }),
   );
-  app.use(pinoHttp({ logger: log, autoLogging: { ignore: (req) => req.url === "/api/health" } }));
+  app.use(
+    pinoHttp({
+      logger: log,
+      serializers: { req: redactRequest },
+      autoLogging: { ignore: (req) => req.url === "/api/health" },
+    }),
+  );
 
-  const passport = configurePassport(deps.db, config.oidc);
+  const signIn = configureSignIn(deps.db, config.oidc, log);
   const api = express.Router();
   api.use(express.json({ limit: JSON_BODY_LIMIT, strict: true, verify: requireUtf8 }));
   api.use(sessionMiddleware(deps.pool, config));
-  api.use(passport.session());
+  api.use(signIn.passport.session());
   api.use(bearerAuth(deps.db));
   api.use(csrfProtection);
 
@@ -95,7 +102,7 @@ export function createApp(deps: AppDeps) {
     log,
   };
   api.use(healthRoutes(ctx));
-  api.use(authRoutes(ctx));
+  api.use(authRoutes(ctx, signIn));
   api.use(groupRoutes(ctx));
   api.use(invitationRoutes(ctx));
   api.use(apiTokenRoutes(ctx));

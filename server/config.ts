@@ -20,6 +20,7 @@ const envSchema = z.object({
   /** Number of reverse proxies in front of the server whose X-Forwarded-* headers are trusted. */
   TRUST_PROXY_HOPS: z.coerce.number().int().min(0).default(0),
   OIDC_ISSUER: z.string().min(1),
+  /** Endpoint overrides; unset ones come from the issuer's discovery document. */
   OIDC_AUTHORIZATION_URL: z.url().optional(),
   OIDC_TOKEN_URL: z.url().optional(),
   OIDC_USERINFO_URL: z.url().optional(),
@@ -41,6 +42,11 @@ const envSchema = z.object({
 });
 
 export type ServerConfig = ReturnType<typeof loadConfig>;
+
+/** The requested scopes, each once, `openid` first (an OpenID Connect request must carry it). */
+export function oidcScope(value: string): string[] {
+  return [...new Set(["openid", ...value.split(/\s+/).filter(Boolean)])];
+}
 
 export function loadConfig(env: NodeJS.ProcessEnv = process.env) {
   const parsed = envSchema.safeParse(env);
@@ -66,13 +72,15 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env) {
     session: { secret: e.SESSION_SECRET, maxAgeMs: e.SESSION_MAX_AGE_HOURS * 3_600_000 },
     oidc: {
       issuer,
-      authorizationURL: e.OIDC_AUTHORIZATION_URL ?? `${issuer}/auth`,
-      tokenURL: e.OIDC_TOKEN_URL ?? `${issuer}/token`,
-      userInfoURL: e.OIDC_USERINFO_URL ?? `${issuer}/me`,
+      endpointOverrides: {
+        authorizationURL: e.OIDC_AUTHORIZATION_URL,
+        tokenURL: e.OIDC_TOKEN_URL,
+        userInfoURL: e.OIDC_USERINFO_URL,
+      },
       clientID: e.OIDC_CLIENT_ID,
       clientSecret: e.OIDC_CLIENT_SECRET,
       callbackURL: `${publicUrl}/api/auth/callback`,
-      scope: e.OIDC_SCOPE.split(/\s+/).filter(Boolean),
+      scope: oidcScope(e.OIDC_SCOPE),
     },
     authRateLimitPerMinute: e.AUTH_RATE_LIMIT_PER_MINUTE,
     smtp: {

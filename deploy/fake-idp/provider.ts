@@ -19,6 +19,8 @@ export type FakeIdpOptions = {
   clientSecret: string;
   redirectUris: string[];
   postLogoutRedirectUris?: string[];
+  /** Endpoint paths other than oidc-provider's own (`/auth`, `/token`, `/me`, …); discovery announces them. */
+  routes?: Configuration["routes"];
 };
 
 export type FakeIdp = { issuer: string; close(): Promise<void> };
@@ -68,9 +70,10 @@ function buildConfiguration(options: FakeIdpOptions): Configuration {
         postLogoutSuccessSource: providerPages.postLogoutSuccessSource,
       },
     },
-    // Sigmaflow's server is a confidential client and its OpenID Connect library sends no PKCE.
-    pkce: { required: () => false },
+    // Sigmaflow sends a PKCE challenge (S256) with every sign-in; refusing requests without one keeps it so.
+    pkce: { required: () => true },
     renderError: providerPages.renderError,
+    ...(options.routes ? { routes: options.routes } : {}),
     cookies: { keys: [randomBytes(32).toString("base64url"), randomBytes(32).toString("base64url")] },
     jwks: { keys: [generateSigningJwk()] },
     // Seconds. A working day of session so a developer signs in once per day.

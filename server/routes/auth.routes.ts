@@ -1,17 +1,17 @@
 import { Router } from "express";
 import { rateLimit } from "express-rate-limit";
-import passport from "passport";
 import { meSchema } from "../../shared/schemas/auth";
 import { csrfTokenFor } from "../auth/csrf";
-import { safeReturnTo } from "../auth/oidc";
+import { OIDC_STRATEGY, type SignIn, safeReturnTo } from "../auth/oidc";
 import { requirePrincipal } from "../auth/principal";
 import { SESSION_COOKIE } from "../auth/session";
-import { AppError, errorBody } from "../http/errors";
+import { sendSignInFailure, sendSignInRefusal } from "../auth/sign-in-failure";
+import { errorBody } from "../http/errors";
 import { shape } from "../http/validate";
 import { describeMe } from "../services/users.service";
 import type { RouteContext } from "./context";
 
-export function authRoutes({ db, config }: RouteContext): Router {
+export function authRoutes({ db, config }: RouteContext, signIn: SignIn): Router {
   const router = Router();
   const signInLimiter = rateLimit({
     windowMs: 60_000,
@@ -25,27 +25,35 @@ export function authRoutes({ db, config }: RouteContext): Router {
     },
   });
 
-  router.get("/auth/login", signInLimiter, (req, res, next) => {
+  router.get("/auth/login", signInLimiter, async (req, res, next) => {
+    try {
+      await signIn.ready();
+    } catch (error) {
+      return sendSignInFailure(req, res, error);
+    }
     req.session.returnTo = safeReturnTo(req.query.returnTo);
-    passport.authenticate("oidc")(req, res, next);
+    signIn.passport.authenticate(OIDC_STRATEGY)(req, res, next);
   });
 
-  router.get("/auth/callback", signInLimiter, (req, res, next) => {
+  router.get("/auth/callback", signInLimiter, async (req, res, next) => {
+    try {
+      await signIn.ready();
+    } catch (error) {
+      return sendSignInFailure(req, res, error);
+    }
     const returnTo = safeReturnTo(req.session.returnTo);
-    passport.authenticate("oidc", (error: unknown, user: Express.User | false) => {
-      if (error)
-        return next(
-          error instanceof AppError
-            ? error
-            : new AppError(502, "sign_in_failed", "Sign-in with the identity provider failed. Try again."),
-        );
-      if (!user) return res.redirect("/signin?error=sign_in_failed");
-      // passport regenerates the session on login, so a session id fixed before sign-in is worthless.
-      req.logIn(user, (loginError) => {
-        if (loginError) return next(loginError);
-        res.redirect(returnTo);
-      });
-    })(req, res, next);
+    signIn.passport.authenticate(
+      OIDC_STRATEGY,
+      (error: unknown, user: Express.User | false, info: unknown) => {
+        if (error) return sendSignInFailure(req, res, error);
+        if (!user) return sendSignInRefusal(req, res, info);
+        // passport regenerates the session on login, so a session id fixed before sign-in is worthless.
+        req.logIn(user, (loginError) => {
+          if (loginError) return sendSignInFailure(req, res, loginError);
+          res.redirect(returnTo);
+        });
+      },
+    )(req, res, next);
   });
 
   router.post("/auth/logout", (req, res, next) => {

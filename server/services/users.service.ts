@@ -6,6 +6,7 @@ import { groups, memberships, users } from "../db/schema";
 import { AppError } from "../http/errors";
 import { requireSiteAdmin } from "./access";
 import { recordAudit } from "./audit.service";
+import { pgErrorCode } from "./hosts.service";
 
 export type OidcIdentity = {
   issuer: string;
@@ -15,8 +16,38 @@ export type OidcIdentity = {
 };
 
 /**
+ * The e-mail of an identity that signs in belongs to an account that signs in as another identity (another
+ * provider, or another person at the same one). E-mail addresses are unique among accounts, so Sigmaflow
+ * cannot create a second account; `logDetails` says which account and identity a site admin would join.
+ */
+export class EmailInUseError extends AppError {
+  readonly logDetails: { existingUserId: string; existingIssuer: string; issuer: string; subject: string };
+
+  constructor(existing: { id: string; oidcIssuer: string }, identity: OidcIdentity) {
+    const how =
+      existing.oidcIssuer === identity.issuer
+        ? `through ${identity.issuer}, as a different person there`
+        : `through ${existing.oidcIssuer}, not ${identity.issuer}`;
+    super(
+      409,
+      "email_in_use",
+      `Sigmaflow already has an account for ${identity.email}, and it signs in ${how}. Sign in that way, ` +
+        "or ask a site admin to move that account to the sign-in you just used.",
+      { existingIssuer: existing.oidcIssuer, issuer: identity.issuer },
+    );
+    this.logDetails = {
+      existingUserId: existing.id,
+      existingIssuer: existing.oidcIssuer,
+      issuer: identity.issuer,
+      subject: identity.subject,
+    };
+  }
+}
+
+/**
  * Finds or creates the user for an identity that just signed in. The identity (issuer, subject) is the
- * key; the e-mail and name are refreshed from the provider at every sign-in.
+ * key; the e-mail and name are refreshed from the provider at every sign-in. Runs outside a transaction:
+ * after a refused insert it looks up who holds the e-mail.
  */
 export async function upsertUserFromOidc(db: DbExecutor, identity: OidcIdentity): Promise<Principal> {
   if (!identity.email) {
@@ -24,20 +55,7 @@ export async function upsertUserFromOidc(db: DbExecutor, identity: OidcIdentity)
   }
   const email = identity.email.toLowerCase();
   const displayName = identity.displayName?.trim() || email;
-  const [row] = await db
-    .insert(users)
-    .values({
-      email,
-      displayName,
-      oidcIssuer: identity.issuer,
-      oidcSubject: identity.subject,
-      lastSignInAt: new Date(),
-    })
-    .onConflictDoUpdate({
-      target: [users.oidcIssuer, users.oidcSubject],
-      set: { email, displayName, lastSignInAt: new Date() },
-    })
-    .returning();
+  const [row] = await insertOrRefresh(db, identity, email, displayName);
   if (!row) throw new Error("user upsert returned no row");
   await recordAudit(db, {
     actorUserId: row.id,
@@ -46,6 +64,36 @@ export async function upsertUserFromOidc(db: DbExecutor, identity: OidcIdentity)
     targetId: row.id,
   });
   return toPrincipal(row, "session");
+}
+
+async function insertOrRefresh(db: DbExecutor, identity: OidcIdentity, email: string, displayName: string) {
+  try {
+    return await db
+      .insert(users)
+      .values({
+        email,
+        displayName,
+        oidcIssuer: identity.issuer,
+        oidcSubject: identity.subject,
+        lastSignInAt: new Date(),
+      })
+      .onConflictDoUpdate({
+        target: [users.oidcIssuer, users.oidcSubject],
+        set: { email, displayName, lastSignInAt: new Date() },
+      })
+      .returning();
+  } catch (error) {
+    // users_email_key: another account (another issuer or subject) has this e-mail.
+    if (pgErrorCode(error) !== "23505") throw error;
+    const [holder] = await db
+      .select({ id: users.id, oidcIssuer: users.oidcIssuer, oidcSubject: users.oidcSubject })
+      .from(users)
+      .where(sql`lower(${users.email}) = ${email}`)
+      .limit(1);
+    if (!holder || (holder.oidcIssuer === identity.issuer && holder.oidcSubject === identity.subject))
+      throw error;
+    throw new EmailInUseError(holder, identity);
+  }
 }
 
 export async function findPrincipal(

@@ -7,7 +7,7 @@
  * deploy/demo/accounts.ts (the demo people) and from oidc-provider's documented default routes
  * (/auth, /token, /me, /jwks, /session/end). All comparisons are exact; there is no tolerance.
  */
-import { createPublicKey, verify } from "node:crypto";
+import { createHash, createPublicKey, verify } from "node:crypto";
 import { mkdtemp, rm } from "node:fs/promises";
 import { tmpdir } from "node:os";
 import path from "node:path";
@@ -70,16 +70,25 @@ describe("fake identity provider", () => {
     await idp?.close();
   });
 
-  function authorizeUrl(state: string, nonce: string): URL {
+  /** RFC 7636 §4.1: 43–128 unreserved characters; one per authorization request. */
+  const verifierFor = (state: string) => `verifier-${state}-${"0123456789".repeat(4)}`;
+
+  function authorizeUrl(state: string, nonce: string, { pkce = true } = {}): URL {
     const url = new URL("/auth", issuer);
-    url.search = new URLSearchParams({
+    const params: Record<string, string> = {
       client_id: CLIENT_ID,
       response_type: "code",
       scope: "openid email profile",
       redirect_uri: REDIRECT_URI,
       state,
       nonce,
-    }).toString();
+    };
+    if (pkce) {
+      // RFC 7636 §4.2: S256 challenge = BASE64URL(SHA256(ASCII(code_verifier))).
+      params.code_challenge = createHash("sha256").update(verifierFor(state)).digest("base64url");
+      params.code_challenge_method = "S256";
+    }
+    url.search = new URLSearchParams(params).toString();
     return url;
   }
 
@@ -155,7 +164,12 @@ describe("fake identity provider", () => {
     expect(code).toMatch(/^\S+$/);
 
     const tokenUrl = new URL("/token", issuer);
-    const exchange = { grant_type: "authorization_code", code: code!, redirect_uri: REDIRECT_URI };
+    const exchange = {
+      grant_type: "authorization_code",
+      code: code!,
+      redirect_uri: REDIRECT_URI,
+      code_verifier: verifierFor(state),
+    };
     // RFC 6749 §5.2: a wrong client secret is invalid_client with HTTP 401.
     const rejected = await fetch(
       tokenUrl,
@@ -226,12 +240,43 @@ describe("fake identity provider", () => {
     // RFC 6749 §2.3.1: form-encoded id and secret in HTTP Basic.
     const basic = Buffer.from(`${CLIENT_ID}:${CLIENT_SECRET}`).toString("base64");
     const tokenResponse = await fetch(new URL("/token", issuer), {
-      ...postForm({ grant_type: "authorization_code", code: code!, redirect_uri: REDIRECT_URI }),
+      ...postForm({
+        grant_type: "authorization_code",
+        code: code!,
+        redirect_uri: REDIRECT_URI,
+        code_verifier: verifierFor("state-kestrel-2"),
+      }),
       headers: { "content-type": "application/x-www-form-urlencoded", authorization: `Basic ${basic}` },
     });
     expect(tokenResponse.status).toBe(200);
     const tokens = (await tokenResponse.json()) as { id_token: string };
     expect(decodeJwtPart(tokens.id_token.split(".")[1] ?? "").sub).toBe(researcher.subject);
+  });
+
+  it("requires PKCE: no challenge is refused, and a code is exchanged only with its own verifier", async () => {
+    // RFC 7636 §4.4.1: a server that requires PKCE answers a request without a challenge with invalid_request.
+    const bare = await browse(jar, authorizeUrl("state-kestrel-bare", "nonce-kestrel-bare", { pkce: false }));
+    const refused = await followToRedirectUri(jar, bare, issuer);
+    expect(refused.searchParams.get("error")).toBe("invalid_request");
+    expect(refused.searchParams.get("code")).toBeNull();
+
+    // Still signed in from the first test, so the provider sends a code at once.
+    const start = await browse(jar, authorizeUrl("state-kestrel-pkce", "nonce-kestrel-pkce"));
+    const callback = await followToRedirectUri(jar, start, issuer);
+    const exchange = {
+      grant_type: "authorization_code",
+      code: callback.searchParams.get("code")!,
+      redirect_uri: REDIRECT_URI,
+      client_id: CLIENT_ID,
+      client_secret: CLIENT_SECRET,
+    };
+    // RFC 7636 §4.6: the verifier must hash to the challenge, otherwise invalid_grant (RFC 6749 §5.2).
+    const wrong = await fetch(
+      new URL("/token", issuer),
+      postForm({ ...exchange, code_verifier: verifierFor("state-kestrel-other") }),
+    );
+    expect(wrong.status).toBe(400);
+    expect(((await wrong.json()) as { error: string }).error).toBe("invalid_grant");
   });
 
   it("signs out on request and asks for the password again afterwards", async () => {

@@ -8,7 +8,7 @@ import { createServer, type Server } from "node:http";
 import type { AddressInfo } from "node:net";
 import { createApp } from "../../../server/app";
 import { loadConfig } from "../../../server/config";
-import { createLogger } from "../../../server/logger";
+import { createLogger, type Logger } from "../../../server/logger";
 import type { Mailer, OutgoingMail } from "../../../server/mail/mailer";
 import { createBoss, createRunQueues } from "../../../server/queue/queues";
 import type { TestDatabase } from "./test-database";
@@ -33,7 +33,7 @@ export function recordingMailer(): RecordingMailer {
 
 export async function startTestApp(
   database: TestDatabase,
-  options: { oidcIssuer?: string; port?: number; env?: Record<string, string> } = {},
+  options: { oidcIssuer?: string; port?: number; env?: Record<string, string>; log?: Logger } = {},
 ) {
   const server: Server = createServer();
   await new Promise<void>((resolve) => server.listen(options.port ?? 0, "127.0.0.1", resolve));
@@ -62,7 +62,7 @@ export async function startTestApp(
     boss,
     config,
     mailer,
-    log: createLogger("silent"),
+    log: options.log ?? createLogger("silent"),
   });
   server.on("request", app);
   return {

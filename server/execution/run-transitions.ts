@@ -3,6 +3,9 @@
  * in the caller's transaction; the row's trigger notifies listeners on RUN_NOTIFY_CHANNEL at commit
  * (drizzle/0004). A step whose expected state is gone (cancelled meanwhile, or already done by a
  * previous attempt) gets `false` and must not act.
+ *
+ * A run becomes `cancelled` because a person asked: that event is recorded as theirs (runs.cancel_requested_by)
+ * even when the worker is the one that sees the scheduler confirm it.
  */
 import { and, eq, inArray } from "drizzle-orm";
 import type { RunState } from "../../shared/schemas/execution/runs";
@@ -31,14 +34,19 @@ export async function transitionRun(
     .update(runs)
     .set({ ...options.set, state: to, stateMessage: options.message ?? null, updatedAt: new Date() })
     .where(and(eq(runs.id, runId), eq(runs.state, previous)))
-    .returning({ id: runs.id });
-  if (moved.length === 0) return false;
+    .returning({ cancelRequestedBy: runs.cancelRequestedBy });
+  const [row] = moved;
+  if (!row) return false;
+  const actor: Actor =
+    to === "cancelled" && options.actor.kind !== "user" && row.cancelRequestedBy
+      ? { kind: "user", userId: row.cancelRequestedBy }
+      : options.actor;
   await db.insert(runEvents).values({
     runId,
     fromState: previous,
     toState: to,
-    actor: options.actor.kind,
-    actorUserId: options.actor.kind === "user" ? options.actor.userId : null,
+    actor: actor.kind,
+    actorUserId: actor.kind === "user" ? actor.userId : null,
     message: options.message ?? null,
   });
   return true;

@@ -3,18 +3,23 @@
  * cancelling, resubmitting and reusing results. The worker carries a run forward from `queued`.
  */
 import { randomBytes } from "node:crypto";
-import { and, desc, eq, gt, inArray } from "drizzle-orm";
+import { and, desc, eq, gt, inArray, isNull } from "drizzle-orm";
+import { alias } from "drizzle-orm/pg-core";
 import type pg from "pg";
 import type PgBoss from "pg-boss";
 import {
-  type CreateRunRequest,
   codeDefinitionSchema,
   FINAL_RUN_STATES,
+  type OnDuplicate,
+  type ResubmitRunRequest,
   type RunDetail,
+  type RunProgress,
   type RunSpec,
+  type RunSpecRequest,
   type RunState,
   type RunSummary,
   runSpecSchema,
+  runStageProgressSchema,
 } from "../../shared/schemas/execution";
 import type { CodeDefinition } from "../../shared/schemas/execution/codes";
 import type { Principal } from "../auth/principal";
@@ -33,7 +38,8 @@ import {
   users,
 } from "../db/schema";
 import { validateParameters } from "../execution/parameters";
-import { buildRunPlan, runFingerprint, type StageInput } from "../execution/run-plan";
+import { buildRunPlan, type RunPlan, runFingerprint, type StageInput } from "../execution/run-plan";
+import { applySpecChanges, resolveResources } from "../execution/run-spec";
 import { transitionRun } from "../execution/run-transitions";
 import { AppError, conflict, forbidden, notFound } from "../http/errors";
 import { RUN_STEP_QUEUES } from "../queue/queues";
@@ -51,7 +57,11 @@ const hours = (coreSeconds: number) => Math.round((coreSeconds / SECONDS_PER_HOU
 export const RUN_DIR_PREFIX = "sf-run-";
 export const remoteRunDir = (baseDir: string, runId: string) => `${baseDir}/${RUN_DIR_PREFIX}${runId}`;
 
-async function loadStages(db: Database, groupId: string, spec: RunSpec): Promise<StageInput[]> {
+async function loadStages(
+  db: Database,
+  groupId: string,
+  spec: Pick<RunSpecRequest, "recipeId" | "parameters">,
+): Promise<StageInput[]> {
   const [recipe] = await db
     .select()
     .from(recipes)
@@ -143,11 +153,19 @@ async function loadHost(db: Database, groupId: string, hostId: string) {
   return host;
 }
 
+/** The latest finished run with these inputs that really ran (a reusing run holds no results of its own). */
 async function findReusable(db: Database, groupId: string, fingerprint: string) {
   const [row] = await db
     .select({ id: runs.id, name: runs.name, finishedAt: runs.finishedAt })
     .from(runs)
-    .where(and(eq(runs.groupId, groupId), eq(runs.fingerprint, fingerprint), eq(runs.state, "done")))
+    .where(
+      and(
+        eq(runs.groupId, groupId),
+        eq(runs.fingerprint, fingerprint),
+        eq(runs.state, "done"),
+        isNull(runs.reusedFrom),
+      ),
+    )
     .orderBy(desc(runs.finishedAt))
     .limit(1);
   return row ?? null;
@@ -157,13 +175,12 @@ export async function createRun(
   deps: RunDeps,
   principal: Principal,
   groupId: string,
-  request: CreateRunRequest & { spec: RunSpec },
+  request: { spec: RunSpecRequest; onDuplicate: OnDuplicate },
   extra: { resubmittedFrom?: string; ip?: string | null } = {},
 ): Promise<RunSummary> {
   const { db } = deps;
   await requireGroupRole(db, principal, groupId, "member");
-  const spec = request.spec;
-  const host = await loadHost(db, groupId, spec.hostId);
+  const host = await loadHost(db, groupId, request.spec.hostId);
   const account = await chooseAccount(db, host.id, principal.userId);
   if (!account) {
     throw new AppError(
@@ -172,7 +189,15 @@ export async function createRun(
       `You have no account on ${host.name} and the group has none: add one under the host's accounts.`,
     );
   }
-  const inputs = await loadStages(db, groupId, spec);
+  const inputs = await loadStages(db, groupId, request.spec);
+  // Stored with the resources it got, so a resubmission starts from exactly what this run asked for.
+  const spec: RunSpec = {
+    ...request.spec,
+    resources: resolveResources(
+      request.spec.resources,
+      inputs.map((input) => input.definition),
+    ),
+  };
   const runId = crypto.randomUUID();
   let plan: ReturnType<typeof buildRunPlan>;
   try {
@@ -184,10 +209,13 @@ export async function createRun(
   const reusable = await findReusable(db, groupId, fingerprint);
   if (reusable && request.onDuplicate === "ask") {
     throw conflict(
-      `A finished run with identical inputs exists ("${reusable.name}"). Reuse its results or run anyway.`,
+      `A finished run with identical inputs exists: "${reusable.name}" (run ${reusable.id}). ` +
+        `Send again with onDuplicate "reuse" to take its results without running, or "run" to run anyway.`,
       {
         reason: "reusable_result",
         runId: reusable.id,
+        runName: reusable.name,
+        onDuplicate: ["reuse", "run"],
       },
     );
   }
@@ -270,12 +298,37 @@ export async function createRun(
   return (await getRunSummary(db, runId))!;
 }
 
+const canceller = alias(users, "canceller");
 const summaryColumns = {
   run: runs,
   submittedBy: users.displayName,
+  cancelRequestedBy: canceller.displayName,
 };
 
-function toSummary(row: { run: typeof runs.$inferSelect; submittedBy: string | null }): RunSummary {
+/** Runs with the names of who submitted them and who asked to cancel them. */
+function selectSummaries(db: Database) {
+  return db
+    .select(summaryColumns)
+    .from(runs)
+    .leftJoin(users, eq(users.id, runs.submittedBy))
+    .leftJoin(canceller, eq(canceller.id, runs.cancelRequestedBy));
+}
+
+/** The stored progress with the stage's place in the run's plan. */
+function progressOf(run: typeof runs.$inferSelect): RunProgress | null {
+  const stored = runStageProgressSchema.safeParse(run.progress);
+  if (!stored.success) return null;
+  const stages = (run.plan as RunPlan).stages;
+  const index = stages.findIndex((stage) => stage.name === stored.data.stage);
+  if (index < 0) return null;
+  return { ...stored.data, stageIndex: index + 1, stageCount: stages.length };
+}
+
+function toSummary(row: {
+  run: typeof runs.$inferSelect;
+  submittedBy: string | null;
+  cancelRequestedBy: string | null;
+}): RunSummary {
   const r = row.run;
   return {
     id: r.id,
@@ -296,6 +349,8 @@ function toSummary(row: { run: typeof runs.$inferSelect; submittedBy: string | n
     reusedFrom: r.reusedFrom,
     submittedBy: row.submittedBy,
     cancelRequested: r.cancelRequestedAt !== null,
+    cancelRequestedBy: r.cancelRequestedAt === null ? null : row.cancelRequestedBy,
+    progress: progressOf(r),
     createdAt: r.createdAt.toISOString(),
     startedAt: r.startedAt?.toISOString() ?? null,
     finishedAt: r.finishedAt?.toISOString() ?? null,
@@ -303,11 +358,7 @@ function toSummary(row: { run: typeof runs.$inferSelect; submittedBy: string | n
 }
 
 async function getRunSummary(db: Database, runId: string): Promise<RunSummary | null> {
-  const [row] = await db
-    .select(summaryColumns)
-    .from(runs)
-    .leftJoin(users, eq(users.id, runs.submittedBy))
-    .where(eq(runs.id, runId));
+  const [row] = await selectSummaries(db).where(eq(runs.id, runId));
   return row ? toSummary(row) : null;
 }
 
@@ -337,13 +388,7 @@ export async function listRuns(
   const where = filters.state
     ? and(eq(runs.groupId, groupId), eq(runs.state, filters.state))
     : eq(runs.groupId, groupId);
-  const rows = await db
-    .select(summaryColumns)
-    .from(runs)
-    .leftJoin(users, eq(users.id, runs.submittedBy))
-    .where(where)
-    .orderBy(desc(runs.createdAt))
-    .limit(filters.limit);
+  const rows = await selectSummaries(db).where(where).orderBy(desc(runs.createdAt)).limit(filters.limit);
   return rows.map(toSummary);
 }
 
@@ -352,7 +397,12 @@ export async function getRunDetail(db: Database, principal: Principal, runId: st
   const artifactRunId = run.reusedFrom ?? run.id;
   const [summary, events, artifacts, timings] = await Promise.all([
     getRunSummary(db, runId),
-    db.select().from(runEvents).where(eq(runEvents.runId, runId)).orderBy(runEvents.id),
+    db
+      .select({ event: runEvents, actorName: users.displayName })
+      .from(runEvents)
+      .leftJoin(users, eq(users.id, runEvents.actorUserId))
+      .where(eq(runEvents.runId, runId))
+      .orderBy(runEvents.id),
     db
       .select({
         id: runArtifacts.id,
@@ -370,18 +420,27 @@ export async function getRunDetail(db: Database, principal: Principal, runId: st
       .where(eq(runTimings.runId, artifactRunId))
       .orderBy(runTimings.stage, runTimings.symmetry),
   ]);
+  // Timings in the order the stages run, not alphabetically by stage name.
+  const stageOrder = (run.plan as RunPlan).stages.map((stage) => stage.name);
+  const byStage = (stage: string) => {
+    const index = stageOrder.indexOf(stage);
+    return index < 0 ? stageOrder.length : index;
+  };
   return {
     ...summary!,
     spec: runSpecSchema.parse(run.spec),
-    events: events.map((e) => ({
+    events: events.map(({ event: e, actorName }) => ({
       at: e.at.toISOString(),
       fromState: e.fromState,
       toState: e.toState,
       actor: e.actor,
+      actorName,
       message: e.message,
     })),
     artifacts,
-    timings: timings.map((t) => ({ stage: t.stage, symmetry: t.symmetry, seconds: t.elapsedMs / 1000 })),
+    timings: timings
+      .map((t) => ({ stage: t.stage, symmetry: t.symmetry, seconds: t.elapsedMs / 1000 }))
+      .sort((a, b) => byStage(a.stage) - byStage(b.stage)),
   };
 }
 
@@ -428,6 +487,7 @@ export async function cancelRun(
         message: "Cancelled before it reached the scheduler",
         set: {
           cancelRequestedAt: new Date(),
+          cancelRequestedBy: principal.userId,
           finishedAt: new Date(),
           chargedCoreSeconds: 0,
           waitingForSlotSince: null,
@@ -444,7 +504,7 @@ export async function cancelRun(
     } else {
       await tx
         .update(runs)
-        .set({ cancelRequestedAt: new Date(), updatedAt: new Date() })
+        .set({ cancelRequestedAt: new Date(), cancelRequestedBy: principal.userId, updatedAt: new Date() })
         .where(eq(runs.id, runId));
       await deps.boss.send(RUN_STEP_QUEUES.cancel, { runId }, { db: { executeSql: executeSql as never } });
     }
@@ -460,20 +520,16 @@ export async function cancelRun(
   return (await getRunSummary(db, runId))!;
 }
 
+/** A new run from the original's spec exactly as stored, with only what `changes` names changed. */
 export async function resubmitRun(
   deps: RunDeps,
   principal: Principal,
   runId: string,
-  request: { changes: Partial<RunSpec>; onDuplicate: "ask" | "reuse" | "run" },
+  request: ResubmitRunRequest,
   ip: string | null,
 ): Promise<RunSummary> {
   const original = await visibleRun(deps.db, principal, runId, "member");
-  const base = runSpecSchema.parse(original.spec);
-  const spec = runSpecSchema.parse({
-    ...base,
-    ...request.changes,
-    name: request.changes.name ?? `${base.name} (again)`,
-  });
+  const spec = applySpecChanges(runSpecSchema.parse(original.spec), request.changes);
   return createRun(
     deps,
     principal,
@@ -490,11 +546,12 @@ export async function readRunLog(
   afterSeq: number,
   limit = 500,
 ) {
-  await visibleRun(db, principal, runId, "collaborator");
+  const run = await visibleRun(db, principal, runId, "collaborator");
+  // A run that reused results has no log of its own: it serves the log of the run that produced them.
   const chunks = await db
     .select({ seq: runLogChunks.seq, text: runLogChunks.text, at: runLogChunks.at })
     .from(runLogChunks)
-    .where(and(eq(runLogChunks.runId, runId), gt(runLogChunks.seq, afterSeq)))
+    .where(and(eq(runLogChunks.runId, run.reusedFrom ?? run.id), gt(runLogChunks.seq, afterSeq)))
     .orderBy(runLogChunks.seq)
     .limit(limit);
   return {

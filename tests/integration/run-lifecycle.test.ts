@@ -1,7 +1,8 @@
 /**
  * A researcher's runs through the whole engine on the development host (direct scheduler): a two-stage
  * recipe runs to `done`, logs and per-symmetry timings arrive, declared outputs are collected, the
- * ledger is charged and the reservation released; cancel, resubmit, reuse, hostile parameters.
+ * ledger is charged and the reservation released; cancel, resubmit, reuse, hostile parameters, resources
+ * from the codes' defaults.
  * Expected behaviour is Sigmaflow's run lifecycle (DEVELOPERS.md, run states).
  */
 import { existsSync } from "node:fs";
@@ -158,7 +159,7 @@ describe("a two-stage run on the development host", () => {
 });
 
 describe("cancel, resubmit and reuse", () => {
-  it("cancels a running run through the scheduler and only then calls it cancelled", async () => {
+  it("cancels a running run through the scheduler, only then calls it cancelled, and names who asked", async () => {
     const created = await sf.api(
       "POST",
       `/api/groups/${sf.groupId}/runs`,
@@ -171,6 +172,13 @@ describe("cancel, resubmit and reuse", () => {
     expect(cancelled.body.state).toBe("running");
     const run = await waitForState(sf, created.body.id, ["cancelled", "failed", "done"], 20_000);
     expect(run.state).toBe("cancelled");
+    // Regression: the history said "worker" for the cancel and never who asked for it.
+    expect(run.cancelRequestedBy).toBe(sf.researcher.displayName);
+    expect(run.events.at(-1)).toMatchObject({
+      toState: "cancelled",
+      actor: "user",
+      actorName: sf.researcher.displayName,
+    });
     const again = await sf.api("POST", `/api/runs/${created.body.id}/cancel`);
     expect(again.status).toBe(409);
   });
@@ -199,7 +207,15 @@ describe("cancel, resubmit and reuse", () => {
     await waitForState(sf, first.body.id, ["done"]);
     const ask = await sf.api("POST", `/api/groups/${sf.groupId}/runs`, { ...spec, onDuplicate: "ask" });
     expect(ask.status).toBe(409);
-    expect(ask.body.error.details).toMatchObject({ reason: "reusable_result", runId: first.body.id });
+    // Regression: the 409 did not say how to reuse the results or run anyway.
+    expect(ask.body.error.details).toEqual({
+      reason: "reusable_result",
+      runId: first.body.id,
+      runName: "original",
+      onDuplicate: ["reuse", "run"],
+    });
+    expect(ask.body.error.message).toContain(first.body.id);
+    expect(ask.body.error.message).toMatch(/onDuplicate "reuse".*"run"/);
     // Cores and wall time change the cost, not the result: still the same fingerprint.
     const reused = await sf.api("POST", `/api/groups/${sf.groupId}/runs`, {
       spec: { ...spec.spec, resources: { cores: 2, wallTimeMinutes: 5 } },
@@ -216,6 +232,27 @@ describe("cancel, resubmit and reuse", () => {
     expect(detail.body.artifacts).toHaveLength(2);
   });
 
+  // Regression: a run that reused results showed an empty log.
+  it("a run that reuses results serves the log of the run that produced them", async () => {
+    const spec = runSpec(recipeId, hostId, { prepare: { label: "log-of-origin" } }, "origin");
+    const first = await sf.api("POST", `/api/groups/${sf.groupId}/runs`, spec);
+    await waitForState(sf, first.body.id, ["done"]);
+    const reused = await sf.api("POST", `/api/groups/${sf.groupId}/runs`, { ...spec, onDuplicate: "reuse" });
+    expect(reused.body.reusedFrom).toBe(first.body.id);
+    const logText = async (runId: string) =>
+      (await sf.api("GET", `/api/runs/${runId}/log`)).body.chunks
+        .map((c: { text: string }) => c.text)
+        .join("");
+    const originalLog = await logText(first.body.id);
+    expect(originalLog).toContain("target label: log-of-origin");
+    expect(await logText(reused.body.id)).toBe(originalLog);
+
+    // Reusing again points at the run that produced the results, not at the run that reused them.
+    const again = await sf.api("POST", `/api/groups/${sf.groupId}/runs`, { ...spec, onDuplicate: "reuse" });
+    expect(again.body.reusedFrom).toBe(first.body.id);
+    expect(await logText(again.body.id)).toBe(originalLog);
+  });
+
   it("resubmits a run with changes as a new run linked to its origin", async () => {
     const first = await sf.api(
       "POST",
@@ -229,5 +266,108 @@ describe("cancel, resubmit and reuse", () => {
     expect(again.body).toMatchObject({ resubmittedFrom: first.body.id, name: "versioned (again)" });
     expect(again.body.fingerprint).not.toBe(first.body.fingerprint);
     await waitForState(sf, again.body.id, ["done"]);
+  });
+
+  // Regression: a resubmission replaced the original's parameters (and e-mail choice) with defaults, so a
+  // code with a required parameter answered 422 and others silently ran with their default values.
+  it("resubmits from the original spec exactly, changing only what the request names", async () => {
+    // Without a worker the runs stay queued and are cancelled at the end: nothing runs, no e-mail goes out.
+    sf.killWorkerHard();
+    const original = {
+      name: "kept",
+      recipeId,
+      hostId,
+      parameters: { prepare: { label: "radius-25", sleepSeconds: 0.2 }, scatter: { exitCode: 0 } },
+      resources: { cores: 2, wallTimeMinutes: 7 },
+      notifyByEmail: true,
+    };
+    const first = await sf.api("POST", `/api/groups/${sf.groupId}/runs`, {
+      spec: original,
+      onDuplicate: "run",
+    });
+    expect(first.status, JSON.stringify(first.body)).toBe(201);
+    const specOf = async (runId: string) => (await sf.api("GET", `/api/runs/${runId}`)).body.spec;
+
+    // What the runs page's Resubmit button sends.
+    const button = await sf.api("POST", `/api/runs/${first.body.id}/resubmit`, { changes: {} });
+    expect(button.status, JSON.stringify(button.body)).toBe(201);
+    expect(await specOf(button.body.id)).toEqual({ ...original, name: "kept (again)" });
+    expect(button.body.fingerprint).toBe(first.body.fingerprint);
+
+    const renamed = await sf.api("POST", `/api/runs/${first.body.id}/resubmit`, {
+      changes: { name: "copy" },
+    });
+    expect(renamed.status, JSON.stringify(renamed.body)).toBe(201);
+    expect(await specOf(renamed.body.id)).toEqual({ ...original, name: "copy" });
+
+    // One parameter of one stage, and one resource: everything else stays as it was.
+    const tweaked = await sf.api("POST", `/api/runs/${first.body.id}/resubmit`, {
+      changes: { parameters: { prepare: { sleepSeconds: 0.3 } }, resources: { cores: 3 } },
+    });
+    expect(tweaked.status, JSON.stringify(tweaked.body)).toBe(201);
+    expect(await specOf(tweaked.body.id)).toEqual({
+      ...original,
+      name: "kept (again)",
+      parameters: { prepare: { label: "radius-25", sleepSeconds: 0.3 }, scatter: { exitCode: 0 } },
+      resources: { cores: 3, wallTimeMinutes: 7 },
+    });
+    expect(tweaked.body.fingerprint).not.toBe(first.body.fingerprint);
+
+    // A parameter set to null is removed, so the code's default applies again (RFC 7396).
+    const reverted = await sf.api("POST", `/api/runs/${first.body.id}/resubmit`, {
+      changes: { parameters: { prepare: { sleepSeconds: null } } },
+    });
+    expect(reverted.status, JSON.stringify(reverted.body)).toBe(201);
+    expect((await specOf(reverted.body.id)).parameters).toEqual({
+      prepare: { label: "radius-25" },
+      scatter: { exitCode: 0 },
+    });
+    for (const id of [first, button, renamed, tweaked, reverted].map((r) => r.body.id)) {
+      expect((await sf.api("POST", `/api/runs/${id}/cancel`)).body.state).toBe("cancelled");
+    }
+    sf.spawnWorker();
+  });
+});
+
+describe("resources", () => {
+  // Regression: leaving resources out of a run was a 422 although every code declares default cores and
+  // wall time.
+  it("come from the codes' defaults when left out: most cores of any stage, wall times added up", async () => {
+    const code = async (name: string, defaults: { cores: number; wallTimeMinutes: number }) => {
+      const created = await sf.api("POST", `/api/groups/${sf.groupId}/codes`, {
+        name,
+        version: "1.0",
+        executable: "/bin/true",
+        defaults,
+      });
+      expect(created.status, JSON.stringify(created.body)).toBe(201);
+      return created.body.id as string;
+    };
+    const recipe = await sf.api("POST", `/api/groups/${sf.groupId}/recipes`, {
+      name: "defaults",
+      stages: [
+        { name: "target", codeId: await code("wide", { cores: 4, wallTimeMinutes: 30 }) },
+        { name: "inner", codeId: await code("long", { cores: 2, wallTimeMinutes: 45 }) },
+      ],
+    });
+    expect(recipe.status, JSON.stringify(recipe.body)).toBe(201);
+    const spec = { name: "defaults", recipeId: recipe.body.id, hostId };
+
+    const fromDefaults = await sf.api("POST", `/api/groups/${sf.groupId}/runs`, { spec, onDuplicate: "run" });
+    expect(fromDefaults.status, JSON.stringify(fromDefaults.body)).toBe(201);
+    // max(4, 2) cores; 30 + 45 minutes, because the stages run one after another in one job.
+    expect(fromDefaults.body).toMatchObject({ cores: 4, wallTimeMinutes: 75 });
+    expect(fromDefaults.body.reservedCoreHours).toBeCloseTo((4 * 75) / 60, 4);
+    const stored = await sf.api("GET", `/api/runs/${fromDefaults.body.id}`);
+    expect(stored.body.spec.resources).toEqual({ cores: 4, wallTimeMinutes: 75 });
+
+    const oneGiven = await sf.api("POST", `/api/groups/${sf.groupId}/runs`, {
+      spec: { ...spec, resources: { cores: 1 } },
+      onDuplicate: "run",
+    });
+    expect(oneGiven.status, JSON.stringify(oneGiven.body)).toBe(201);
+    expect(oneGiven.body).toMatchObject({ cores: 1, wallTimeMinutes: 75 });
+    await waitForState(sf, fromDefaults.body.id, ["done", "failed"]);
+    await waitForState(sf, oneGiven.body.id, ["done", "failed"]);
   });
 });

@@ -12,6 +12,7 @@ import { RUN_STEP_QUEUES } from "../../server/queue/queues";
 import type { WorkerContext } from "../context";
 import { guardStep, holdHostRuns } from "../failures";
 import { groupBy } from "../group-by";
+import { advanceProgress, storedProgress } from "../logs/progress";
 import { readLogFrom } from "../logs/tail";
 import { type HostRow, jobRefOf, loadHost, planOf, type RunRow, sessionFor } from "../run-runtime";
 import { schedulerFor } from "../schedulers";
@@ -23,8 +24,6 @@ const worker = { kind: "worker" } as const;
 /** Enough bytes per poll to keep up with a chatty code without holding a poll for long. */
 const MAX_LOG_BYTES_PER_POLL = 256 * 1024;
 
-type Progress = { stage?: string | null; done?: number; total?: number; percent?: number } | null;
-
 async function storeLog(
   ctx: WorkerContext,
   run: RunRow,
@@ -35,7 +34,7 @@ async function storeLog(
   const rules = compileOutputRules(plan);
   let offset = run.logOffsetBytes;
   let seq = run.logSeq;
-  let stage = ((run.progress as Progress)?.stage as string | null | undefined) ?? null;
+  let progress = storedProgress(run.progress);
   for (let round = 0; round < (untilEmpty ? 64 : 1); round += 1) {
     const chunk = await readLogFrom(
       session,
@@ -44,8 +43,8 @@ async function storeLog(
       MAX_LOG_BYTES_PER_POLL,
     );
     if (chunk.text.length === 0 && chunk.nextOffsetBytes === offset) break;
-    const parsed = parseLogLines(chunk.text, rules, stage);
-    stage = parsed.stage;
+    const parsed = parseLogLines(chunk.text, rules, progress?.stage ?? null);
+    progress = advanceProgress(progress, parsed);
     seq += 1;
     const chunkOffset = offset;
     offset = chunk.nextOffsetBytes;
@@ -56,7 +55,7 @@ async function storeLog(
         .set({
           logOffsetBytes: offset,
           logSeq: seq,
-          progress: parsed.progress ?? { ...((run.progress as object) ?? {}), stage },
+          progress,
           updatedAt: new Date(),
         })
         .where(and(eq(runs.id, run.id), eq(runs.logOffsetBytes, chunkOffset)))

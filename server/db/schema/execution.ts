@@ -193,10 +193,15 @@ export const runs = pgTable(
     heldFromState: runState("held_from_state"),
     /** Files staged on the host with the sha256 the host computed: [{ path, sha256 }]. */
     stagedFiles: jsonb("staged_files"),
-    /** Latest progress parsed from the log: { stage, done?, total?, percent? }. */
+    /**
+     * How far the log has got (shared/schemas runStageProgressSchema): the stage of the last stage marker and
+     * that stage's latest progress line. The poller reads the next log bytes with this stage's output rules.
+     */
     progress: jsonb("progress"),
     nextRetryAt: timestamp("next_retry_at", { withTimezone: true }),
     cancelRequestedAt: timestamp("cancel_requested_at", { withTimezone: true }),
+    /** The person who asked to cancel; the run's `cancelled` event is theirs, whichever step records it. */
+    cancelRequestedBy: uuid("cancel_requested_by").references(() => users.id, { onDelete: "set null" }),
     resubmittedFrom: uuid("resubmitted_from"),
     reusedFrom: uuid("reused_from"),
     notifyByEmail: boolean("notify_by_email").notNull().default(false),

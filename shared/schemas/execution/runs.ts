@@ -19,8 +19,16 @@ export const runResourcesSchema = z.strictObject({
   cores: z.number().int().min(1).max(4096),
   wallTimeMinutes: z.number().int().min(1).max(43_200),
 });
+export type RunResources = z.infer<typeof runResourcesSchema>;
 
-/** What the composer sends: which recipe, where, with which parameters per stage. */
+/**
+ * Resources as a request gives them: what is left out comes from the defaults of the recipe's codes —
+ * the most cores any stage's code asks for, and the sum of their wall times (the stages run one after
+ * another in one job), at most the 43,200-minute limit.
+ */
+export const runResourcesRequestSchema = runResourcesSchema.partial();
+
+/** A run's specification as stored and returned: which recipe, where, with which parameters per stage. */
 export const runSpecSchema = z.strictObject({
   name: z.string().trim().min(1).max(120),
   recipeId: uuidSchema,
@@ -32,24 +40,52 @@ export const runSpecSchema = z.strictObject({
 });
 export type RunSpec = z.infer<typeof runSpecSchema>;
 
+/** What the composer sends: a run spec whose resources may be left out (see runResourcesRequestSchema). */
+export const runSpecRequestSchema = runSpecSchema.extend({
+  resources: runResourcesRequestSchema.optional(),
+});
+export type RunSpecRequest = z.infer<typeof runSpecRequestSchema>;
+
+/** When a finished run with the same fingerprint exists: `ask` (409 naming it), `reuse` it, or `run` anyway. */
+export const onDuplicateSchema = z.enum(["ask", "reuse", "run"]);
+export type OnDuplicate = z.infer<typeof onDuplicateSchema>;
+
 export const createRunRequestSchema = z.strictObject({
-  spec: runSpecSchema,
-  /** When a finished run with the same fingerprint exists: `ask` (409 naming it), `reuse` it, or `run` anyway. */
-  onDuplicate: z.enum(["ask", "reuse", "run"]).default("ask"),
+  spec: runSpecRequestSchema,
+  onDuplicate: onDuplicateSchema.default("ask"),
 });
 export type CreateRunRequest = z.input<typeof createRunRequestSchema>;
 
-export const resubmitRunRequestSchema = z.strictObject({
-  /** Changes to the original spec; omitted fields keep the original's values. */
-  changes: runSpecSchema.partial().default({}),
-  onDuplicate: z.enum(["ask", "reuse", "run"]).default("run"),
+/**
+ * Changes a resubmission makes to the original spec; everything left out keeps the original's value.
+ * Parameters merge per stage and per parameter (RFC 7396 merge patch: a parameter set to null is removed,
+ * so the code's default applies); resources merge per field. Nothing here has a default: a default would
+ * silently replace the original's value.
+ */
+export const runSpecChangesSchema = z.strictObject({
+  name: z.string().trim().min(1).max(120).optional(),
+  recipeId: uuidSchema.optional(),
+  hostId: uuidSchema.optional(),
+  parameters: z.record(z.string(), z.record(z.string(), z.unknown())).optional(),
+  resources: runResourcesRequestSchema.optional(),
+  notifyByEmail: z.boolean().optional(),
 });
+export type RunSpecChanges = z.infer<typeof runSpecChangesSchema>;
+
+export const resubmitRunRequestSchema = z.strictObject({
+  changes: runSpecChangesSchema.default({}),
+  onDuplicate: onDuplicateSchema.default("run"),
+});
+export type ResubmitRunRequest = z.infer<typeof resubmitRunRequestSchema>;
 
 export const runEventSchema = z.object({
   at: isoDateTimeSchema,
   fromState: runStateSchema.nullable(),
   toState: runStateSchema,
+  /** `user`, `worker` or `system`. */
   actor: z.string(),
+  /** The person who caused the change (who submitted, who cancelled), null for the engine's own steps. */
+  actorName: z.string().nullable(),
   message: z.string().nullable(),
 });
 
@@ -62,6 +98,25 @@ export const runArtifactSchema = z.object({
 });
 
 export const runTimingSchema = z.object({ stage: z.string(), symmetry: z.string(), seconds: z.number() });
+
+/**
+ * How far a run's log has got, as the poller stores it: the stage of the last stage marker, and the
+ * latest progress line of that stage's code (absent until the stage prints one).
+ */
+export const runStageProgressSchema = z.object({
+  stage: z.string(),
+  done: z.number().optional(),
+  total: z.number().optional(),
+  percent: z.number().min(0).max(100).optional(),
+});
+export type RunStageProgress = z.infer<typeof runStageProgressSchema>;
+
+/** The same with the stage's place in the recipe (1-based), as the API reports it. */
+export const runProgressSchema = runStageProgressSchema.extend({
+  stageIndex: z.number().int().min(1),
+  stageCount: z.number().int().min(1),
+});
+export type RunProgress = z.infer<typeof runProgressSchema>;
 
 export const runSummarySchema = z.object({
   id: uuidSchema,
@@ -79,9 +134,14 @@ export const runSummarySchema = z.object({
   schedulerJobId: z.string().nullable(),
   exitCode: z.number().int().nullable(),
   resubmittedFrom: uuidSchema.nullable(),
+  /** The run whose results (collected files, timings, log) this one reuses instead of running. */
   reusedFrom: uuidSchema.nullable(),
   submittedBy: z.string().nullable(),
   cancelRequested: z.boolean(),
+  /** Display name of the person who asked to cancel the run. */
+  cancelRequestedBy: z.string().nullable(),
+  /** Null until the log reaches the first stage. */
+  progress: runProgressSchema.nullable(),
   createdAt: isoDateTimeSchema,
   startedAt: isoDateTimeSchema.nullable(),
   finishedAt: isoDateTimeSchema.nullable(),

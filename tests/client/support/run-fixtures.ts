@@ -4,6 +4,8 @@ import { KESTREL_ID } from "./fixtures";
 export const RUN_IDS = {
   running: "5a1e0000-0000-4000-8000-000000000001",
   done: "5a1e0000-0000-4000-8000-000000000002",
+  reused: "5a1e0000-0000-4000-8000-000000000003",
+  cancelled: "5a1e0000-0000-4000-8000-000000000004",
 };
 
 const base = {
@@ -22,6 +24,8 @@ const base = {
   reusedFrom: null as string | null,
   submittedBy: "Tomás Brandt",
   cancelRequested: false,
+  cancelRequestedBy: null as string | null,
+  progress: null as RunDetail["progress"],
   createdAt: "2026-11-30T10:00:00.000Z",
   startedAt: null as string | null,
   finishedAt: null as string | null,
@@ -37,7 +41,10 @@ const base = {
   artifacts: [] as RunDetail["artifacts"],
 };
 
-/** Two runs of the Kestrel group's demo study: one on the host now, one finished with its files. */
+/**
+ * Runs of the Kestrel group's demo study: one on the host now (in its second stage), one finished with
+ * its files, one that reused the finished one's results, and one cancelled by a group admin.
+ */
 export function kestrelRuns(): RunDetail[] {
   return [
     {
@@ -48,6 +55,7 @@ export function kestrelRuns(): RunDetail[] {
       stateMessage: "Started on the host",
       schedulerJobId: "4812",
       startedAt: "2026-11-30T10:01:00.000Z",
+      progress: { stage: "outer", stageIndex: 2, stageCount: 3, done: 3, total: 12, percent: 25 },
       spec: { ...base.spec, name: "HNCO cc-pVDZ inner region" },
       events: [
         {
@@ -55,6 +63,7 @@ export function kestrelRuns(): RunDetail[] {
           fromState: null,
           toState: "queued",
           actor: "user",
+          actorName: "Tomás Brandt",
           message: "Submitted",
         },
         {
@@ -62,6 +71,7 @@ export function kestrelRuns(): RunDetail[] {
           fromState: "submitted",
           toState: "running",
           actor: "worker",
+          actorName: null,
           message: "Started on the host",
         },
       ],
@@ -83,6 +93,7 @@ export function kestrelRuns(): RunDetail[] {
           fromState: null,
           toState: "queued",
           actor: "user",
+          actorName: "Tomás Brandt",
           message: "Submitted",
         },
         {
@@ -90,6 +101,7 @@ export function kestrelRuns(): RunDetail[] {
           fromState: "collecting",
           toState: "done",
           actor: "worker",
+          actorName: null,
           message: "Finished; 1 result file(s) collected",
         },
       ],
@@ -100,6 +112,74 @@ export function kestrelRuns(): RunDetail[] {
           name: "kmatrix.dat",
           sizeBytes: 2048,
           sha256: "ab".repeat(32),
+        },
+      ],
+    },
+    {
+      ...base,
+      id: RUN_IDS.reused,
+      name: "HNCO cross sections, reused",
+      state: "done",
+      stateMessage: `Results reused from run ${RUN_IDS.done}.`,
+      chargedCoreHours: 0,
+      reservedCoreHours: 0,
+      reusedFrom: RUN_IDS.done,
+      finishedAt: "2026-11-30T11:00:00.000Z",
+      spec: { ...base.spec, name: "HNCO cross sections, reused" },
+      events: [
+        {
+          at: "2026-11-30T11:00:00.000Z",
+          fromState: null,
+          toState: "done",
+          actor: "user",
+          actorName: "Tomás Brandt",
+          message: `Reused the results of run ${RUN_IDS.done}`,
+        },
+      ],
+      artifacts: [
+        {
+          id: "5a1e0000-0000-4000-8000-0000000000cc",
+          stage: "outer",
+          name: "kmatrix.dat",
+          sizeBytes: 2048,
+          sha256: "ab".repeat(32),
+        },
+      ],
+    },
+    {
+      ...base,
+      id: RUN_IDS.cancelled,
+      name: "HNCO cc-pVTZ inner region",
+      state: "cancelled",
+      stateMessage: "Cancelled; the scheduler confirmed the job ended",
+      cancelRequested: true,
+      cancelRequestedBy: "Noor Vasquez",
+      finishedAt: "2026-11-30T12:10:00.000Z",
+      spec: { ...base.spec, name: "HNCO cc-pVTZ inner region" },
+      events: [
+        {
+          at: "2026-11-30T12:00:00.000Z",
+          fromState: null,
+          toState: "queued",
+          actor: "user",
+          actorName: "Tomás Brandt",
+          message: "Submitted",
+        },
+        {
+          at: "2026-11-30T12:09:00.000Z",
+          fromState: "running",
+          toState: "collecting",
+          actor: "worker",
+          actorName: null,
+          message: "The scheduler reports the job cancelled",
+        },
+        {
+          at: "2026-11-30T12:10:00.000Z",
+          fromState: "collecting",
+          toState: "cancelled",
+          actor: "user",
+          actorName: "Noor Vasquez",
+          message: "Cancelled; the scheduler confirmed the job ended",
         },
       ],
     },

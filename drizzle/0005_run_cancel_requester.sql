@@ -1,0 +1,2 @@
+ALTER TABLE "runs" ADD COLUMN "cancel_requested_by" uuid;--> statement-breakpoint
+ALTER TABLE "runs" ADD CONSTRAINT "runs_cancel_requested_by_users_id_fk" FOREIGN KEY ("cancel_requested_by") REFERENCES "public"."users"("id") ON DELETE set null ON UPDATE no action;

@@ -21,6 +21,7 @@ const pages = {
   members: async () => (await import("./routes/groups/members")).MembersRoute,
   invitations: async () => (await import("./routes/groups/invitations")).InvitationsRoute,
   activity: async () => (await import("./routes/groups/activity")).ActivityRoute,
+  runLink: async () => (await import("./routes/run-link")).RunLinkRoute,
   invitation: async () => (await import("./routes/invitation")).InvitationRoute,
   apiTokens: async () => (await import("./routes/settings/api-tokens")).ApiTokensRoute,
   adminGroups: async () => (await import("./routes/admin/groups")).AdminGroupsRoute,
@@ -76,6 +77,8 @@ export function createAppRoutes(queryClient: QueryClient): RouteObject[] {
                     },
                   ],
                 },
+                // The address run e-mails link to; it opens the run in its group.
+                { path: "runs/:runId", lazy: { Component: pages.runLink } },
                 {
                   path: "invitations/:token",
                   loader: loaders.invitation,

@@ -1,7 +1,8 @@
 /**
  * The runs pages against the fake API (shared/schemas/execution/runs.ts is the contract): the list with
  * states and reasons, cancel for members (a POST carrying the CSRF token), read-only for collaborators,
- * and a run's history, timings, collected files and log.
+ * a run's progress, history, timings, collected files and log, reused results, and the short run address
+ * that run e-mails link to.
  */
 import { screen, waitFor, within } from "@testing-library/react";
 import { describe, expect, it } from "vitest";
@@ -79,5 +80,70 @@ describe("runs page", () => {
     await waitFor(() =>
       expect(screen.getByTestId("run-log")).toHaveTextContent("symmetry A' done in 41.5 s"),
     );
+  });
+
+  it("shows how far a running run has got", async () => {
+    installFakeApi({
+      me: people.tomas,
+      groups: [{ ...kestrel, myRole: "member" }],
+      runs: { [KESTREL_ID]: kestrelRuns() },
+    });
+    renderApp(`${runsPath}/${RUN_IDS.running}`);
+    const bar = await screen.findByRole("progressbar", { name: "Progress of stage outer" });
+    expect(bar).toHaveAttribute("aria-valuenow", "25");
+    expect(screen.getByText("Stage 2 of 3: outer, 25 % (3 of 12)")).toBeInTheDocument();
+  });
+
+  // Regression: the history said "worker" for a cancel and never who asked for it.
+  it("names the person who cancelled a run in its history", async () => {
+    installFakeApi({
+      me: people.tomas,
+      groups: [{ ...kestrel, myRole: "member" }],
+      runs: { [KESTREL_ID]: kestrelRuns() },
+    });
+    renderApp(`${runsPath}/${RUN_IDS.cancelled}`);
+    const history = await screen.findByRole("table", { name: "State changes" });
+    const cancelled = within(history).getByRole("row", { name: /Cancelled; the scheduler confirmed/ });
+    expect(within(cancelled).getByText("Noor Vasquez")).toBeInTheDocument();
+    const collecting = within(history).getByRole("row", { name: /reports the job cancelled/ });
+    expect(within(collecting).getByText("worker")).toBeInTheDocument();
+  });
+
+  // Regression: a run that reused results showed an empty log and no word of where its results came from.
+  it("says where reused results come from, links to that run and shows its log", async () => {
+    installFakeApi({
+      me: people.tomas,
+      groups: [{ ...kestrel, myRole: "member" }],
+      runs: { [KESTREL_ID]: kestrelRuns() },
+      // The server answers a reusing run's log request with the original's chunks.
+      logs: { [RUN_IDS.reused]: "[sigmaflow] stage 1/2 inner: start\nsymmetry A' done in 41.5 s\n" },
+    });
+    const { user, router } = renderApp(`${runsPath}/${RUN_IDS.reused}`);
+    const notice = (await screen.findByText("Results reused")).closest("[role=status]") as HTMLElement;
+    expect(notice).toHaveTextContent("Results reused from run");
+    const origin = await within(notice).findByRole("link", { name: "HNCO elastic, 0.1–10 eV" });
+    await waitFor(() =>
+      expect(screen.getByTestId("run-log")).toHaveTextContent("symmetry A' done in 41.5 s"),
+    );
+    await user.click(origin);
+    expect(
+      await screen.findByRole("heading", { level: 1, name: "HNCO elastic, 0.1–10 eV" }),
+    ).toBeInTheDocument();
+    expect(router.state.location.pathname).toBe(`${runsPath}/${RUN_IDS.done}`);
+  });
+
+  // Regression: the run-finished e-mail links to /runs/<id>, which was "Page not found".
+  it("opens the run's page in its group from the address in a run e-mail", async () => {
+    installFakeApi({
+      me: people.tomas,
+      groups: [{ ...kestrel, myRole: "member" }],
+      runs: { [KESTREL_ID]: kestrelRuns() },
+    });
+    const { router } = renderApp(`/runs/${RUN_IDS.done}`);
+    expect(
+      await screen.findByRole("heading", { level: 1, name: "HNCO elastic, 0.1–10 eV" }),
+    ).toBeInTheDocument();
+    expect(router.state.location.pathname).toBe(`${runsPath}/${RUN_IDS.done}`);
+    expect(screen.queryByText("Page not found")).not.toBeInTheDocument();
   });
 });

@@ -6,6 +6,8 @@ import { apiUrl } from "@/lib/api-client";
 import { formatDateTime } from "@/lib/format";
 import { isFinished, runQueries } from "../api/run-queries";
 import { formatCoreHours } from "../format-core-hours";
+import { RunOrigin } from "./run-origin";
+import { RunProgress } from "./run-progress";
 import { RunStateBadge } from "./run-state-badge";
 
 function Section({ title, children }: { title: string; children: React.ReactNode }) {
@@ -17,11 +19,15 @@ function Section({ title, children }: { title: string; children: React.ReactNode
   );
 }
 
-/** A run's history, per-symmetry timings, collected files and log, refreshed while it is unfinished. */
+/**
+ * A run's progress, history, per-symmetry timings, collected files and log, refreshed while it is
+ * unfinished. A run that reused results shows the files, timings and log of the run that produced them.
+ */
 export function RunDetailView({ run }: { run: RunDetail }) {
   const log = useQuery(runQueries.log(run.id, isFinished(run)));
   return (
     <>
+      <RunOrigin run={run} />
       <Card>
         <CardBody className="grid gap-4 text-sm sm:grid-cols-4">
           <div>
@@ -44,7 +50,21 @@ export function RunDetailView({ run }: { run: RunDetail }) {
               {run.fingerprint.slice(0, 16)}…
             </div>
           </div>
-          {run.stateMessage ? <p className="text-ink-700 sm:col-span-4">{run.stateMessage}</p> : null}
+          {run.progress ? (
+            <div className="sm:col-span-4">
+              <div className="text-xs text-ink-500">Progress</div>
+              <RunProgress progress={run.progress} />
+            </div>
+          ) : null}
+          {/* A reusing run's message only repeats what RunOrigin says, with the link. */}
+          {run.stateMessage && !run.reusedFrom ? (
+            <p className="text-ink-700 sm:col-span-4">{run.stateMessage}</p>
+          ) : null}
+          {run.cancelRequestedBy && !isFinished(run) ? (
+            <p className="text-ink-700 sm:col-span-4">
+              {run.cancelRequestedBy} asked to cancel this run; it stops when the scheduler confirms.
+            </p>
+          ) : null}
         </CardBody>
       </Card>
 
@@ -65,7 +85,7 @@ export function RunDetailView({ run }: { run: RunDetail }) {
                 <TD>
                   <RunStateBadge state={event.toState} />
                 </TD>
-                <TD className="text-xs">{event.actor}</TD>
+                <TD className="text-xs">{event.actorName ?? event.actor}</TD>
                 <TD className="text-xs text-ink-600">{event.message ?? ""}</TD>
               </TR>
             ))}

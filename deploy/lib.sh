@@ -78,13 +78,61 @@ sf_pg_ensure_database() { # port, name
     | grep -q 1 || "$PG_BIN/createdb" -h 127.0.0.1 -p "$port" -U postgres "$name"
 }
 
-# Background processes started through sf_spawn are stopped by sf_stop_all (installed as an EXIT trap).
+# Background processes started through sf_spawn or sf_supervise are stopped by sf_stop_all (installed as an
+# EXIT trap).
 SF_PIDS=()
 sf_spawn() { # name, logfile, command...
   local name=$1 logfile=$2; shift 2
   "$@" >"$logfile" 2>&1 &
   SF_PIDS+=("$!")
   sf_log "started $name (pid $!, log $logfile)"
+}
+
+# Restart back-off of sf_supervise, in whole seconds: the first delay, the most it doubles to, and how long
+# a run must last for the next restart to start from the first delay again.
+SF_RESTART_FIRST_DELAY_S="${SF_RESTART_FIRST_DELAY_S:-1}"
+SF_RESTART_MAX_DELAY_S="${SF_RESTART_MAX_DELAY_S:-30}"
+SF_RESTART_RESET_AFTER_S="${SF_RESTART_RESET_AFTER_S:-60}"
+
+# Like sf_spawn, but the service is started again whenever it exits, after a back-off; each restart is
+# announced on stdout and in the service's log. SIGTERM, SIGINT or SIGHUP to the supervisor (sf_stop_all
+# sends TERM) stops the service and the supervisor without a restart. The service runs in its own session,
+# so a terminal's Ctrl-C reaches it only through its supervisor and never looks like a crash.
+sf_supervise() { # name, logfile, command...
+  local name=$1 logfile=$2; shift 2
+  : >"$logfile"
+  (
+    child=""
+    stop() {
+      if [ -n "$child" ]; then kill -TERM "$child" 2>/dev/null || true; wait "$child" 2>/dev/null || true; fi
+      exit 0
+    }
+    trap stop TERM INT HUP
+    delay=$SF_RESTART_FIRST_DELAY_S
+    while :; do
+      started=$SECONDS
+      setsid "$@" >>"$logfile" 2>&1 &
+      child=$!
+      status=0
+      # (stderr: bash's own "Killed" notice; the status below says it)
+      wait "$child" 2>/dev/null || status=$?
+      child=""
+      lasted=$((SECONDS - started))
+      if [ "$lasted" -ge "$SF_RESTART_RESET_AFTER_S" ]; then delay=$SF_RESTART_FIRST_DELAY_S; fi
+      how="with status $status"
+      if [ "$status" -gt 128 ]; then how="by signal $(kill -l "$((status - 128))" 2>/dev/null || echo "$((status - 128))") (status $status)"; fi
+      message="$name exited $how after ${lasted}s; restarting in ${delay}s (at $(date -d "+${delay} seconds" +%H:%M:%S))"
+      printf '[sigmaflow] %s\n' "$message"
+      printf '%s [sigmaflow] %s\n' "$(date +%Y-%m-%dT%H:%M:%S%z)" "$message" >>"$logfile"
+      sleep "$delay" &
+      child=$!
+      wait "$child" || true
+      child=""
+      delay=$((delay * 2 > SF_RESTART_MAX_DELAY_S ? SF_RESTART_MAX_DELAY_S : delay * 2))
+    done
+  ) &
+  SF_PIDS+=("$!")
+  sf_log "started $name under supervision (supervisor pid $!, log $logfile)"
 }
 
 sf_stop_all() {

@@ -14,10 +14,19 @@
  * compiled template with a restricted runtime: names resolve only to own properties of the context,
  * member access is limited to own data properties and a list of harmless string/array/number methods,
  * and no template can load another one (include/import/extends are refused).
+ *
+ * Nothing a template does may hold the event loop past the render time limit, and a single call into a
+ * backtracking RegExp cannot be interrupted. So regex literals (`r/…/`) are compiled into RE2 patterns
+ * (user-patterns.ts) instead of RegExp, the `replace` filter matches with those (`split` refuses
+ * them), and the built-in filters whose own regular expressions backtrack on long values (`trim`, `striptags`) are
+ * replaced by linear versions. nunjucks finds the end of a `{% raw %}` block by retrying a regex from
+ * every position, quadratic when the end tag is missing, so such a template is refused before parsing.
  */
 import { createHash } from "node:crypto";
+import { createRequire } from "node:module";
 import nunjucks from "nunjucks";
 import type { CodeDefinition, TemplateFormat } from "../../shared/schemas/execution/codes";
+import { compileUserPattern, PatternError, UserPattern } from "./user-patterns";
 
 export class TemplateError extends Error {
   constructor(
@@ -70,16 +79,21 @@ const LONE_SURROGATE = /[\uD800-\uDBFF](?![\uDC00-\uDFFF])|(?<![\uD800-\uDBFF])[
 type Callback = (err: unknown, result?: string) => void;
 type RootFn = (env: unknown, context: unknown, frame: unknown, runtime: unknown, cb: Callback) => void;
 type TemplateProps = { root: RootFn; [block: string]: unknown };
-type AstNode = { lineno: number; val?: { typename: string; value?: unknown } };
+type AstNode = { lineno: number; val?: { typename: string; value?: unknown }; value?: unknown };
+type Ast = { findAll(type: unknown): AstNode[] };
 type Internals = {
   compiler: {
-    compile(src: string, asyncFilters: string[], exts: unknown[], name: string, opts: object): string;
+    Compiler: new (
+      name: string,
+      throwOnUndefined: boolean,
+    ) => { compile(ast: unknown): void; getCode(): string };
   };
-  parser: { parse(src: string, exts: unknown[], opts: object): { findAll(type: unknown): AstNode[] } };
-  nodes: Record<"Include" | "Import" | "FromImport" | "Extends" | "LookupVal", unknown>;
+  parser: { parse(src: string, exts: unknown[], opts: object): Ast };
+  nodes: Record<"Include" | "Import" | "FromImport" | "Extends" | "LookupVal" | "Literal", unknown>;
   runtime: Record<string, unknown> & {
     SafeString: typeof nunjucks.runtime.SafeString;
     fromIterator(value: unknown): unknown;
+    copySafeness(original: unknown, result: string): unknown;
   };
   Template: new (
     src: { type: "code"; obj: TemplateProps },
@@ -90,6 +104,11 @@ type Internals = {
   };
 };
 const internals = nunjucks as unknown as Internals;
+// The step between parsing and code generation (lifting `super()` in blocks), not exported by nunjucks'
+// entry point; compiling from the checked syntax tree instead of the source needs it.
+const transformer = createRequire(import.meta.url)("nunjucks/src/transformer") as {
+  transform(ast: Ast, asyncFilters: string[]): unknown;
+};
 const { SafeString } = internals.runtime;
 type Safe = InstanceType<typeof SafeString>;
 
@@ -114,6 +133,45 @@ env.addFilter("dump", () => {
   throw new Error(
     "dump is not available: print the value itself, it is already written for the file's format",
   );
+});
+
+// ---------------------------------------------------------------------------------------------------
+// Filters that would run a backtracking RegExp: routed to RE2 or to linear string methods.
+
+const isText = (value: unknown): value is string | Safe =>
+  typeof value === "string" || value instanceof SafeString;
+const builtinReplace = env.getFilter("replace");
+env.addFilter(
+  "replace",
+  function (this: unknown, text: unknown, old: unknown, replacement: unknown, maxCount) {
+    if (!(old instanceof UserPattern)) return builtinReplace.call(this, text, old, replacement, maxCount);
+    if (typeof replacement === "function")
+      throw new Error("replace with a pattern takes text as the replacement");
+    if (!isText(text) && typeof text !== "number") return text;
+    checkDeadline();
+    return internals.runtime.copySafeness(text, old.replace(String(text), String(replacement)));
+  },
+);
+const builtinTrim = env.getFilter("trim");
+// nunjucks trims with /^\s*|\s*$/g, quadratic in a run of spaces; String#trim removes the same characters.
+env.addFilter("trim", (text: unknown) =>
+  isText(text) ? internals.runtime.copySafeness(text, String(text).trim()) : builtinTrim(text),
+);
+const HTML_TAG = compileUserPattern(String.raw`<\/?([a-z][a-z0-9]*)\b[^>]*>|<!--[\s\S]*?-->`, "gi");
+const LINE_EDGE_SPACES = compileUserPattern("^ +| +$", "gm");
+const builtinStriptags = env.getFilter("striptags");
+// The same steps as nunjucks' striptags; the two patterns that backtrack on long input run on RE2.
+env.addFilter("striptags", (input: unknown, preserveLinebreaks?: boolean) => {
+  if (!isText(input)) return builtinStriptags(input, preserveLinebreaks);
+  checkDeadline();
+  const text = HTML_TAG.replace(String(input), "").trim();
+  const stripped = preserveLinebreaks
+    ? LINE_EDGE_SPACES.replace(text, "")
+        .replace(/ +/g, " ")
+        .replaceAll("\r\n", "\n")
+        .replace(/\n\n\n+/g, "\n\n")
+    : text.replace(/\s+/g, " ");
+  return internals.runtime.copySafeness(input, stripped);
 });
 
 // ---------------------------------------------------------------------------------------------------
@@ -278,6 +336,8 @@ function runtimeFor(format: TemplateFormat) {
     ...internals.runtime,
     memberLookup: safeMemberLookup,
     contextOrFrameLookup: safeContextLookup,
+    // Regex literals compile to calls of this (see compileTemplate), never to a RegExp.
+    userPattern: (source: string, flags: string) => compileUserPattern(source, flags),
     suppressValue: (value: unknown) => {
       checkDeadline();
       return printValue(value, format);
@@ -320,6 +380,56 @@ function cleanReason(error: unknown): string {
     : reason;
 }
 
+/**
+ * Refuses a `{% raw %}` or `{% verbatim %}` block that is never closed. nunjucks looks for the end with
+ * an unanchored lazy regex; when there is none it retries from every position, quadratic in the rest
+ * of the template. Inside a block it counts only `{% raw %}` and `{% endraw %}` without `-`, as here.
+ */
+function checkRawBlocks(source: string, fileName: string): void {
+  const tags = /\{%(-?)\s*(end)?(raw|verbatim)\s*(-?)%\}/g;
+  let open: { name: string; index: number; depth: number } | null = null;
+  for (const tag of source.matchAll(tags)) {
+    const [, dashBefore, end, name] = tag;
+    const plain = !dashBefore && !tag[4];
+    if (!open) {
+      if (!end) open = { name: name!, index: tag.index, depth: 1 };
+    } else if (plain && name === open.name) {
+      open.depth += end ? -1 : 1;
+      if (open.depth === 0) open = null;
+    }
+  }
+  if (open) {
+    throw new TemplateError(
+      fileName,
+      source.slice(0, open.index).split("\n").length,
+      `{% ${open.name} %} is never closed; end it with {% end${open.name} %} (written without "-")`,
+    );
+  }
+}
+
+/**
+ * Compiles each regex literal to a call of the runtime's `userPattern` (RE2). compileLiteral prints a
+ * non-string literal with `toString()`, so the literal's value becomes that call's source text.
+ */
+function routeRegexLiterals(ast: Ast, fileName: string): void {
+  for (const literal of ast.findAll(internals.nodes.Literal)) {
+    if (!(literal.value instanceof RegExp)) continue;
+    const { source, flags } = literal.value;
+    try {
+      compileUserPattern(source, flags);
+    } catch (error) {
+      if (!(error instanceof PatternError)) throw error;
+      throw new TemplateError(
+        fileName,
+        literal.lineno + 1,
+        `the pattern r/${source}/${flags}: ${error.reason}`,
+      );
+    }
+    const call = `runtime.userPattern(${JSON.stringify(source)}, ${JSON.stringify(flags)})`;
+    literal.value = { toString: () => call };
+  }
+}
+
 /** Parses and compiles a template, refusing anything that would load another template. */
 function compileTemplate(source: string, fileName: string): TemplateProps {
   const cacheKey = createHash("sha256").update(fileName).update("\0").update(source).digest("hex");
@@ -327,6 +437,7 @@ function compileTemplate(source: string, fileName: string): TemplateProps {
   if (cached) return cached;
   let props: TemplateProps;
   try {
+    checkRawBlocks(source, fileName);
     const ast = internals.parser.parse(source, [], ENV_OPTIONS);
     for (const type of ["Include", "Import", "FromImport", "Extends"] as const) {
       const found = ast.findAll(internals.nodes[type])[0];
@@ -344,8 +455,10 @@ function compileTemplate(source: string, fileName: string): TemplateProps {
         throw new TemplateError(fileName, lookup.lineno + 1, `templates cannot read "${key}"`);
       }
     }
-    const code = internals.compiler.compile(source, [], [], fileName, ENV_OPTIONS);
-    props = new Function(code)() as TemplateProps;
+    routeRegexLiterals(ast, fileName);
+    const compiler = new internals.compiler.Compiler(fileName, ENV_OPTIONS.throwOnUndefined);
+    compiler.compile(transformer.transform(ast, []));
+    props = new Function(compiler.getCode())() as TemplateProps;
   } catch (error) {
     if (error instanceof TemplateError) throw error;
     const reason = cleanReason(error);

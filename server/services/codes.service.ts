@@ -9,6 +9,7 @@ import { codeDefinitionSchema } from "../../shared/schemas/execution/codes";
 import type { Principal } from "../auth/principal";
 import type { Database } from "../db/client";
 import { codes, recipes } from "../db/schema";
+import { outputRuleProblems } from "../execution/output-rules";
 import { compileParameterSchema, ParameterSchemaError } from "../execution/parameters";
 import { checkCodeTemplates } from "../execution/templates";
 import { AppError, conflict, notFound } from "../http/errors";
@@ -38,6 +39,7 @@ export function definitionProblems(definition: CodeDefinition): Problem[] {
     problems.push({ path: "parameters", message: error.message });
   }
   problems.push(...checkCodeTemplates(definition));
+  problems.push(...outputRuleProblems(definition.outputRules));
   const seen = new Set<string>();
   definition.inputTemplates.forEach((input, index) => {
     if (seen.has(input.fileName)) {

@@ -6,10 +6,12 @@
 import { describe, expect, it } from "vitest";
 import {
   compileParameterSchema,
+  MAX_JSON_DEPTH,
   ParameterSchemaError,
   schemaHash,
   validateParameters,
 } from "../../../server/execution/parameters";
+import { regExpSourcesRunDuring } from "./native-regexp";
 
 const scattering = {
   type: "object",
@@ -110,5 +112,110 @@ describe("compileParameterSchema", () => {
         properties: { b: { type: "number" } },
       }),
     ).not.toThrow();
+  });
+});
+
+describe("patterns in a parameters schema", () => {
+  const withPattern = (pattern: string) => ({
+    type: "object",
+    properties: { label: { type: "string", pattern } },
+  });
+
+  // Regression: Ajv tested `pattern` with JavaScript's backtracking RegExp, so ^(a+)+$ against a value of a
+  // few dozen characters held the server for seconds, doubling per character.
+  it("tests a nested-quantifier pattern against 5000 characters without backtracking", () => {
+    const sources = regExpSourcesRunDuring(() =>
+      validateParameters({ parameters: withPattern("^(a+)+$") }, { label: "aab" }),
+    );
+    expect(sources).not.toContain("^(a+)+$");
+    const value = `${"a".repeat(5000)}b`;
+    expect(validateParameters({ parameters: withPattern("^(a+)+$") }, { label: value })).toEqual({
+      valid: false,
+      errors: [{ path: "label", message: 'must match pattern "^(a+)+$"' }],
+    });
+    expect(validateParameters({ parameters: withPattern("^(a+)+$") }, { label: "aaaa" }).valid).toBe(true);
+  });
+
+  it("uses RE2 for patternProperties, also when properties match them", () => {
+    const schema = {
+      type: "object",
+      properties: { aaaaaaaaaaaaaaaaaaaaaaaaaaaaaab: { type: "string" } },
+      patternProperties: { "^(a+)+$": { type: "number" }, "^x_\\d+$": { type: "integer" } },
+      additionalProperties: false,
+    };
+    expect(validateParameters({ parameters: schema }, { aaaa: 1, x_12: 3 }).valid).toBe(true);
+    const refused = validateParameters({ parameters: schema }, { aaaa: "one", y: 1 });
+    expect(refused.valid).toBe(false);
+    if (refused.valid) return;
+    expect(refused.errors).toHaveLength(2);
+    expect(refused.errors).toEqual(
+      expect.arrayContaining([
+        { path: "aaaa", message: "must be number" },
+        { path: "y", message: "is not a parameter of this code" },
+      ]),
+    );
+  });
+
+  it("accepts RE2 spellings such as inline flags", () => {
+    expect(validateParameters({ parameters: withPattern("(?i)^h2o$") }, { label: "H2O" }).valid).toBe(true);
+  });
+
+  it("refuses a pattern RE2 cannot run, quoting it and naming RE2 syntax", () => {
+    expect(() => compileParameterSchema(withPattern("^(a+)\\1$"))).toThrow(
+      /^The parameters schema has a pattern Sigmaflow cannot use, "\^\(a\+\)\\\\1\$": backreferences .* RE2 syntax/,
+    );
+    expect(() => compileParameterSchema({ type: "object", patternProperties: { "a(?=b)": {} } })).toThrow(
+      /cannot use, "a\(\?=b\)": lookahead/,
+    );
+  });
+
+  it("turns a stored schema that no longer compiles into a problem, not an exception", () => {
+    expect(validateParameters({ parameters: withPattern("(a)\\1") }, { label: "aa" })).toEqual({
+      valid: false,
+      errors: [{ path: "", message: expect.stringMatching(/^the code cannot be run: .*backreferences/) }],
+    });
+  });
+});
+
+describe("nesting limits", () => {
+  const nested = (levels: number): unknown => {
+    let value: unknown = 1;
+    for (let i = 0; i < levels; i += 1) value = { a: value };
+    return value;
+  };
+
+  // Regression: parameters nested 5000 levels deep overflowed the stack (RangeError) in the recursive
+  // walks over them, a 500 instead of a refusal.
+  it("refuses parameters nested 5000 levels deep with the path and the limit", () => {
+    const result = validateParameters({ parameters: { type: "object" } }, { p: nested(5000) });
+    expect(result).toEqual({
+      valid: false,
+      errors: [
+        {
+          path: `p${".a".repeat(MAX_JSON_DEPTH - 1)}`,
+          message: `is nested more than ${MAX_JSON_DEPTH} levels deep`,
+        },
+      ],
+    });
+  });
+
+  it("accepts parameters exactly at the limit", () => {
+    expect(
+      validateParameters({ parameters: { type: "object" } }, nested(MAX_JSON_DEPTH - 1) as object).valid,
+    ).toBe(true);
+  });
+
+  it("refuses a schema nested 5000 levels deep", () => {
+    expect(() => compileParameterSchema({ type: "object", properties: { p: nested(5000) } })).toThrow(
+      new RegExp(`^The parameters schema nests more than ${MAX_JSON_DEPTH} levels deep`),
+    );
+  });
+});
+
+describe("asynchronous schemas", () => {
+  // An async validator returns a promise, which read as "valid" for any input, and its rejection went
+  // unobserved (an unhandled rejection ends the process).
+  it("are refused", () => {
+    expect(() => compileParameterSchema({ $async: true, type: "object" })).toThrow(/cannot be asynchronous/);
   });
 });

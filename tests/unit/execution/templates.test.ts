@@ -11,6 +11,7 @@ import { execFileSync } from "node:child_process";
 import { describe, expect, it } from "vitest";
 import { checkCodeTemplates, renderCodeFiles, TemplateError } from "../../../server/execution/templates";
 import { type CodeDefinition, codeDefinitionSchema } from "../../../shared/schemas/execution/codes";
+import { regExpSourcesRunDuring } from "./native-regexp";
 
 const HOSTILE: Record<string, string> = {
   singleQuote: "it's",
@@ -313,5 +314,100 @@ describe("the template sandbox", () => {
     expect(Date.now() - started).toBeLessThan(20_000);
     // The next render starts with a fresh clock.
     expect(renderOne("text", "{{ range(3) | length }}", {})).toBe("3");
+  });
+});
+
+describe("regular expressions in templates", () => {
+  // Regression: a regex literal reached the `replace` filter as a JavaScript RegExp, so
+  // `replace(r/^(a+)+$/, …)` on a 29-character value held the server for 9.7 s while a run was created.
+  it("matches a nested-quantifier regex literal against 5000 characters without backtracking", () => {
+    const template = '{{ v | replace(r/^(a+)+$/, "x") }}';
+    expect(regExpSourcesRunDuring(() => renderOne("text", template, { v: "aab" }))).not.toContain("^(a+)+$");
+    expect(renderOne("text", template, { v: `${"a".repeat(5000)}b` })).toBe(`${"a".repeat(5000)}b`);
+    expect(renderOne("text", template, { v: "a".repeat(5000) })).toBe("x");
+  });
+
+  it("replaces the first match, or every match with g, expanding $ references", () => {
+    expect(renderOne("text", '{{ v | replace(r/o/, "0") }}', { v: "foo boo" })).toBe("f0o boo");
+    expect(renderOne("text", '{{ v | replace(r/o/g, "0") }}', { v: "foo boo" })).toBe("f00 b00");
+    expect(renderOne("text", '{{ v | replace(r/(\\w+)=(\\w+)/g, "$2=$1") }}', { v: "a=1 b=2" })).toBe(
+      "1=a 2=b",
+    );
+    expect(renderOne("text", '{{ v | replace(r/H2O/i, "water") }}', { v: "h2o" })).toBe("water");
+    expect(renderOne("text", '{{ v | replace("o", "0") }}', { v: "foo" })).toBe("f00");
+  });
+
+  it("keeps a replaced parameter written for the file's format", () => {
+    // The value arrives as the shell word 'it'\''s'; replacing its "t" leaves one literal word.
+    const script = renderOne("shell", "printf '%s' {{ v | replace(r/t/g, 'T') }}", { v: "it's" });
+    expect(execFileSync("/bin/sh", ["-c", script], { encoding: "utf8" })).toBe("iT's");
+  });
+
+  for (const [label, literal, reason] of [
+    ["a backreference", "r/(a)\\1/", /backreferences such as \\1 are not supported/],
+    ["lookahead", "r/a(?=b)/", /lookahead/],
+    ["the sticky flag", "r/a/y", /the flag "y" is not supported/],
+  ] as const) {
+    it(`refuses ${label} when the code is registered, naming the line and RE2 syntax`, () => {
+      const problems = checkCodeTemplates(
+        definition([{ fileName: "a.txt", format: "text", template: `x\n{{ v | replace(${literal}, "") }}` }]),
+      );
+      expect(problems).toHaveLength(1);
+      expect(problems[0]!.message).toMatch(/^a\.txt, line 2: the pattern r\//);
+      expect(problems[0]!.message).toMatch(reason);
+      expect(problems[0]!.message).toContain("RE2 syntax");
+    });
+  }
+
+  it("refuses a pattern as the separator of split", () => {
+    expect(() => renderOne("text", "{{ v.split(r/,/) | join('+') }}", { v: "a,b" })).toThrow(
+      /cannot split a string; split by a string instead/,
+    );
+    expect(renderOne("text", "{{ v.split(',') | join('+') }}", { v: "a,b" })).toBe("a+b");
+  });
+
+  // Regression: nunjucks' own `trim` and `striptags` use patterns that backtrack quadratically on a long
+  // run of spaces or of unclosed tags; a 100 000-character parameter held the server for seconds.
+  it("trims and strips tags from 100 000-character values in one pass", () => {
+    const quadratic = ["^\\s*|\\s*$", "^ +| +$", "<\\/?([a-z][a-z0-9]*)\\b[^>]*>|<!--[\\s\\S]*?-->"];
+    const sources = regExpSourcesRunDuring(() =>
+      renderOne("text", "{{ v | trim | striptags(true) }}", { v: " <b>x</b> " }),
+    );
+    expect(sources.filter((source) => quadratic.includes(source))).toEqual([]);
+    const spaced = `a${" ".repeat(100_000)}b`;
+    expect(renderOne("text", "[{{ v | trim }}]", { v: `  ${spaced}  ` })).toBe(`[${spaced}]`);
+    expect(renderOne("text", "{{ v | striptags(true) }}", { v: spaced })).toBe("a b");
+    expect(renderOne("text", "{{ v | striptags }}", { v: "<a".repeat(50_000) })).toBe("<a".repeat(50_000));
+  });
+
+  it("strips tags as nunjucks does", () => {
+    // Expected outputs are those of nunjucks 3.2.4's own striptags on the same text.
+    const html = "{% set h %}  <p class='x'>Ψ₀  <b>bold</b></p>\n\n\n\n<!-- a\ncomment -->end  {% endset %}";
+    expect(renderOne("text", `${html}{{ h | striptags }}`, {})).toBe("Ψ₀ bold end");
+    expect(renderOne("text", `${html}{{ h | striptags(true) }}`, {})).toBe("Ψ₀ bold\n\nend");
+  });
+});
+
+describe("raw blocks", () => {
+  it("print their content as written", () => {
+    expect(renderOne("text", "{% raw %}{{ not a tag }}{% endraw %}={{ v }}", { v: 1 })).toBe(
+      "{{ not a tag }}=1",
+    );
+  });
+
+  // Regression: nunjucks searches for the end of a raw block from every position of the rest of the
+  // template, so a 200 000-character template with an unclosed {% raw %} took many seconds to refuse
+  // (this one, 35 000 characters, about half a second).
+  it("are refused when never closed, before nunjucks searches for the end", () => {
+    const template = `x\n{% raw %}${"{% x %}".repeat(5_000)}`;
+    const problems = checkCodeTemplates(definition([{ fileName: "a.txt", format: "text", template }]));
+    expect(problems).toEqual([
+      {
+        path: "inputTemplates.0.template",
+        message: 'a.txt, line 2: {% raw %} is never closed; end it with {% endraw %} (written without "-")',
+      },
+    ]);
+    // nunjucks does not see an end tag written with "-" inside the block.
+    expect(() => renderOne("text", "{% verbatim %}x{%- endverbatim %}", {})).toThrow(/never closed/);
   });
 });

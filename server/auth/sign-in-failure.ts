@@ -58,7 +58,9 @@ export function describeSignInError(error: unknown): SignInFailure {
     error: libraryError.name ?? typeof error,
     reason: libraryError.message ?? String(error),
   };
-  if (typeof libraryError.code === "string") cause.providerError = libraryError.code;
+  if (typeof libraryError.code === "string") {
+    cause[cause.step === "provider" ? "providerError" : "code"] = libraryError.code;
+  }
   const inner = libraryError.oauthError;
   if (inner) {
     // Only the status and the network error: the response body of a token or userinfo request stays out.

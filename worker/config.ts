@@ -23,6 +23,8 @@ const envSchema = z.object({
   WORKER_HOLD_PROBE_INTERVAL_MS: z.coerce.number().int().min(100).default(5000),
   SSH_MAX_CONNECTIONS_PER_TARGET: z.coerce.number().int().min(1).default(2),
   SSH_MAX_CHANNELS_PER_CONNECTION: z.coerce.number().int().min(1).default(8),
+  /** Direct scheduler: seconds between TERM and KILL when a job reaches its wall-time limit. */
+  WORKER_WALL_TIME_GRACE_SECONDS: z.coerce.number().int().min(1).max(600).default(10),
   /** Largest result file collected into the database. */
   WORKER_MAX_ARTIFACT_BYTES: z.coerce
     .number()
@@ -62,6 +64,7 @@ export function loadWorkerConfig(env: NodeJS.ProcessEnv = process.env) {
       maxChannelsPerConnection: e.SSH_MAX_CHANNELS_PER_CONNECTION,
     },
     maxArtifactBytes: e.WORKER_MAX_ARTIFACT_BYTES,
+    wallTimeGraceSeconds: e.WORKER_WALL_TIME_GRACE_SECONDS,
     smtp: { host: e.SMTP_HOST, port: e.SMTP_PORT, secure: false, auth: undefined, from: e.MAIL_FROM },
     logLevel: e.LOG_LEVEL,
   };

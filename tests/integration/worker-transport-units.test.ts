@@ -11,7 +11,13 @@ import path from "node:path";
 import { afterAll, describe, expect, it } from "vitest";
 import { completeUtf8Length, consumableLength } from "../../worker/logs/tail";
 import { directStatusOf } from "../../worker/schedulers/direct";
-import { mapSlurmState, parseExitCode, parseSacct, parseSqueue } from "../../worker/schedulers/slurm";
+import {
+  mapSlurmState,
+  parseExitCode,
+  parseSacct,
+  parseSacctAccounting,
+  parseSqueue,
+} from "../../worker/schedulers/slurm";
 import {
   AuthenticationError,
   classifySshError,
@@ -22,6 +28,7 @@ import {
 import { fingerprintOf, parsePublicKeyLine } from "../../worker/ssh/host-key";
 import { commandLine, shellQuote } from "../../worker/ssh/quote";
 import { assertInside, normaliseBaseDir, parseSha256sum } from "../../worker/ssh/remote-fs";
+import { chargeFor, wallTimeLimitMessage } from "../../worker/steps/collect";
 import { testKeyPair } from "./support/keys";
 
 const scratch = mkdtempSync(path.join(tmpdir(), "sigmaflow-transport-units-"));
@@ -204,6 +211,60 @@ describe("Slurm parsing", () => {
       startedAt: new Date(1_700_000_000_000),
       endedAt: undefined,
     });
+  });
+});
+
+// Regression: a run stopped at its wall-time limit must say so and be charged at most its reservation,
+// on `direct` hosts as on Slurm (TIMEOUT in the squeue/sacct man pages, JOB STATE CODES).
+describe("wall-time limits", () => {
+  it("marks a Slurm TIMEOUT as timed out, in states and in accounting", () => {
+    const sacct = parseSacct("21|TIMEOUT|0:15|1700000000|1700000065\n22|FAILED|1:0|1700000000|1700000005\n");
+    expect(sacct.get("21")).toMatchObject({ state: "failed", exitCode: 143, timedOut: true });
+    expect(sacct.get("22")?.timedOut).toBeUndefined();
+    expect(parseSacctAccounting("21|65|2|TIMEOUT\n", "21", 1)).toEqual({
+      elapsedSeconds: 65,
+      coreSeconds: 130,
+      timedOut: true,
+    });
+    expect(parseSacctAccounting("22|5|2|FAILED\n", "22", 1)?.timedOut).toBe(false);
+    // A requeued job's last row wins; no AllocCPUS falls back to the requested cores.
+    expect(parseSacctAccounting("23|9|4|TIMEOUT\n23|7||COMPLETED\n", "23", 3)).toEqual({
+      elapsedSeconds: 7,
+      coreSeconds: 21,
+      timedOut: false,
+    });
+  });
+
+  it("reads a direct job stopped at its limit as failed and timed out, even with exit status 0", () => {
+    const line = (text: string) => directStatusOf(text.split("|")).status;
+    // index|pid|exit|alive|started|ended|cancelled|locked|timedout
+    expect(line("0|42|143|0|1|2|0|1|1")).toMatchObject({ state: "failed", exitCode: 143, timedOut: true });
+    expect(line("0|42|0|0|1|2|0|1|1")).toMatchObject({ state: "failed", exitCode: 0, timedOut: true });
+    expect(line("0|42||0|1||0|1|1")).toMatchObject({ state: "failed", exitCode: null, timedOut: true });
+    // Cancelled first: a cancel is what the person asked for, not a time-out.
+    expect(line("0|42|143|0|1|2|1|1|1")).toMatchObject({ state: "cancelled", exitCode: 143 });
+    expect(line("0|42|143|0|1|2|1|1|1").timedOut).toBeUndefined();
+  });
+
+  it("charges at most the reservation and states any use beyond it", () => {
+    // 1 core × 1 min reserved = 60 core-seconds; 72.4 core-seconds measured.
+    const over = chargeFor({ reservedCoreSeconds: 60 }, 72.4);
+    expect(over.chargedCoreSeconds).toBe(60);
+    expect(over.overCoreSeconds).toBe(12);
+    // 72 / 3600 = 0.020, 12 / 3600 = 0.003, 60 / 3600 = 0.017 core-hours, three decimals.
+    expect(over.notice).toBe(
+      "It used 0.020 core-hours, 0.003 over its reservation of 0.017; it was charged the reservation",
+    );
+    expect(chargeFor({ reservedCoreSeconds: 60 }, 59.6)).toEqual({
+      chargedCoreSeconds: 60,
+      overCoreSeconds: 0,
+      notice: "",
+    });
+    expect(chargeFor({ reservedCoreSeconds: 600 }, 42.2)).toMatchObject({
+      chargedCoreSeconds: 42,
+      overCoreSeconds: 0,
+    });
+    expect(wallTimeLimitMessage(1)).toBe("Stopped at its wall-time limit of 1 min");
   });
 });
 

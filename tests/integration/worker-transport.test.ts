@@ -10,7 +10,7 @@
  * Waits poll a condition with a deadline; none sleeps a fixed time.
  */
 import { createHash } from "node:crypto";
-import { mkdir, mkdtemp, readFile, rm, stat, symlink, writeFile } from "node:fs/promises";
+import { mkdir, mkdtemp, readdir, readFile, rm, stat, symlink, writeFile } from "node:fs/promises";
 import { tmpdir } from "node:os";
 import path from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
@@ -337,17 +337,28 @@ describe("direct scheduler", () => {
     session = newPool().session(targetFor(cluster.port, cluster.hostPublicKey));
   });
 
-  async function stageJob(name: string, script: string, cores = 1): Promise<JobSubmission> {
+  async function stageJob(
+    name: string,
+    script: string,
+    cores = 1,
+    limits: Pick<JobSubmission, "wallTimeMinutes" | "wallTimeGraceSeconds"> = { wallTimeMinutes: 5 },
+  ): Promise<JobSubmission> {
     const runDir = await prepareRunDir(session, "runs", name);
     await stageFiles(session, runDir, [{ relativePath: "job.sh", content: Buffer.from(script) }]);
-    return {
-      runDir,
-      token: `tok-${name}`,
-      logName: "job.log",
-      scriptName: "job.sh",
-      cores,
-      wallTimeMinutes: 5,
-    };
+    return { runDir, token: `tok-${name}`, logName: "job.log", scriptName: "job.sh", cores, ...limits };
+  }
+
+  /** Live processes whose session is `sid` (field 6 of /proc/<pid>/stat, proc(5)). */
+  async function liveInSession(sid: number): Promise<number[]> {
+    const pids = (await readdir("/proc")).filter((name) => /^\d+$/.test(name)).map(Number);
+    const live: number[] = [];
+    for (const pid of pids) {
+      const stat = await readFile(`/proc/${pid}/stat`, "utf8").catch(() => null);
+      if (!stat) continue;
+      const fields = stat.slice(stat.lastIndexOf(")") + 2).split(" ");
+      if (fields[0] !== "Z" && Number(fields[3]) === sid) live.push(pid);
+    }
+    return live;
   }
 
   async function stateOf(job: JobSubmission & { jobId: string }): Promise<JobStatus | undefined> {
@@ -428,6 +439,94 @@ describe("direct scheduler", () => {
     // Cancelling again, after the end, is harmless.
     await directScheduler.cancel(session, { ...job, jobId });
     expect((await stateOf({ ...job, jobId }))?.state).toBe("cancelled");
+  });
+
+  // Regression: a code that ignores TERM outlived a cancel, still using the host's cores, because the
+  // cancel stopped waiting once the batch script had ended.
+  it("kills what a cancelled job left behind that ignores TERM", async () => {
+    const job = await stageJob(
+      "d-cancel-stubborn",
+      "sh -c \"trap '' TERM; sleep 30\" &\necho $! > child.pid\nwait\n",
+    );
+    const { jobId } = await directScheduler.submit(session, job);
+    await waitFor(
+      () => readFile(path.join(rootDir, "runs/d-cancel-stubborn/child.pid"), "utf8").catch(() => ""),
+      (text) => text.trim() !== "",
+    );
+    const childPid = Number(
+      (await readFile(path.join(rootDir, "runs/d-cancel-stubborn/child.pid"), "utf8")).trim(),
+    );
+    await directScheduler.cancel(session, { ...job, jobId });
+    expect(await isLive(childPid)).toBe(false);
+    expect((await stateOf({ ...job, jobId }))?.state).toBe("cancelled");
+    expect(await liveInSession(Number(jobId))).toEqual([]);
+  });
+
+  // Regression: the direct scheduler did not enforce the wall-time limit, so a job ran (and was
+  // charged) past it. A batch scheduler sends TERM at the limit and KILL after a grace period.
+  it("stops a job at its wall-time limit with TERM and reports it timed out", async () => {
+    // 1/60 min = 1 s; fractions of a minute count to the second.
+    const job = await stageJob("d-limit", "echo $$ > script.pid\nsleep 30\necho late\n", 2, {
+      wallTimeMinutes: 1 / 60,
+    });
+    const { jobId } = await directScheduler.submit(session, job);
+    const status = await waitFor(
+      () => stateOf({ ...job, jobId }),
+      (s) => s?.state !== "running" && s?.state !== "pending",
+    );
+    // POSIX sh: a command ended by a signal has status 128 + n; SIGTERM is 15 on Linux (signal(7)).
+    expect(status).toMatchObject({ state: "failed", exitCode: 143, timedOut: true });
+    const usage = await directScheduler.accounting(session, { ...job, jobId }, 2);
+    expect(usage?.timedOut).toBe(true);
+    // Stopped at 1 s; under 5 s allows a loaded 2-core machine.
+    expect(usage!.elapsedSeconds).toBeGreaterThanOrEqual(1);
+    expect(usage!.elapsedSeconds).toBeLessThan(5);
+    expect(await readFile(path.join(rootDir, "runs/d-limit/job.log"), "utf8")).not.toContain("late");
+    const scriptPid = Number((await readFile(path.join(rootDir, "runs/d-limit/script.pid"), "utf8")).trim());
+    await waitFor(
+      () => isLive(scriptPid),
+      (live) => !live,
+    );
+  });
+
+  it("kills a job that ignores TERM once the grace period after its limit is over", async () => {
+    const job = await stageJob("d-stubborn", "trap '' TERM\nsleep 30 &\necho $! > child.pid\nwait\n", 1, {
+      wallTimeMinutes: 1 / 60,
+      wallTimeGraceSeconds: 1,
+    });
+    const { jobId } = await directScheduler.submit(session, job);
+    const status = await waitFor(
+      () => stateOf({ ...job, jobId }),
+      (s) => s?.state !== "running" && s?.state !== "pending",
+    );
+    // 128 + SIGKILL (9 on Linux, signal(7)), as a shell reports a KILLed command.
+    expect(status).toMatchObject({ state: "failed", exitCode: 137, timedOut: true });
+    const usage = await directScheduler.accounting(session, { ...job, jobId }, 1);
+    // Limit 1 s + grace 1 s; under 6 s allows a loaded 2-core machine.
+    expect(usage!.elapsedSeconds).toBeGreaterThanOrEqual(2);
+    expect(usage!.elapsedSeconds).toBeLessThan(6);
+    const childPid = Number((await readFile(path.join(rootDir, "runs/d-stubborn/child.pid"), "utf8")).trim());
+    await waitFor(
+      () => isLive(childPid),
+      (live) => !live,
+    );
+    expect(await liveInSession(Number(jobId))).toEqual([]);
+  });
+
+  it("leaves no timer behind when a job ends within its limit", async () => {
+    const job = await stageJob("d-in-time", "echo done\n");
+    const { jobId } = await directScheduler.submit(session, job);
+    const status = await waitFor(
+      () => stateOf({ ...job, jobId }),
+      (s) => s?.state === "completed",
+    );
+    expect(status?.timedOut).toBeUndefined();
+    expect((await directScheduler.accounting(session, { ...job, jobId }, 1))?.timedOut).toBe(false);
+    // The wrapper is the session leader (setsid): nothing of the job, its timer included, lives on.
+    await waitFor(
+      () => liveInSession(Number(jobId)),
+      (live) => live.length === 0,
+    );
   });
 
   it("accounts cores × measured wall time", async () => {

@@ -8,6 +8,7 @@
  *   job.ended      epoch seconds when it ended            (written before job.exit)
  *   job.exit       its exit status                        (the completion marker)
  *   job.cancelled  epoch seconds when a cancel was sent
+ *   job.timedout   epoch seconds when the wall-time limit stopped it
  *
  * Every file is written to a temporary name and renamed, so a reader never sees half a value.
  */
@@ -23,7 +24,19 @@ import type { JobAccounting, JobRef, JobStatus, JobSubmission, SchedulerAdapter 
  * enough to record the exit status; the script itself gets TERM's default action (traps reset on exec).
  * It first prints its pid on the pipe the submit reads and closes that pipe, so the submit returns at
  * once with the pid, with no polling; only then does it record its files.
- * $1 = script, $2 = log, both relative to the run folder it starts in.
+ *
+ * The wall-time limit is enforced on the host, as a batch scheduler does, so it holds while no worker
+ * is watching: a timer subshell sleeps until the limit, records job.timedout and sends TERM to the
+ * group; after the grace period it sends KILL to the group, which ends whatever is left (a code that
+ * ignores TERM outlives the batch script that started it) and the wrapper too, so when the script is
+ * still there the timer records job.ended and job.exit (128 + 9, as a shell reports a KILLed command)
+ * first. The timer ignores TERM (its own at the limit, or a cancel's, which ends its sleep and so the
+ * timer); the wrapper stops it with USR1 when the script ended within its limit, and it then kills its
+ * sleep, so no sleeping process outlives the job. USR1 before the trap is set kills the timer (default
+ * action) before it sleeps; `stop` covers one between starting a sleep and learning its pid. The sleep
+ * is killed with KILL: until it execs, the child is a copy of the timer that would ignore TERM.
+ * $1 = script, $2 = log, both relative to the run folder it starts in; $3 = wall-time limit and
+ * $4 = grace period, in whole seconds.
  */
 const WRAPPER = `
 trap '' HUP
@@ -32,14 +45,52 @@ echo $$
 exec > /dev/null
 date +%s.%N > job.started.tmp && mv -f job.started.tmp job.started
 echo $$ > job.pid.tmp && mv -f job.pid.tmp job.pid
+(
+  s=; stop=0
+  trap ':' TERM
+  trap 'stop=1; [ -z "$s" ] || kill -KILL "$s" 2>/dev/null' USR1
+  sleep "$3" & s=$!
+  [ "$stop" = 0 ] || kill -KILL "$s" 2>/dev/null
+  wait "$s" && [ "$stop" = 0 ] || exit 0
+  s=
+  [ -f job.exit ] && exit 0
+  date +%s.%N > job.timedout.tmp && mv -f job.timedout.tmp job.timedout
+  kill -TERM "-$$" 2>/dev/null
+  sleep "$4" & s=$!
+  [ "$stop" = 0 ] || kill -KILL "$s" 2>/dev/null
+  wait "$s" && [ "$stop" = 0 ] || exit 0
+  s=
+  if [ ! -f job.exit ]; then
+    date +%s.%N > job.ended.tmp && mv -f job.ended.tmp job.ended
+    echo 137 > job.exit.tmp && mv -f job.exit.tmp job.exit
+  fi
+  kill -KILL "-$$" 2>/dev/null
+) &
+timer=$!
 sh "$1" > "$2" 2>&1 < /dev/null
 code=$?
+[ -e job.timedout ] || kill -USR1 "$timer" 2>/dev/null
 date +%s.%N > job.ended.tmp && mv -f job.ended.tmp job.ended
 echo "$code" > job.exit.tmp && mv -f job.exit.tmp job.exit
 `;
 
+/** Seconds between TERM and KILL at the wall-time limit, unless a submission asks for another. */
+export const WALL_TIME_GRACE_SECONDS = 10;
+
+/** Every name the direct scheduler writes into a run folder (with its `.tmp` twin while writing). */
+export const DIRECT_JOB_FILES = [
+  "submit.lock",
+  "job.pid",
+  "job.started",
+  "job.ended",
+  "job.exit",
+  "job.cancelled",
+  "job.timedout",
+] as const;
+
 /*
- * $1 = run folder, $2 = script, $3 = log, $4 = wrapper text. Prints "new <pid>" or "existing <pid>".
+ * $1 = run folder, $2 = script, $3 = log, $4 = wrapper text, $5 = wall-time limit and $6 = grace period
+ * in seconds. Prints "new <pid>" or "existing <pid>".
  * The command substitution ends when the wrapper closes its stdout (it keeps running detached). A submit
  * that finds the lock taken waits, bounded (~5 s), for the first one's job.pid.
  */
@@ -48,7 +99,7 @@ set -u
 cd -- "$1" || exit 4
 [ -f "$2" ] || { echo "no batch script $2 in $1" >&2; exit 4; }
 if mkdir submit.lock 2>/dev/null; then
-  pid=$(setsid sh -c "$4" sigmaflow-job "$2" "$3" < /dev/null 2> /dev/null &)
+  pid=$(setsid sh -c "$4" sigmaflow-job "$2" "$3" "$5" "$6" < /dev/null 2> /dev/null &)
   case $pid in ''|*[!0-9]*) echo "the job did not start" >&2; exit 5 ;; esac
   echo "new $pid"
   exit 0
@@ -63,11 +114,11 @@ read -r pid < job.pid
 echo "existing $pid"
 `;
 
-/* $@ = run folders. One line per folder: index|pid|exit|alive|started|ended|cancelled|locked. */
+/* $@ = run folders. One line per folder: index|pid|exit|alive|started|ended|cancelled|locked|timedout. */
 const STATES_SCRIPT = `
 i=0
 for d in "$@"; do
-  pid=; code=; alive=0; started=; ended=; cancelled=0; locked=0
+  pid=; code=; alive=0; started=; ended=; cancelled=0; locked=0; timedout=0
   [ -f "$d/job.pid" ] && read -r pid < "$d/job.pid"
   case $pid in *[!0-9]*) pid= ;; esac
   # Alive is checked before the exit file is read: a job seen alive and then without an exit file is running.
@@ -77,14 +128,17 @@ for d in "$@"; do
   [ -f "$d/job.ended" ] && read -r ended < "$d/job.ended"
   [ -e "$d/job.cancelled" ] && cancelled=1
   [ -d "$d/submit.lock" ] && locked=1
-  printf '%s|%s|%s|%s|%s|%s|%s|%s\\n' "$i" "$pid" "$code" "$alive" "$started" "$ended" "$cancelled" "$locked"
+  [ -e "$d/job.timedout" ] && timedout=1
+  printf '%s|%s|%s|%s|%s|%s|%s|%s|%s\\n' "$i" "$pid" "$code" "$alive" "$started" "$ended" "$cancelled" "$locked" "$timedout"
   i=$((i + 1))
 done
 `;
 
 /*
- * $1 = run folder. TERM to the whole process group, then up to ~5 s for the exit status, then KILL.
- * Nothing to do for a job that already ended or never started.
+ * $1 = run folder. TERM to the whole process group, then up to ~5 s for every process of the group to
+ * end and be reaped (run from another session, `kill -0 -pgid` tells whether any is left: a code that
+ * ignores TERM outlives the batch script and the wrapper), then KILL. Nothing to do for a job that
+ * already ended or never started.
  */
 const CANCEL_SCRIPT = `
 cd -- "$1" || exit 0
@@ -95,7 +149,7 @@ case $pid in ''|*[!0-9]*) echo "bad job.pid" >&2; exit 4 ;; esac
 date +%s.%N > job.cancelled.tmp && mv -f job.cancelled.tmp job.cancelled
 kill -TERM "-$pid" 2>/dev/null || exit 0
 i=0
-while [ ! -f job.exit ] && kill -0 "$pid" 2>/dev/null; do
+while kill -0 "-$pid" 2>/dev/null; do
   i=$((i + 1))
   if [ "$i" -gt 100 ]; then kill -KILL "-$pid" 2>/dev/null; break; fi
   sleep 0.05
@@ -115,14 +169,18 @@ function dateOf(seconds: number | null): Date | undefined {
 
 /** Turns one line of STATES_SCRIPT output into a status; exported for tests of each branch. */
 export function directStatusOf(fields: string[]): { pid: string | null; status: JobStatus } {
-  const [, pid = "", code = "", alive = "0", started, ended, cancelled = "0", locked = "0"] = fields;
+  const [, pid = "", code = "", alive = "0", started, ended, cancelled = "0", locked = "0", timedout = "0"] =
+    fields;
   const times = { startedAt: dateOf(epochSeconds(started)), endedAt: dateOf(epochSeconds(ended)) };
   const exitCode = /^\d+$/.test(code) ? Number(code) : null;
   const wasCancelled = cancelled === "1";
+  // Stopped at the limit is a failure whatever the script's exit status, as Slurm's TIMEOUT is.
+  const timedOut = !wasCancelled && timedout === "1";
+  const stopped = wasCancelled ? "cancelled" : "failed";
   let status: JobStatus;
   if (exitCode !== null) {
-    const state = wasCancelled ? "cancelled" : exitCode === 0 ? "completed" : "failed";
-    status = { state, exitCode, ...times };
+    const state = exitCode === 0 && !wasCancelled && !timedOut ? "completed" : stopped;
+    status = { state, exitCode, ...times, ...(timedOut ? { timedOut } : {}) };
   } else if (pid === "") {
     // Locked but no pid yet: a submit is starting it right now.
     status = { state: locked === "1" ? "pending" : "unknown", exitCode: null };
@@ -130,7 +188,7 @@ export function directStatusOf(fields: string[]): { pid: string | null; status: 
     status = { state: "running", exitCode: null, ...times };
   } else {
     // Gone without an exit status: killed outright (after a cancel's grace period, or by someone else).
-    status = { state: wasCancelled ? "cancelled" : "failed", exitCode: null, ...times };
+    status = { state: stopped, exitCode: null, ...times, ...(timedOut ? { timedOut } : {}) };
   }
   return { pid: pid === "" ? null : pid, status };
 }
@@ -154,7 +212,16 @@ export const directScheduler: SchedulerAdapter = {
 
   async submit(session: RemoteSession, job: JobSubmission) {
     checkNames(job, [job.scriptName]);
-    const argv = shellScript(SUBMIT_SCRIPT, [job.runDir, job.scriptName, job.logName, WRAPPER]);
+    const limitSeconds = Math.max(1, Math.ceil(job.wallTimeMinutes * 60));
+    const graceSeconds = Math.max(1, Math.ceil(job.wallTimeGraceSeconds ?? WALL_TIME_GRACE_SECONDS));
+    const argv = shellScript(SUBMIT_SCRIPT, [
+      job.runDir,
+      job.scriptName,
+      job.logName,
+      WRAPPER,
+      String(limitSeconds),
+      String(graceSeconds),
+    ]);
     const result = await session.exec(argv);
     const match = /^(new|existing) (\d+)$/m.exec(result.stdout.toString("utf8"));
     if (result.code !== 0 || !match) {
@@ -191,9 +258,9 @@ export const directScheduler: SchedulerAdapter = {
   },
 
   async accounting(session: RemoteSession, job: JobRef, cores: number): Promise<JobAccounting | null> {
-    // Read over SFTP: three small files cost the host less than one remote command.
-    const [started, ended, cancelled] = await Promise.all(
-      ["job.started", "job.ended", "job.cancelled"].map((name) =>
+    // Read over SFTP: four small files cost the host less than one remote command.
+    const [started, ended, cancelled, timedOut] = await Promise.all(
+      ["job.started", "job.ended", "job.cancelled", "job.timedout"].map((name) =>
         readSmallFile(session, `${job.runDir}/${name}`),
       ),
     );
@@ -202,6 +269,10 @@ export const directScheduler: SchedulerAdapter = {
     const endedAt = epochSeconds(ended) ?? epochSeconds(cancelled);
     if (startedAt === null || endedAt === null) return null;
     const elapsedSeconds = Math.max(0, endedAt - startedAt);
-    return { elapsedSeconds, coreSeconds: elapsedSeconds * cores };
+    return {
+      elapsedSeconds,
+      coreSeconds: elapsedSeconds * cores,
+      timedOut: timedOut !== undefined && cancelled === undefined,
+    };
   },
 };

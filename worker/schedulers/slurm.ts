@@ -14,6 +14,9 @@ import { assertInside } from "../ssh/remote-fs";
 import type { RemoteSession } from "../ssh/session";
 import type { JobAccounting, JobRef, JobState, JobStatus, JobSubmission, SchedulerAdapter } from "./types";
 
+/** Every name this adapter writes into a run folder (with its `.tmp` twin while writing). */
+export const SLURM_JOB_FILES = ["submit.lock", "job.id"] as const;
+
 /** How far back sacct looks for a finished job by name (it defaults to since midnight without -j). */
 const NAME_LOOKUP_WINDOW = "now-30days";
 
@@ -96,6 +99,11 @@ export function parseExitCode(text: string): number | null {
   return status === 0 && signal > 0 ? 128 + signal : status;
 }
 
+/** Slurm's own state for a job stopped at its time limit (squeue/sacct man pages, "JOB STATE CODES"). */
+export function isSlurmTimeout(slurmState: string): boolean {
+  return slurmState.trim().split(/\s+/)[0]!.replace(/\+$/, "") === "TIMEOUT";
+}
+
 function epochDate(text: string | undefined): Date | undefined {
   if (!text || !/^\d+$/.test(text.trim())) return undefined;
   return new Date(Number(text.trim()) * 1000);
@@ -129,6 +137,7 @@ export function parseSacct(output: string): Map<string, JobStatus> {
       exitCode: isTerminal(mapped) ? parseExitCode(exitCode ?? "") : null,
       startedAt: epochDate(start),
       endedAt: isTerminal(mapped) ? epochDate(end) : undefined,
+      ...(isSlurmTimeout(state) ? { timedOut: true } : {}),
     });
   }
   return jobs;
@@ -230,20 +239,27 @@ export const slurmScheduler: SchedulerAdapter = {
       "-j",
       job.jobId,
       "-o",
-      "JobID,ElapsedRaw,AllocCPUS",
+      "JobID,ElapsedRaw,AllocCPUS,State",
     ]);
     if (result.code !== 0) return null;
-    const row = result.stdout
-      .toString("utf8")
-      .split("\n")
-      .map((line) => line.trim().split("|"))
-      .filter(([id]) => id === job.jobId)
-      .at(-1);
-    if (!row) return null;
-    const elapsedSeconds = Number(row[1]);
-    const allocatedCpus = Number(row[2]);
-    if (!Number.isFinite(elapsedSeconds)) return null;
-    const cpus = Number.isFinite(allocatedCpus) && allocatedCpus > 0 ? allocatedCpus : cores;
-    return { elapsedSeconds, coreSeconds: elapsedSeconds * cpus };
+    return parseSacctAccounting(result.stdout.toString("utf8"), job.jobId, cores);
   },
 };
+
+/**
+ * Parses `sacct -n -X -P -o JobID,ElapsedRaw,AllocCPUS,State` for one job (a requeued job's last row
+ * wins): core-seconds are ElapsedRaw × AllocCPUS, or × the requested cores when Slurm reports none.
+ */
+export function parseSacctAccounting(output: string, jobId: string, cores: number): JobAccounting | null {
+  const row = output
+    .split("\n")
+    .map((line) => line.trim().split("|"))
+    .filter(([id]) => id === jobId)
+    .at(-1);
+  if (!row) return null;
+  const elapsedSeconds = Number(row[1]);
+  const allocatedCpus = Number(row[2]);
+  if (!Number.isFinite(elapsedSeconds)) return null;
+  const cpus = Number.isFinite(allocatedCpus) && allocatedCpus > 0 ? allocatedCpus : cores;
+  return { elapsedSeconds, coreSeconds: elapsedSeconds * cpus, timedOut: isSlurmTimeout(row[3] ?? "") };
+}

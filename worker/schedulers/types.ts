@@ -17,7 +17,13 @@ export type JobRef = {
 
 export type JobSubmission = JobRef & {
   cores: number;
+  /** The limit after which the scheduler stops the job; fractions of a minute count to the second. */
   wallTimeMinutes: number;
+  /**
+   * Direct only: seconds between TERM and KILL when the job reaches its limit (Slurm uses the cluster's
+   * KillWait); the adapter's default when absent.
+   */
+  wallTimeGraceSeconds?: number;
   /** The batch script, relative to runDir. */
   scriptName: string;
   /** Slurm only: partition and account to charge; the cluster's defaults when absent. */
@@ -30,11 +36,18 @@ export type JobState = "pending" | "running" | "completed" | "failed" | "cancell
 export type JobStatus = {
   state: JobState;
   exitCode: number | null;
+  /** The scheduler stopped the job at its wall-time limit (Slurm's TIMEOUT); such a job is "failed". */
+  timedOut?: boolean;
   startedAt?: Date;
   endedAt?: Date;
 };
 
-export type JobAccounting = { elapsedSeconds: number; coreSeconds: number };
+export type JobAccounting = {
+  elapsedSeconds: number;
+  coreSeconds: number;
+  /** Whether the scheduler stopped the job at its wall-time limit. */
+  timedOut: boolean;
+};
 
 export interface SchedulerAdapter {
   kind: "direct" | "slurm";

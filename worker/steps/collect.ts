@@ -38,23 +38,28 @@ export async function collectRun(ctx: WorkerContext, runId: string): Promise<voi
       }
     }
     const usage = await scheduler.accounting(session, job, run.cores);
-    const measuredSeconds = usage?.coreSeconds ?? fallbackCoreSeconds(run);
-    const chargedCoreSeconds = Math.max(0, Math.round(measuredSeconds));
+    const charge = chargeFor(run, usage?.coreSeconds ?? fallbackCoreSeconds(run));
+    const timedOut = usage?.timedOut === true;
     const finalState: RunState = run.cancelRequestedAt
       ? "cancelled"
-      : run.exitCode === 0 && missing.length === 0
+      : run.exitCode === 0 && missing.length === 0 && !timedOut
         ? "done"
         : "failed";
-    const message =
+    const outcome =
       finalState === "done"
         ? `Finished; ${collected.length} result file(s) collected`
         : finalState === "cancelled"
           ? "Cancelled; the scheduler confirmed the job ended"
-          : run.exitCode === null
-            ? "The scheduler reports the job failed; see the log"
-            : run.exitCode !== 0
-              ? `The job ended with exit code ${run.exitCode}; see the log`
-              : `Declared results missing: ${missing.join(", ")}`;
+          : timedOut
+            ? wallTimeLimitMessage(run.wallTimeMinutes)
+            : run.exitCode === null
+              ? "The scheduler reports the job failed; see the log"
+              : run.exitCode !== 0
+                ? `The job ended with exit code ${run.exitCode}; see the log`
+                : `Declared results missing: ${missing.join(", ")}`;
+    const message = charge.overCoreSeconds > 0 ? `${outcome}. ${charge.notice}` : outcome;
+    const chargedCoreSeconds = charge.chargedCoreSeconds;
+    const source = usage ? "scheduler accounting" : "measured by Sigmaflow";
     const settled = await ctx.db.transaction(async (tx) => {
       for (const file of collected) {
         await tx
@@ -81,7 +86,7 @@ export async function collectRun(ctx: WorkerContext, runId: string): Promise<voi
           runId: run.id,
           kind: "charge",
           coreSeconds: chargedCoreSeconds,
-          note: usage ? "scheduler accounting" : "measured by Sigmaflow",
+          note: charge.overCoreSeconds > 0 ? `${source}; ${charge.notice}` : source,
         },
         {
           allocationId: run.allocationId,
@@ -95,6 +100,38 @@ export async function collectRun(ctx: WorkerContext, runId: string): Promise<voi
     });
     if (settled && run.notifyByEmail) await mailSubmitter(ctx, run.id, finalState, message);
   });
+}
+
+/** The reason a run stopped at its limit carries; the same words whichever scheduler stopped it. */
+export function wallTimeLimitMessage(wallTimeMinutes: number): string {
+  return `Stopped at its wall-time limit of ${wallTimeMinutes} min`;
+}
+
+const SECONDS_PER_HOUR = 3600;
+const coreHours = (coreSeconds: number) => (coreSeconds / SECONDS_PER_HOUR).toFixed(3);
+
+/**
+ * What a run is charged. The reservation is the run's worst case (cores × wall-time limit), the amount
+ * the allocation's balance was checked against at creation, so the charge is capped there: a job that
+ * ran past its limit (the grace period before KILL, a scheduler's late kill) never spends more than
+ * was set aside for it. What was used beyond the reservation is stated in `notice`, which goes into
+ * the ledger entry and the run's history.
+ */
+export function chargeFor(
+  run: Pick<typeof runs.$inferSelect, "reservedCoreSeconds">,
+  measuredCoreSeconds: number,
+): { chargedCoreSeconds: number; overCoreSeconds: number; notice: string } {
+  const usedCoreSeconds = Math.max(0, Math.round(measuredCoreSeconds));
+  const chargedCoreSeconds = Math.min(usedCoreSeconds, run.reservedCoreSeconds);
+  const overCoreSeconds = usedCoreSeconds - chargedCoreSeconds;
+  return {
+    chargedCoreSeconds,
+    overCoreSeconds,
+    notice:
+      overCoreSeconds > 0
+        ? `It used ${coreHours(usedCoreSeconds)} core-hours, ${coreHours(overCoreSeconds)} over its reservation of ${coreHours(run.reservedCoreSeconds)}; it was charged the reservation`
+        : "",
+  };
 }
 
 /** Without scheduler accounting: cores × the wall time Sigmaflow saw between start and collection. */

@@ -65,6 +65,7 @@ export async function submitRun(ctx: WorkerContext, runId: string, runtime: RunR
       ...job,
       cores: run.cores,
       wallTimeMinutes: run.wallTimeMinutes,
+      wallTimeGraceSeconds: ctx.config.wallTimeGraceSeconds,
       scriptName: plan.scriptName,
     });
     const moved = await transitionRun(tx, run.id, ["staging"], "submitted", {

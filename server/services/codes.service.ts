@@ -6,13 +6,14 @@
 import { and, asc, eq, inArray, sql } from "drizzle-orm";
 import type { Code, CodeDefinition } from "../../shared/schemas/execution/codes";
 import { codeDefinitionSchema } from "../../shared/schemas/execution/codes";
+import { isReservedRunFileName } from "../../shared/schemas/execution/run-folder";
 import type { Principal } from "../auth/principal";
 import type { Database } from "../db/client";
 import { codes, recipes } from "../db/schema";
 import { outputRuleProblems } from "../execution/output-rules";
 import { compileParameterSchema, ParameterSchemaError } from "../execution/parameters";
 import { checkCodeTemplates } from "../execution/templates";
-import { AppError, conflict, notFound } from "../http/errors";
+import { AppError, conflict, forbidden, notFound } from "../http/errors";
 import { requireGroupRole } from "./access";
 import { recordAudit } from "./audit.service";
 import { requireRoleFor } from "./hosts.service";
@@ -29,7 +30,11 @@ export function toCode(row: CodeRow): Code {
   };
 }
 
-/** Everything wrong with a definition beyond its shape: schema, templates, clashing file names. */
+/**
+ * Everything wrong with a definition beyond its shape: schema, templates, clashing file names, names
+ * Sigmaflow reserves for its own files. Checked here rather than in the contract, which also reads
+ * stored definitions back: a definition stored before a name was reserved must stay readable.
+ */
 export function definitionProblems(definition: CodeDefinition): Problem[] {
   const problems: Problem[] = [];
   try {
@@ -40,6 +45,15 @@ export function definitionProblems(definition: CodeDefinition): Problem[] {
   }
   problems.push(...checkCodeTemplates(definition));
   problems.push(...outputRuleProblems(definition.outputRules));
+  const reserved = (name: string) =>
+    `${name} is a file Sigmaflow writes into run folders itself; give the file another name.`;
+  definition.inputTemplates.forEach((input, index) => {
+    if (isReservedRunFileName(input.fileName))
+      problems.push({ path: `inputTemplates.${index}.fileName`, message: reserved(input.fileName) });
+  });
+  definition.outputFiles.forEach((name, index) => {
+    if (isReservedRunFileName(name)) problems.push({ path: `outputFiles.${index}`, message: reserved(name) });
+  });
   const seen = new Set<string>();
   definition.inputTemplates.forEach((input, index) => {
     if (seen.has(input.fileName)) {
@@ -73,20 +87,15 @@ export async function listCodes(db: Database, principal: Principal, groupId: str
   return rows.map(toCode);
 }
 
-async function codeForCaller(
-  db: Database,
-  principal: Principal,
-  codeId: string,
-  minimum: "collaborator" | "admin",
-) {
+async function codeForCaller(db: Database, principal: Principal, codeId: string) {
   const [row] = await db.select().from(codes).where(eq(codes.id, codeId));
   if (!row) throw notFound("Code");
-  await requireRoleFor(db, principal, row.groupId, minimum, "Code");
-  return row;
+  const role = await requireRoleFor(db, principal, row.groupId, "collaborator", "Code");
+  return { row, role };
 }
 
 export async function getCode(db: Database, principal: Principal, codeId: string): Promise<Code> {
-  return toCode(await codeForCaller(db, principal, codeId, "collaborator"));
+  return toCode((await codeForCaller(db, principal, codeId)).row);
 }
 
 export async function createCode(
@@ -130,8 +139,13 @@ export async function createCode(
   });
 }
 
+/** As for recipes: the group's admins, or the member who registered the code, may delete it. */
 export async function deleteCode(db: Database, principal: Principal, codeId: string, ip: string | null) {
-  const code = await codeForCaller(db, principal, codeId, "admin");
+  const { row: code, role } = await codeForCaller(db, principal, codeId);
+  const isRegistrant = code.createdBy === principal.userId && role !== "collaborator";
+  if (!principal.isSiteAdmin && role !== "admin" && !isRegistrant) {
+    throw forbidden("Only the group's admins or the member who registered the code can delete it.");
+  }
   await db.transaction(async (tx) => {
     // Recipe creation holds FOR SHARE on its codes, so no recipe can start using this one meanwhile.
     await tx.select({ id: codes.id }).from(codes).where(eq(codes.id, codeId)).for("update");

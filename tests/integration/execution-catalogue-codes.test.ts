@@ -142,6 +142,38 @@ describe("registering codes", () => {
     expect(reply.body.error.code).toBe("validation_failed");
   });
 
+  // Regression: a template file could be named sigmaflow.args, the file Sigmaflow writes with each
+  // stage's arguments, and replace it; every name Sigmaflow writes into run folders is refused.
+  it("refuses input and output files named like Sigmaflow's own run-folder files (422), writing nothing", async () => {
+    const before = await counts();
+    const reply = await call("member", "POST", `/api/groups/${groupId}/codes`, {
+      ...minimalCode(),
+      inputTemplates: [
+        { fileName: "input.txt", format: "text", template: "x" },
+        { fileName: "sigmaflow.args", format: "text", template: "--evil" },
+      ],
+      outputFiles: ["result.dat", "job.sh", "job.exit.tmp"],
+    });
+    expect(reply.status, reply.text).toBe(422);
+    expect(reply.body.error.code).toBe("invalid_code_definition");
+    expect(reply.body.error.message).toBe(
+      "The code definition cannot be used: inputTemplates.1.fileName: sigmaflow.args is a file Sigmaflow writes into run folders itself; give the file another name.",
+    );
+    expect(reply.body.error.details.map((d: { path: string }) => d.path)).toEqual([
+      "inputTemplates.1.fileName",
+      "outputFiles.1",
+      "outputFiles.2",
+    ]);
+    const imported = await call("member", "POST", `/api/groups/${groupId}/codes/import`, {
+      format: "sigmaflow-code-definitions",
+      version: 1,
+      codes: [{ ...minimalCode(), outputFiles: ["job.log"] }],
+    });
+    expect(imported.status, imported.text).toBe(422);
+    expect(imported.body.error.details[0].path).toBe("codes.0.outputFiles.0");
+    expect(await counts()).toEqual(before);
+  });
+
   it("does not let collaborators register codes", async () => {
     expect((await call("collaborator", "POST", `/api/groups/${groupId}/codes`, minimalCode())).status).toBe(
       403,
@@ -312,9 +344,26 @@ describe("recipes", () => {
     expect((await call("collaborator", "DELETE", `/api/recipes/${made.body.id}`)).status).toBe(403);
     expect((await call("member", "DELETE", `/api/recipes/${made.body.id}`)).status).toBe(204);
 
-    const lone = await call("member", "POST", `/api/groups/${groupId}/codes`, minimalCode("lone"));
+    const lone = await call("admin", "POST", `/api/groups/${groupId}/codes`, minimalCode("lone"));
     expect((await call("member", "DELETE", `/api/codes/${lone.body.id}`)).status).toBe(403);
     expect((await call("admin", "DELETE", `/api/codes/${lone.body.id}`)).status).toBe(204);
     expect((await call("admin", "GET", `/api/codes/${lone.body.id}`)).status).toBe(404);
+  });
+
+  // Regression: a member could delete their own recipes but not a code they registered (403).
+  it("lets the member who registered an unused code delete it, as with recipes", async () => {
+    const own = await call("member", "POST", `/api/groups/${groupId}/codes`, minimalCode("own"));
+    expect(own.status, own.text).toBe(201);
+    const refused = await call("collaborator", "DELETE", `/api/codes/${own.body.id}`);
+    expect(refused.status).toBe(403);
+    expect(refused.body.error.message).toBe(
+      "Only the group's admins or the member who registered the code can delete it.",
+    );
+    expect((await call("member", "DELETE", `/api/codes/${own.body.id}`)).status).toBe(204);
+    expect((await call("member", "GET", `/api/codes/${own.body.id}`)).status).toBe(404);
+    const audit = await database.pool.query("select action from audit_log where target_id = $1 order by id", [
+      own.body.id,
+    ]);
+    expect(audit.rows.map((r) => r.action)).toEqual(["code.create", "code.delete"]);
   });
 });

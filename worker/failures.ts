@@ -6,7 +6,7 @@
  * so pg-boss retries the item once PostgreSQL is back.
  */
 import { and, eq, inArray, sql } from "drizzle-orm";
-import { hosts, ledgerEntries, memberships, runs, users } from "../server/db/schema";
+import { hostAccounts, hosts, ledgerEntries, memberships, runs, users } from "../server/db/schema";
 import { transitionRun } from "../server/execution/run-transitions";
 import { RUN_STEP_QUEUES, type RunStepName } from "../server/queue/queues";
 import { recordAudit } from "../server/services/audit.service";
@@ -142,6 +142,30 @@ export async function holdHostRuns(ctx: WorkerContext, hostId: string, message: 
 }
 
 /**
+ * The held reason when the host refuses a run's account: which account (user name @ host, personal or
+ * group), since a member's personal account takes priority and a wrong one holds all their runs there.
+ */
+async function refusedAccountMessage(
+  ctx: WorkerContext,
+  run: RunRow,
+  host: HostRow | null,
+  error: AuthenticationError,
+): Promise<string> {
+  const [found] = await ctx.db
+    .select({ username: hostAccounts.username, ownerUserId: hostAccounts.ownerUserId, hostName: hosts.name })
+    .from(hostAccounts)
+    .innerJoin(hosts, eq(hosts.id, hostAccounts.hostId))
+    .where(eq(hostAccounts.id, run.hostAccountId));
+  if (!found) {
+    return `Held: the host refused the run's account (${error.message}). Install the account's public key on the host, then the run resumes.`;
+  }
+  const account = `${found.username}@${host?.name ?? found.hostName}`;
+  return found.ownerUserId === null
+    ? `Held: the host refused the group account ${account} (${error.message}). Install the account's public key for ${found.username} on the host, then the run resumes.`
+    : `Held: the host refused the personal account ${account} (${error.message}). Install the account's public key for ${found.username} on the host, then the run resumes; or disable or replace the account, and new runs use the group account or the replacement.`;
+}
+
+/**
  * Runs `fn` for a step of `run`; on failure decides between retry-later, hold and fail.
  * Returns normally in every handled case, so pg-boss marks the item complete.
  */
@@ -195,12 +219,7 @@ export async function guardStep(
     }
     if (error instanceof AuthenticationError) {
       // Retrying cannot fix a key the host does not accept: a person must install or replace it.
-      await holdRun(
-        ctx,
-        run,
-        step,
-        `Held: the host refused the account's key (${error.message}). Install the account's public key on the host, then the run resumes.`,
-      );
+      await holdRun(ctx, run, step, await refusedAccountMessage(ctx, run, host, error));
       return;
     }
     if (

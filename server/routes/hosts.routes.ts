@@ -8,11 +8,19 @@ import {
   hostAccountSchema,
   hostListSchema,
   hostSchema,
+  patchHostAccountRequestSchema,
+  replaceHostAccountRequestSchema,
 } from "../../shared/schemas/execution/hosts";
 import { patchHostRequestSchema } from "../../shared/schemas/execution/hosts-extra";
 import { requirePrincipal } from "../auth/principal";
 import { parseBody, parseParams, shape } from "../http/validate";
-import { createHostAccount, deleteHostAccount, listHostAccounts } from "../services/host-accounts.service";
+import {
+  createHostAccount,
+  deleteHostAccount,
+  listHostAccounts,
+  replaceHostAccount,
+  setHostAccountDisabled,
+} from "../services/host-accounts.service";
 import {
   confirmHostKey,
   createHost,
@@ -95,6 +103,28 @@ export function hostRoutes(ctx: RouteContext, hostDeps: HostDeps): Router {
       { db, config: ctx.config },
       principal,
       hostId,
+      input,
+      clientIp(req),
+    );
+    res.status(201).json(shape(hostAccountSchema, account));
+  });
+
+  router.patch("/host-accounts/:accountId", async (req, res) => {
+    const principal = requirePrincipal(req);
+    const { accountId } = parseParams(accountParams, req);
+    const { disabled } = parseBody(patchHostAccountRequestSchema, req);
+    const account = await setHostAccountDisabled(db, principal, accountId, disabled, clientIp(req));
+    res.json(shape(hostAccountSchema, account));
+  });
+
+  router.post("/host-accounts/:accountId/replacement", async (req, res) => {
+    const principal = requirePrincipal(req);
+    const { accountId } = parseParams(accountParams, req);
+    const input = parseBody(replaceHostAccountRequestSchema, req);
+    const account = await replaceHostAccount(
+      { db, config: ctx.config },
+      principal,
+      accountId,
       input,
       clientIp(req),
     );

@@ -3,10 +3,18 @@
  * accounts (each researcher their own). Private keys are generated here or pasted once, stored only
  * encrypted (AES-256-GCM, bound to the account id) and never returned: the API shows the public key to
  * install in ~/.ssh/authorized_keys. The worker decrypts them through `loadAccountCredentials`.
+ *
+ * Runs point at the account they used, so an account runs have used is never deleted: its owner or an
+ * admin disables it (new runs then skip it: a member's runs fall back to the group account) or replaces
+ * it with a new one, and may enable it again. At most one enabled account per owner and host.
  */
 import { randomUUID } from "node:crypto";
 import { and, asc, eq, isNull, or, sql } from "drizzle-orm";
-import type { CreateHostAccountRequest, HostAccount } from "../../shared/schemas/execution/hosts";
+import type {
+  CreateHostAccountRequest,
+  HostAccount,
+  ReplaceHostAccountRequest,
+} from "../../shared/schemas/execution/hosts";
 import { fingerprintOf } from "../../worker/ssh/host-key";
 import type { Principal } from "../auth/principal";
 import { createSecretBox } from "../crypto/secret-box";
@@ -15,7 +23,7 @@ import type { Database, DbExecutor } from "../db/client";
 import { hostAccounts, hosts, runs } from "../db/schema";
 import { AppError, conflict, forbidden, notFound } from "../http/errors";
 import { recordAudit } from "./audit.service";
-import { hostForCaller, pgErrorCode, requireRoleFor } from "./hosts.service";
+import { type HostRow, hostForCaller, pgErrorCode, requireRoleFor } from "./hosts.service";
 
 export type SecretsConfig = { secretsKey: string };
 export type HostAccountDeps = { db: Database; config: SecretsConfig };
@@ -32,11 +40,14 @@ function toHostAccount(row: AccountRow): HostAccount {
     ownerUserId: row.ownerUserId,
     username: row.username,
     publicKey: row.publicKey,
+    disabledAt: row.disabledAt?.toISOString() ?? null,
     createdAt: row.createdAt.toISOString(),
   };
 }
 
-function keyPairFor(input: CreateHostAccountRequest, comment: string): SshKeyPair {
+const kindOf = (row: Pick<AccountRow, "ownerUserId">) => (row.ownerUserId === null ? "group" : "personal");
+
+function keyPairFor(input: { privateKey?: string }, comment: string): SshKeyPair {
   if (input.privateKey === undefined) return generateSshKeyPair(comment);
   try {
     return parsePrivateKey(input.privateKey, comment);
@@ -50,6 +61,65 @@ function keyPairFor(input: CreateHostAccountRequest, comment: string): SshKeyPai
   }
 }
 
+const alreadyThere = (kind: "personal" | "group", mine: boolean) =>
+  conflict(
+    kind === "group"
+      ? "This host already has an enabled group account: disable or replace it before setting up another."
+      : mine
+        ? "You already have an enabled personal account on this host: disable or replace it before setting up another."
+        : "This member already has an enabled personal account on this host: disable or replace it first.",
+  );
+
+/** Inside a transaction that locked the host row: refuses a second enabled account of the same owner. */
+async function requireNoEnabledAccount(
+  tx: DbExecutor,
+  hostId: string,
+  ownerUserId: string | null,
+  mine: boolean,
+): Promise<void> {
+  const [existing] = await tx
+    .select({ id: hostAccounts.id })
+    .from(hostAccounts)
+    .where(
+      and(
+        eq(hostAccounts.hostId, hostId),
+        isNull(hostAccounts.disabledAt),
+        ownerUserId === null ? isNull(hostAccounts.ownerUserId) : eq(hostAccounts.ownerUserId, ownerUserId),
+      ),
+    );
+  if (existing) throw alreadyThere(ownerUserId === null ? "group" : "personal", mine);
+}
+
+/** Serialises account changes per host; the unique index alone would answer a race with a bare 23505. */
+async function lockHostRow(tx: DbExecutor, hostId: string): Promise<void> {
+  await tx.select({ id: hosts.id }).from(hosts).where(eq(hosts.id, hostId)).for("update");
+}
+
+type NewAccount = {
+  id: string;
+  publicKey: string;
+  sealed: Buffer;
+  keyType: string;
+  key: "generated" | "imported";
+};
+
+function newAccount(
+  deps: HostAccountDeps,
+  input: { username: string; privateKey?: string },
+  host: HostRow,
+): NewAccount {
+  const pair = keyPairFor(input, `sigmaflow-${input.username}@${host.name}`);
+  const id = randomUUID();
+  const sealed = createSecretBox(deps.config.secretsKey).seal(pair.privateKey, associatedData(id));
+  return {
+    id,
+    publicKey: pair.publicKey,
+    sealed,
+    keyType: pair.type,
+    key: input.privateKey === undefined ? "generated" : "imported",
+  };
+}
+
 export async function createHostAccount(
   deps: HostAccountDeps,
   principal: Principal,
@@ -60,40 +130,20 @@ export async function createHostAccount(
   const { db } = deps;
   const { host } = await hostForCaller(db, principal, hostId, input.kind === "group" ? "admin" : "member");
   const ownerUserId = input.kind === "group" ? null : principal.userId;
-  const pair = keyPairFor(input, `sigmaflow-${input.username}@${host.name}`);
-  const id = randomUUID();
-  const sealed = createSecretBox(deps.config.secretsKey).seal(pair.privateKey, associatedData(id));
-  const alreadyThere = () =>
-    conflict(
-      input.kind === "group"
-        ? "This host already has a group account: delete it before setting up another."
-        : "You already have a personal account on this host: delete it before setting up another.",
-    );
+  const account = newAccount(deps, input, host);
   try {
     return await db.transaction(async (tx) => {
-      // Serialises account creation per host; the unique index cannot see two NULL owners as equal.
-      await tx.select({ id: hosts.id }).from(hosts).where(eq(hosts.id, hostId)).for("update");
-      const [existing] = await tx
-        .select({ id: hostAccounts.id })
-        .from(hostAccounts)
-        .where(
-          and(
-            eq(hostAccounts.hostId, hostId),
-            ownerUserId === null
-              ? isNull(hostAccounts.ownerUserId)
-              : eq(hostAccounts.ownerUserId, ownerUserId),
-          ),
-        );
-      if (existing) throw alreadyThere();
+      await lockHostRow(tx, hostId);
+      await requireNoEnabledAccount(tx, hostId, ownerUserId, true);
       const [row] = await tx
         .insert(hostAccounts)
         .values({
-          id,
+          id: account.id,
           hostId,
           ownerUserId,
           username: input.username,
-          publicKey: pair.publicKey,
-          privateKeyEncrypted: sealed,
+          publicKey: account.publicKey,
+          privateKeyEncrypted: account.sealed,
         })
         .returning();
       await recordAudit(tx, {
@@ -101,26 +151,26 @@ export async function createHostAccount(
         groupId: host.groupId,
         action: "host_account.create",
         targetType: "host_account",
-        targetId: id,
+        targetId: account.id,
         details: {
           hostId,
           kind: input.kind,
           username: input.username,
-          key: input.privateKey === undefined ? "generated" : "imported",
-          keyType: pair.type,
-          publicKeyFingerprint: fingerprintOf(pair.publicKey),
+          key: account.key,
+          keyType: account.keyType,
+          publicKeyFingerprint: fingerprintOf(account.publicKey),
         },
         ip,
       });
       return toHostAccount(row!);
     });
   } catch (error) {
-    if (pgErrorCode(error) === "23505") throw alreadyThere();
+    if (pgErrorCode(error) === "23505") throw alreadyThere(input.kind, true);
     throw error;
   }
 }
 
-/** Admins see every account of the host; others the group account and their own. */
+/** Admins see every account of the host; others the group account and their own. Enabled ones first. */
 export async function listHostAccounts(
   db: Database,
   principal: Principal,
@@ -138,12 +188,41 @@ export async function listHostAccounts(
     .select()
     .from(hostAccounts)
     .where(visible)
-    .orderBy(sql`${hostAccounts.ownerUserId} is not null`, asc(hostAccounts.createdAt));
+    .orderBy(
+      sql`${hostAccounts.disabledAt} is not null`,
+      sql`${hostAccounts.ownerUserId} is not null`,
+      asc(hostAccounts.createdAt),
+    );
   return rows.map(toHostAccount);
 }
 
+/**
+ * An account and its host, for a change only its owner or an admin may make: the group account is the
+ * admins' alone. Callers outside the group get 404, like the account itself were missing.
+ */
+async function accountForChange(db: DbExecutor, principal: Principal, accountId: string, what: string) {
+  const [found] = await db
+    .select({ account: hostAccounts, host: hosts })
+    .from(hostAccounts)
+    .innerJoin(hosts, eq(hosts.id, hostAccounts.hostId))
+    .where(eq(hostAccounts.id, accountId));
+  if (!found) throw notFound("Host account");
+  const role = await requireRoleFor(db, principal, found.host.groupId, "collaborator", "Host account");
+  const isOwner = found.account.ownerUserId !== null && found.account.ownerUserId === principal.userId;
+  if (!isOwner && !principal.isSiteAdmin && role !== "admin") {
+    throw forbidden(
+      found.account.ownerUserId === null
+        ? `Only a group admin can ${what} the group account.`
+        : `Only the account's owner or a group admin can ${what} it.`,
+    );
+  }
+  return found;
+}
+
 const usedByRuns = () =>
-  conflict("Runs have used this account, and their records point at it, so it cannot be deleted.");
+  conflict(
+    "Runs have used this account, and their records point at it, so it cannot be deleted: disable it (new runs then skip it) or replace it.",
+  );
 
 export async function deleteHostAccount(
   db: Database,
@@ -151,17 +230,7 @@ export async function deleteHostAccount(
   accountId: string,
   ip: string | null,
 ): Promise<void> {
-  const [found] = await db
-    .select({ account: hostAccounts, groupId: hosts.groupId })
-    .from(hostAccounts)
-    .innerJoin(hosts, eq(hosts.id, hostAccounts.hostId))
-    .where(eq(hostAccounts.id, accountId));
-  if (!found) throw notFound("Host account");
-  const role = await requireRoleFor(db, principal, found.groupId, "collaborator", "Host account");
-  const isOwner = found.account.ownerUserId === principal.userId;
-  if (!isOwner && !principal.isSiteAdmin && role !== "admin") {
-    throw forbidden("Only the account's owner or a group admin can delete it.");
-  }
+  const found = await accountForChange(db, principal, accountId, "delete");
   try {
     await db.transaction(async (tx) => {
       const [used] = await tx
@@ -173,13 +242,13 @@ export async function deleteHostAccount(
       await tx.delete(hostAccounts).where(eq(hostAccounts.id, accountId));
       await recordAudit(tx, {
         actorUserId: principal.userId,
-        groupId: found.groupId,
+        groupId: found.host.groupId,
         action: "host_account.delete",
         targetType: "host_account",
         targetId: accountId,
         details: {
           hostId: found.account.hostId,
-          kind: found.account.ownerUserId === null ? "group" : "personal",
+          kind: kindOf(found.account),
           username: found.account.username,
         },
         ip,
@@ -187,6 +256,113 @@ export async function deleteHostAccount(
     });
   } catch (error) {
     if (pgErrorCode(error) === "23503") throw usedByRuns();
+    throw error;
+  }
+}
+
+/**
+ * Disables or enables an account. Disabling only changes which account new runs choose; runs that
+ * already use it keep it. Enabling is refused while the owner has another enabled account there.
+ */
+export async function setHostAccountDisabled(
+  db: Database,
+  principal: Principal,
+  accountId: string,
+  disabled: boolean,
+  ip: string | null,
+): Promise<HostAccount> {
+  const found = await accountForChange(db, principal, accountId, disabled ? "disable" : "enable");
+  const mine = found.account.ownerUserId === principal.userId;
+  try {
+    return await db.transaction(async (tx) => {
+      await lockHostRow(tx, found.host.id);
+      const [current] = await tx.select().from(hostAccounts).where(eq(hostAccounts.id, accountId));
+      if (!current) throw notFound("Host account");
+      if ((current.disabledAt !== null) === disabled) return toHostAccount(current);
+      if (!disabled) await requireNoEnabledAccount(tx, current.hostId, current.ownerUserId, mine);
+      const [row] = await tx
+        .update(hostAccounts)
+        .set(
+          disabled
+            ? { disabledAt: new Date(), disabledBy: principal.userId }
+            : { disabledAt: null, disabledBy: null },
+        )
+        .where(eq(hostAccounts.id, accountId))
+        .returning();
+      await recordAudit(tx, {
+        actorUserId: principal.userId,
+        groupId: found.host.groupId,
+        action: disabled ? "host_account.disable" : "host_account.enable",
+        targetType: "host_account",
+        targetId: accountId,
+        details: { hostId: current.hostId, kind: kindOf(current), username: current.username },
+        ip,
+      });
+      return toHostAccount(row!);
+    });
+  } catch (error) {
+    if (pgErrorCode(error) === "23505") throw alreadyThere(kindOf(found.account), mine);
+    throw error;
+  }
+}
+
+/**
+ * Replaces an account with a new one of the same kind and owner (another user name or key): the old
+ * one is disabled, so runs that used it keep their record, and new runs use the replacement.
+ */
+export async function replaceHostAccount(
+  deps: HostAccountDeps,
+  principal: Principal,
+  accountId: string,
+  input: ReplaceHostAccountRequest,
+  ip: string | null,
+): Promise<HostAccount> {
+  const { db } = deps;
+  const found = await accountForChange(db, principal, accountId, "replace");
+  const { ownerUserId } = found.account;
+  const mine = ownerUserId === principal.userId;
+  const account = newAccount(deps, input, found.host);
+  try {
+    return await db.transaction(async (tx) => {
+      await lockHostRow(tx, found.host.id);
+      const disabled = await tx
+        .update(hostAccounts)
+        .set({ disabledAt: new Date(), disabledBy: principal.userId })
+        .where(and(eq(hostAccounts.id, accountId), isNull(hostAccounts.disabledAt)))
+        .returning({ id: hostAccounts.id });
+      await requireNoEnabledAccount(tx, found.host.id, ownerUserId, mine);
+      const [row] = await tx
+        .insert(hostAccounts)
+        .values({
+          id: account.id,
+          hostId: found.host.id,
+          ownerUserId,
+          username: input.username,
+          publicKey: account.publicKey,
+          privateKeyEncrypted: account.sealed,
+        })
+        .returning();
+      await recordAudit(tx, {
+        actorUserId: principal.userId,
+        groupId: found.host.groupId,
+        action: "host_account.replace",
+        targetType: "host_account",
+        targetId: account.id,
+        details: {
+          hostId: found.host.id,
+          kind: kindOf(found.account),
+          replaced: { id: accountId, username: found.account.username, disabledNow: disabled.length > 0 },
+          username: input.username,
+          key: account.key,
+          keyType: account.keyType,
+          publicKeyFingerprint: fingerprintOf(account.publicKey),
+        },
+        ip,
+      });
+      return toHostAccount(row!);
+    });
+  } catch (error) {
+    if (pgErrorCode(error) === "23505") throw alreadyThere(kindOf(found.account), mine);
     throw error;
   }
 }
@@ -208,7 +384,11 @@ export async function loadAccountCredentials(
 
 export type ChosenAccount = { id: string; username: string; kind: "personal" | "group" };
 
-/** The account a run of this user goes out with: their personal one, else the group's, else none. */
+/**
+ * The account a run of this user goes out with: their enabled personal one, else the group's enabled
+ * one, else none. A disabled account is skipped, which is how a member whose personal account the host
+ * refuses gets back to the group account.
+ */
 export async function chooseAccount(
   db: DbExecutor,
   hostId: string,
@@ -220,11 +400,12 @@ export async function chooseAccount(
     .where(
       and(
         eq(hostAccounts.hostId, hostId),
+        isNull(hostAccounts.disabledAt),
         or(eq(hostAccounts.ownerUserId, userId), isNull(hostAccounts.ownerUserId)),
       ),
     )
     .orderBy(sql`${hostAccounts.ownerUserId} is null`)
     .limit(1);
   if (!row) return null;
-  return { id: row.id, username: row.username, kind: row.ownerUserId === null ? "group" : "personal" };
+  return { id: row.id, username: row.username, kind: kindOf(row) };
 }

@@ -26,6 +26,7 @@ let cluster: TestCluster;
 const tokens = new Map<Caller, string>();
 let groupId = "";
 let groupAdminId = "";
+let memberId = "";
 let hostId = "";
 let codeId = "";
 let recipeId = "";
@@ -51,25 +52,29 @@ async function freshHost(): Promise<string> {
   return row!.id;
 }
 
-async function freshGroupAccount(): Promise<string> {
+/** An account on a fresh host: the group's (no owner) or someone's personal one; enabled unless said. */
+async function freshAccount(ownerUserId: string | null = null, disabled = false): Promise<string> {
   const [row] = await database.db
     .insert(hostAccounts)
     .values({
       hostId: await freshHost(),
-      ownerUserId: null,
-      username: "shared",
+      ownerUserId,
+      username: ownerUserId === null ? "shared" : "researcher",
       publicKey: "ssh-ed25519 AAAA",
       privateKeyEncrypted: Buffer.from("unused"),
+      disabledAt: disabled ? new Date() : null,
     })
     .returning();
   return row!.id;
 }
 
-async function freshCode(): Promise<string> {
+const freshGroupAccount = () => freshAccount(null);
+
+async function freshCode(createdBy: string | null = null): Promise<string> {
   const definition = minimalCode();
   const [row] = await database.db
     .insert(codes)
-    .values({ groupId, name: definition.name, version: definition.version, definition })
+    .values({ groupId, name: definition.name, version: definition.version, definition, createdBy })
     .returning();
   return row!.id;
 }
@@ -162,6 +167,55 @@ const CASES: MatrixCase[] = [
     path: async () => `/api/host-accounts/${await freshGroupAccount()}`,
     expected: groupAdminOnly(204),
   },
+  {
+    name: "disable the group account",
+    method: "PATCH",
+    path: async () => `/api/host-accounts/${await freshGroupAccount()}`,
+    body: () => ({ disabled: true }),
+    expected: groupAdminOnly(200),
+  },
+  {
+    name: "enable a disabled group account",
+    method: "PATCH",
+    path: async () => `/api/host-accounts/${await freshAccount(null, true)}`,
+    body: () => ({ disabled: false }),
+    expected: groupAdminOnly(200),
+  },
+  {
+    name: "disable one's own personal account (the member's)",
+    method: "PATCH",
+    path: async () => `/api/host-accounts/${await freshAccount(memberId)}`,
+    body: () => ({ disabled: true }),
+    expected: groupWrite(200),
+  },
+  {
+    name: "disable someone else's personal account",
+    method: "PATCH",
+    path: async () => `/api/host-accounts/${await freshAccount(groupAdminId)}`,
+    body: () => ({ disabled: true }),
+    expected: groupAdminOnly(200),
+  },
+  {
+    name: "replace the group account",
+    method: "POST",
+    path: async () => `/api/host-accounts/${await freshGroupAccount()}/replacement`,
+    body: () => ({ username: "shared2" }),
+    expected: groupAdminOnly(201),
+  },
+  {
+    name: "replace one's own personal account (the member's)",
+    method: "POST",
+    path: async () => `/api/host-accounts/${await freshAccount(memberId)}/replacement`,
+    body: () => ({ username: "researcher2" }),
+    expected: groupWrite(201),
+  },
+  {
+    name: "replace someone else's personal account",
+    method: "POST",
+    path: async () => `/api/host-accounts/${await freshAccount(groupAdminId)}/replacement`,
+    body: () => ({ username: "researcher2" }),
+    expected: groupAdminOnly(201),
+  },
   { name: "list codes", method: "GET", path: () => `/api/groups/${groupId}/codes`, expected: groupRead(200) },
   {
     name: "register a code",
@@ -172,10 +226,17 @@ const CASES: MatrixCase[] = [
   },
   { name: "read a code", method: "GET", path: () => `/api/codes/${codeId}`, expected: groupRead(200) },
   {
-    name: "delete a code",
+    name: "delete a code someone else registered",
     method: "DELETE",
-    path: async () => `/api/codes/${await freshCode()}`,
+    path: async () => `/api/codes/${await freshCode(groupAdminId)}`,
     expected: groupAdminOnly(204),
+  },
+  {
+    // As with recipes, the member who registered a code may delete it.
+    name: "delete a code one registered (the member's)",
+    method: "DELETE",
+    path: async () => `/api/codes/${await freshCode(memberId)}`,
+    expected: groupWrite(204),
   },
   {
     name: "export codes",
@@ -245,6 +306,7 @@ beforeAll(async () => {
   const otherAdmin = await createUser(db, "other-admin");
   const siteAdmin = await createUser(db, "site-admin", { siteAdmin: true });
   groupAdminId = groupAdmin.id;
+  memberId = member.id;
   await addMember(db, collaborator.id, group.id, "collaborator");
   await addMember(db, member.id, group.id, "member");
   await addMember(db, groupAdmin.id, group.id, "admin");

@@ -18,7 +18,6 @@ import {
   primaryKey,
   text,
   timestamp,
-  unique,
   uniqueIndex,
   uuid,
   varchar,
@@ -83,11 +82,20 @@ export const hostAccounts = pgTable(
     publicKey: text("public_key").notNull(),
     /** AES-256-GCM: iv (12 bytes) ‖ tag (16 bytes) ‖ ciphertext of the OpenSSH private key. */
     privateKeyEncrypted: bytea("private_key_encrypted").notNull(),
+    /**
+     * Set while the account is disabled (by its owner or an admin, or by replacing it): new runs skip
+     * it, runs that used it keep pointing at it and still finish with it.
+     */
+    disabledAt: timestamp("disabled_at", { withTimezone: true }),
+    disabledBy: uuid("disabled_by").references(() => users.id, { onDelete: "set null" }),
     createdAt: createdAt(),
   },
   (t) => [
-    // One personal account per person and one group account (owner null) per host.
-    unique("host_accounts_owner_key").on(t.hostId, t.ownerUserId).nullsNotDistinct(),
+    // One enabled personal account per person and one enabled group account (owner null) per host;
+    // disabled ones stay as the record of the runs that used them.
+    uniqueIndex("host_accounts_enabled_owner_key")
+      .on(t.hostId, sql`coalesce(${t.ownerUserId}, '00000000-0000-0000-0000-000000000000'::uuid)`)
+      .where(sql`${t.disabledAt} is null`),
     index("host_accounts_host_idx").on(t.hostId),
   ],
 );

@@ -51,6 +51,8 @@ export const hostAccountSchema = z.object({
   username: z.string(),
   /** Install this line in ~/.ssh/authorized_keys on the host. */
   publicKey: z.string(),
+  /** When it was disabled (new runs skip it; runs that used it keep it); null while enabled. */
+  disabledAt: isoDateTimeSchema.nullable(),
   createdAt: isoDateTimeSchema,
 });
 export type HostAccount = z.infer<typeof hostAccountSchema>;
@@ -67,3 +69,11 @@ export const createHostAccountRequestSchema = z.strictObject({
   privateKey: z.string().max(20_000).optional(),
 });
 export type CreateHostAccountRequest = z.infer<typeof createHostAccountRequestSchema>;
+
+/** A replacement for an account: same kind and owner, another user name or key. */
+export const replaceHostAccountRequestSchema = createHostAccountRequestSchema.omit({ kind: true });
+export type ReplaceHostAccountRequest = z.infer<typeof replaceHostAccountRequestSchema>;
+
+/** Disables an account (new runs skip it) or enables it again. */
+export const patchHostAccountRequestSchema = z.strictObject({ disabled: z.boolean() });
+export type PatchHostAccountRequest = z.infer<typeof patchHostAccountRequestSchema>;

@@ -5,6 +5,7 @@
 import { type BebOrbital, bebOrbitalSchema } from "../../shared/schemas/science-ionization";
 import { bebCrossSections } from "../../shared/science/ionization/beb";
 import { CliError } from "../errors";
+import { assertFiniteResult } from "../lib/finite-output";
 import {
   formatNumber,
   formatTable,
@@ -87,16 +88,17 @@ export async function run(args: string[]): Promise<number> {
   const result = withScienceErrors(() =>
     bebCrossSections({ orbitals, energiesEv, variant: options.ion ? "singly-charged-ion" : "neutral" }),
   );
+  const document = {
+    energiesEv: Array.from(result.energiesEv),
+    variant: result.variant,
+    crossSectionA2: Array.from(result.totalA2),
+    orbitals: result.orbitals.map((orbital, i) => ({
+      ...orbital,
+      crossSectionA2: Array.from(result.orbitalA2[i]!),
+    })),
+  };
+  assertFiniteResult(document, "BEB ionization cross sections");
   if (options.json) {
-    const document = {
-      energiesEv: Array.from(result.energiesEv),
-      variant: result.variant,
-      crossSectionA2: Array.from(result.totalA2),
-      orbitals: result.orbitals.map((orbital, i) => ({
-        ...orbital,
-        crossSectionA2: Array.from(result.orbitalA2[i]!),
-      })),
-    };
     process.stdout.write(`${JSON.stringify(document)}\n`);
     return 0;
   }

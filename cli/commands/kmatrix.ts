@@ -7,6 +7,7 @@ import {
   kMatrixCrossSectionResultToJson,
 } from "../../shared/science/kmatrix/cross-sections-from-document";
 import { CliError } from "../errors";
+import { assertFiniteResult } from "../lib/finite-output";
 import {
   formatNumber,
   formatTable,
@@ -50,12 +51,14 @@ export async function run(args: string[]): Promise<number> {
     process.stdout.write(USAGE);
     return 0;
   }
-  const document = readJsonFile(requireOption(options.input, "--input"), "K-matrix input");
+  const input = readJsonFile(requireOption(options.input, "--input"), "K-matrix input");
   const result = withScienceErrors(() =>
-    computeKMatrixCrossSections(document, { continuousEigenphaseSum: options["continuous-eigenphase"] }),
+    computeKMatrixCrossSections(input, { continuousEigenphaseSum: options["continuous-eigenphase"] }),
   );
+  const document = kMatrixCrossSectionResultToJson(result);
+  assertFiniteResult(document, "K-matrix cross sections");
   if (options.json) {
-    process.stdout.write(`${JSON.stringify(kMatrixCrossSectionResultToJson(result))}\n`);
+    process.stdout.write(`${JSON.stringify(document)}\n`);
     return 0;
   }
   const energies = Array.from(result.energiesEv);

@@ -6,6 +6,7 @@ import { tailExtrapolationSchema } from "../../shared/schemas/science-rates";
 import { fitModifiedArrhenius } from "../../shared/science/rates/arrhenius-fit";
 import { maxwellianRateCoefficients } from "../../shared/science/rates/maxwellian-rate";
 import { CliError } from "../errors";
+import { assertFiniteResult } from "../lib/finite-output";
 import {
   formatNumber,
   formatTable,
@@ -98,14 +99,15 @@ export async function run(args: string[]): Promise<number> {
     }
   });
 
+  const document = {
+    temperaturesK: Array.from(rates.temperaturesK),
+    rateCm3PerS: Array.from(rates.rateCm3PerS),
+    tail: rates.tail,
+    maxwellianFractionBeyondTable: Array.from(rates.maxwellianFractionBeyondTable),
+    ...(arrhenius ? { arrhenius } : {}),
+  };
+  assertFiniteResult(document, "Maxwellian rate coefficients");
   if (options.json) {
-    const document = {
-      temperaturesK: Array.from(rates.temperaturesK),
-      rateCm3PerS: Array.from(rates.rateCm3PerS),
-      tail: rates.tail,
-      maxwellianFractionBeyondTable: Array.from(rates.maxwellianFractionBeyondTable),
-      ...(arrhenius ? { arrhenius } : {}),
-    };
     process.stdout.write(`${JSON.stringify(document)}\n`);
     return 0;
   }

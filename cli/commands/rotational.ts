@@ -4,6 +4,7 @@
  */
 import { dipoleBornCrossSections } from "../../shared/science/rotational/dipole-born";
 import { CliError } from "../errors";
+import { assertFiniteResult } from "../lib/finite-output";
 import {
   formatNumber,
   formatTable,
@@ -76,15 +77,16 @@ export async function run(args: string[]): Promise<number> {
     energiesEv: parseNumberList(requireOption(options["energies-ev"], "--energies-ev"), "--energies-ev"),
   };
   const result = withScienceErrors(() => dipoleBornCrossSections(request));
+  const document = {
+    j: result.j,
+    jFinal: result.jFinal,
+    kProjection: result.kProjection,
+    thresholdEv: result.thresholdEv,
+    energiesEv: Array.from(result.energiesEv),
+    crossSectionA2: Array.from(result.crossSectionA2),
+  };
+  assertFiniteResult(document, "Dipole Born cross sections");
   if (options.json) {
-    const document = {
-      j: result.j,
-      jFinal: result.jFinal,
-      kProjection: result.kProjection,
-      thresholdEv: result.thresholdEv,
-      energiesEv: Array.from(result.energiesEv),
-      crossSectionA2: Array.from(result.crossSectionA2),
-    };
     process.stdout.write(`${JSON.stringify(document)}\n`);
     return 0;
   }

@@ -15,6 +15,7 @@ import {
   splitCommand,
   writeJson,
 } from "../lib/args";
+import { assertFiniteResult } from "../lib/finite-output";
 import { formatTable, readTextFile, withScienceErrors } from "../lib/input-files";
 
 const COMMANDS = {
@@ -151,8 +152,10 @@ async function inspect(args: string[]): Promise<number> {
     return { report, basis, sphere };
   });
 
+  const document = { ...report, basisCoverage: basis, sphere };
+  assertFiniteResult(document, "Target inspection");
   if (values.json) {
-    writeJson({ ...report, basisCoverage: basis, sphere });
+    writeJson(document);
     return 0;
   }
   const extras: string[] = [];

@@ -14,6 +14,7 @@
 import { getElementByNumber, isElementSymbol } from "../elements/isotopes";
 import { ScienceInputError } from "../errors";
 import type { Vec3 } from "./linear-algebra";
+import { coordinateRangeProblem } from "./target";
 
 /** One atom as written in the input, before isotopes are resolved. */
 export interface ParsedAtom {
@@ -55,6 +56,8 @@ function parseCoordinate(token: string, lineNumber: number, axis: string): numbe
       token,
     });
   }
+  const problem = coordinateRangeProblem(value, `Line ${lineNumber}: ${axis} coordinate`, token);
+  if (problem) throw new ScienceInputError(problem, { line: lineNumber, token });
   return value;
 }
 
@@ -132,8 +135,9 @@ function parseAtomLine(text: string, lineNumber: number): ParsedAtom {
  *
  * @param text - file contents
  * @returns atoms in input order with their line numbers, the XYZ comment and the layout found
- * @throws ScienceInputError with the 1-based line number for malformed lines, unknown symbols, a count
- *   that does not match the atom lines, or an input with no atoms
+ * @throws ScienceInputError with the 1-based line number for malformed lines, unknown symbols, coordinates
+ *   beyond ±1e6 Å (MAX_COORDINATE_ANGSTROM), a count that does not match the atom lines, or an input with
+ *   no atoms
  */
 export function parseGeometry(text: string): ParsedGeometry {
   const lines = text.replace(/\r\n?/g, "\n").split("\n");

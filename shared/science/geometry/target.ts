@@ -20,6 +20,34 @@ export interface TargetAtom {
 /** Atoms closer than this are treated as an input mistake (duplicated line), not as a molecule. */
 export const MIN_ATOM_SEPARATION_ANGSTROM = 0.1;
 
+/**
+ * Largest accepted |x|, |y| or |z| in Å. No molecule is a tenth of a millimetre across, so a larger
+ * coordinate is a units or formatting error; within it, doubles resolve positions to ~1e-10 Å (far below
+ * the smallest symmetry tolerance, 1e-6 Å) and moments of inertia (≤ 2000 atoms × 300 u × (2e6 Å)²) and
+ * every other product of coordinates stay far inside the double range. At 1e200 Å the moments overflow.
+ */
+export const MAX_COORDINATE_ANGSTROM = 1e6;
+
+/**
+ * Message for a coordinate beyond {@link MAX_COORDINATE_ANGSTROM}, or null when it is within.
+ *
+ * @param valueAngstrom - the coordinate in Å
+ * @param where - what to name in the message, e.g. "Line 4: z coordinate"
+ * @param written - the coordinate as the user wrote it (default: the number)
+ */
+export function coordinateRangeProblem(
+  valueAngstrom: number,
+  where: string,
+  written = String(valueAngstrom),
+): string | null {
+  if (Math.abs(valueAngstrom) <= MAX_COORDINATE_ANGSTROM) return null;
+  return (
+    `${where} ${written} Å lies beyond ±${MAX_COORDINATE_ANGSTROM.toExponential().replace("e+", "e")} Å. ` +
+    "Coordinates must be in ångström and describe one molecule (none is a tenth of a millimetre across): " +
+    "check the units and the number format."
+  );
+}
+
 export interface BuildTargetOptions {
   /** Isotope choices by 1-based atom index: {2: 2} makes atom 2 a deuterium if it is hydrogen. Wins over
    * the inline `H@2` marking. */
@@ -36,7 +64,8 @@ export type AtomInput = Pick<ParsedAtom, "symbol" | "positionAngstrom"> & { mass
  * @param options - isotope overrides by 1-based atom index
  * @returns atoms with atomic number, mass number and isotope mass (u); positions unchanged (Å)
  * @throws ScienceInputError for no atoms, unknown elements or isotopes, overrides naming an atom that does
- *   not exist, or two atoms closer than {@link MIN_ATOM_SEPARATION_ANGSTROM}
+ *   not exist, a coordinate beyond ±{@link MAX_COORDINATE_ANGSTROM}, or two atoms closer than
+ *   {@link MIN_ATOM_SEPARATION_ANGSTROM}
  */
 export function buildTarget(atoms: readonly AtomInput[], options: BuildTargetOptions = {}): TargetAtom[] {
   if (atoms.length === 0) {
@@ -54,6 +83,13 @@ export function buildTarget(atoms: readonly AtomInput[], options: BuildTargetOpt
   }
   const resolved = atoms.map((atom, i) => {
     const index = i + 1;
+    atom.positionAngstrom.forEach((value, axis) => {
+      const problem = coordinateRangeProblem(
+        value,
+        `Atom ${index} (${atom.symbol}): ${"xyz"[axis]} coordinate`,
+      );
+      if (problem) throw new ScienceInputError(problem, { atom: index, valueAngstrom: value });
+    });
     const requested = overrides[index] ?? atom.massNumber ?? undefined;
     let isotope: ReturnType<typeof getIsotope>;
     try {

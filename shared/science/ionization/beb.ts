@@ -11,6 +11,11 @@
  * 285 (2000), doi:10.6028/jres.105.032, "modified BEB for molecular ions" — the factor 1/2 is quoted from
  * memory and has not been checked against the paper; treat ion results as provisional.
  * The (u + 1)/n scaling used for heavy-atom inner orbitals is not implemented.
+ *
+ * Evaluation without spurious overflow: S/(t + u + 1) = 4π a₀² N · (R/B) · R/(T + U + B), so (R/B)² is
+ * never formed (it overflows for B below ~1e-153 eV although σ itself is representable), T + U + B is
+ * summed after dividing by the largest of the three, and ln t = ln T − ln B when t = T/B itself overflows.
+ * A σ beyond the double range is refused, never returned as Infinity.
  */
 import {
   type BebOrbital,
@@ -20,6 +25,7 @@ import {
 } from "../../schemas/science-ionization";
 import { parseScienceInput } from "../../schemas/science-scattering";
 import { ANGSTROM2_PER_BOHR2, RYDBERG_EV } from "../constants";
+import { ScienceInputError } from "../errors";
 
 /**
  * BEB ionization cross section of one orbital at one incident energy.
@@ -27,7 +33,8 @@ import { ANGSTROM2_PER_BOHR2, RYDBERG_EV } from "../constants";
  * @param orbital - binding energy `bindingEv` (> 0), kinetic energy `kineticEv` (≥ 0), occupation
  * @param incidentEnergyEv - electron kinetic energy T in eV
  * @param variant - "neutral" (default) or "singly-charged-ion"
- * @returns σ in Å² (0 at and below threshold T ≤ B)
+ * @returns σ in Å² (0 at and below threshold T ≤ B); +Infinity only when the true σ exceeds the double
+ *   range (B far below any real binding energy), which {@link bebCrossSections} refuses
  */
 export function bebOrbitalCrossSectionA2(
   orbital: Pick<BebOrbital, "bindingEv" | "kineticEv" | "occupation">,
@@ -35,14 +42,23 @@ export function bebOrbitalCrossSectionA2(
   variant: BebVariant = "neutral",
 ): number {
   const b = orbital.bindingEv;
-  if (!(incidentEnergyEv > b)) return 0;
-  const t = incidentEnergyEv / b;
-  const u = orbital.kineticEv / b;
-  const s = 4 * Math.PI * ANGSTROM2_PER_BOHR2 * orbital.occupation * (RYDBERG_EV / b) ** 2;
-  const lnT = Math.log(t);
-  const bracket = (lnT / 2) * (1 - 1 / (t * t)) + 1 - 1 / t - lnT / (t + 1);
-  const denominator = variant === "neutral" ? t + u + 1 : t + (u + 1) / 2;
-  return (s / denominator) * bracket;
+  const energy = incidentEnergyEv;
+  if (!(energy > b)) return 0;
+  const kinetic = orbital.kineticEv;
+  const t = energy / b;
+  const lnT = Number.isFinite(t) ? Math.log(t) : Math.log(energy) - Math.log(b);
+  const inverseT = b / energy;
+  const bracket = (lnT / 2) * (1 - inverseT * inverseT) + 1 - inverseT - (lnT * inverseT) / (1 + inverseT);
+  // B·(t + u + 1) = T + U + B (neutral) or T + (U + B)/2 (ion), summed in units of the largest term.
+  const largest = Math.max(energy, kinetic, b);
+  const scaledSum =
+    variant === "neutral"
+      ? energy / largest + kinetic / largest + b / largest
+      : energy / largest + (kinetic / largest + b / largest) / 2;
+  const rydbergOverDenominator = RYDBERG_EV / largest / scaledSum;
+  const prefactorA2 = 4 * Math.PI * ANGSTROM2_PER_BOHR2 * orbital.occupation * bracket;
+  // Divided by B last: R/B alone overflows for B below ~1e-307 eV even where σ is representable.
+  return (prefactorA2 * rydbergOverDenominator * RYDBERG_EV) / b;
 }
 
 /** Total and per-orbital BEB cross sections on an energy list. */
@@ -61,7 +77,8 @@ export interface BebCrossSections {
  *
  * @param request - `{ orbitals, energiesEv, variant? }`, validated with `bebRequestSchema`
  * @returns total and per-orbital σ in Å² at each energy (0 below each orbital's threshold)
- * @throws ScienceInputError for a malformed request (non-positive binding energy, negative energy...)
+ * @throws ScienceInputError for a malformed request (non-positive binding energy, negative energy...) or
+ *   a cross section beyond the double range (a binding energy of ~1e-300 eV: a units error)
  */
 export function bebCrossSections(request: BebRequest): BebCrossSections {
   const { orbitals, energiesEv, variant } = parseScienceInput(bebRequestSchema, request, "BEB request");
@@ -76,5 +93,19 @@ export function bebCrossSections(request: BebRequest): BebCrossSections {
     }
     return values;
   });
+  for (let e = 0; e < n; e++) {
+    if (Number.isFinite(totalA2[e]!)) continue;
+    const orbital = orbitals.findIndex((_, i) => !Number.isFinite(orbitalA2[i]![e]!));
+    const named = orbital >= 0 ? orbitals[orbital]! : undefined;
+    throw new ScienceInputError(
+      `The BEB cross section at ${energiesEv[e]} eV exceeds the largest representable number` +
+        (named
+          ? ` (orbital ${orbital + 1}${named.label ? ` "${named.label}"` : ""}, binding energy ${named.bindingEv} eV)`
+          : "") +
+        ". Binding energies are in eV (valence orbitals of neutral molecules are bound by several eV): check " +
+        "the units of the orbital file.",
+      { energyEv: energiesEv[e], orbital: orbital >= 0 ? orbital + 1 : null },
+    );
+  }
   return { energiesEv: Float64Array.from(energiesEv), variant, totalA2, orbitalA2, orbitals };
 }

@@ -142,8 +142,15 @@ export class KMatrixCrossSectionAccumulator {
       if (aboveThresholdEv > 0) {
         open[n] = c;
         // |T|² = 4|X − 1|², k² = 2(E − E_i)/E_h.
-        coefficient[n] =
-          (4 * Math.PI * symmetry.weightByState[state]!) / ((2 * aboveThresholdEv) / HARTREE_EV);
+        coefficient[n] = 4 * Math.PI * symmetry.weightByState[state]! * (HARTREE_EV / 2 / aboveThresholdEv);
+        if (!Number.isFinite(coefficient[n]!)) {
+          throw new ScienceInputError(
+            `${context}: the energy is only ${aboveThresholdEv} eV above the threshold of target state ` +
+              `"${this.states[state]!.id}", so π/k² exceeds the largest representable number. Leave out ` +
+              "energies this close to a threshold (or check the state energies' units).",
+            { aboveThresholdEv },
+          );
+        }
         n++;
       }
     }
@@ -161,6 +168,11 @@ export class KMatrixCrossSectionAccumulator {
     }
     assertSymmetricKMatrix(kMatrix, n, context, this.symmetryTolerance);
     const argDeterminant = invertOneMinusIK(kMatrix, n, this.workspace);
+    if (!Number.isFinite(argDeterminant)) {
+      throw new ScienceInputError(
+        `${context}: inverting 1 − iK overflowed the double range; check the K-matrix for extreme entries.`,
+      );
+    }
     this.eigenphaseSums[symmetryIndex]![energyIndex] = -argDeterminant;
 
     const nStates = this.states.length;
@@ -193,7 +205,7 @@ export class KMatrixCrossSectionAccumulator {
    * @param options.continuousEigenphaseSum - remove π jumps of each eigenphase sum along the energy grid
    *   ({@link unwrapPhases}); otherwise each sum is Σ arctan λ_k ∈ (−nπ/2, nπ/2) as computed
    * @returns energies, eigenphase sums per symmetry (rad) and σ(i → j) in Å²
-   * @throws ScienceInputError naming the first missing point
+   * @throws ScienceInputError naming the first missing point, or the first σ beyond the double range
    */
   result(options: { continuousEigenphaseSum?: boolean } = {}): KMatrixCrossSectionResult {
     this.filled.forEach((flags, s) => {
@@ -215,6 +227,14 @@ export class KMatrixCrossSectionAccumulator {
         const crossSectionA2 = new Float64Array(nEnergies);
         for (let e = 0; e < nEnergies; e++) {
           crossSectionA2[e] = this.sigmaBohr2[e * nStates * nStates + i * nStates + j]! * ANGSTROM2_PER_BOHR2;
+          if (!Number.isFinite(crossSectionA2[e]!)) {
+            throw new ScienceInputError(
+              `σ(${this.states[i]!.id} → ${this.states[j]!.id}) at ${this.energiesEv[e]} eV exceeds the largest ` +
+                "representable number (π/k² diverges at threshold): leave out energies this close to the " +
+                `threshold of "${this.states[i]!.id}" (or check the state energies' units).`,
+              { energyEv: this.energiesEv[e], fromState: this.states[i]!.id, toState: this.states[j]!.id },
+            );
+          }
         }
         transitions.push({ fromState: this.states[i]!.id, toState: this.states[j]!.id, crossSectionA2 });
       }

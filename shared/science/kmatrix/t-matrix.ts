@@ -24,6 +24,15 @@ import { symmetricEigen } from "../linear-algebra/symmetric-eigen";
  */
 export const KMATRIX_SYMMETRY_TOLERANCE = 1e-6;
 
+/**
+ * Largest accepted |K_ij|. An eigenvalue λ of K is tan δ, and beyond ~1e16 tan δ is already infinite to
+ * double precision (δ = π/2 to the last bit), so larger entries only arise on a pole of K or from a units
+ * or formatting error. Up to 1e100 every product of two entries, summed over the ≤ 2000 channels of the
+ * LDLᵀ inversion, stays far inside the double range; at 1e308 the pivots' squared moduli overflow and the
+ * results come out as NaN.
+ */
+export const MAX_KMATRIX_ENTRY = 1e100;
+
 /** A dense complex matrix as nested rows of real and imaginary parts. */
 export interface ComplexMatrixRows {
   real: number[][];
@@ -31,13 +40,14 @@ export interface ComplexMatrixRows {
 }
 
 /**
- * Checks that a row-major K-matrix is finite and symmetric within a relative tolerance.
+ * Checks that a row-major K-matrix is finite, within ±{@link MAX_KMATRIX_ENTRY} and symmetric within a
+ * relative tolerance.
  *
  * @param kMatrix - row-major n×n values
  * @param n - matrix order
  * @param context - prefix for error messages (where the matrix comes from)
  * @param relativeTolerance - allowed max|K_ij − K_ji| / max|K_ij|
- * @throws ScienceInputError when an entry is not finite or the matrix is not symmetric
+ * @throws ScienceInputError when an entry is not finite or too large, or the matrix is not symmetric
  */
 export function assertSymmetricKMatrix(
   kMatrix: ArrayLike<number>,
@@ -49,6 +59,16 @@ export function assertSymmetricKMatrix(
     if (!Number.isFinite(kMatrix[i]!)) {
       throw new ScienceInputError(
         `${context}: K-matrix entry (${Math.floor(i / n)}, ${i % n}) is not a finite number.`,
+      );
+    }
+    if (Math.abs(kMatrix[i]!) > MAX_KMATRIX_ENTRY) {
+      const limit = MAX_KMATRIX_ENTRY.toExponential().replace("e+", "e");
+      throw new ScienceInputError(
+        `${context}: K-matrix entry (${Math.floor(i / n)}, ${i % n}) is ${kMatrix[i]}, beyond ±${limit}. ` +
+          "An entry this large means the energy sits on a pole of K (tan δ infinite to double precision) " +
+          "or the file has a units or formatting error: move the energy point slightly off the pole or " +
+          "check the file.",
+        { row: Math.floor(i / n), column: i % n, value: kMatrix[i] },
       );
     }
   }

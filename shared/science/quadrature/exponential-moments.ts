@@ -18,6 +18,13 @@
 export function truncatedExponentialMoments(h: number, out: Float64Array): Float64Array {
   if (h >= 1) {
     const decay = Math.exp(-h);
+    if (decay === 0) {
+      // h ≥ 745 (or ∞): the limits, without forming h² e^{−h} as ∞·0 when h² overflows.
+      out[0] = 1;
+      out[1] = 1;
+      out[2] = 2;
+      return out;
+    }
     out[0] = 1 - decay;
     out[1] = 1 - (1 + h) * decay;
     out[2] = 2 - (h * h + 2 * h + 2) * decay;

@@ -10,6 +10,9 @@
  * a non-zero σ there is a step); linear between points; above the last point σ follows the chosen tail
  * (`zero` by default). The fraction of the Maxwellian population above the last point is reported for each
  * temperature so that callers can warn when the table is too short for the temperature.
+ *
+ * Range: σ is converted to cm² before it is weighted and summed, so tables up to the largest double
+ * (~1.8e308 Å²) integrate without overflow; a rate coefficient beyond the double range is refused.
  */
 import {
   type CrossSectionTable,
@@ -18,19 +21,27 @@ import {
   type TailExtrapolation,
 } from "../../schemas/science-rates";
 import { parseScienceInput } from "../../schemas/science-scattering";
-import { BOLTZMANN_EV_PER_K, CM2_PER_ANGSTROM2, ELECTRON_MASS_KG, ELEMENTARY_CHARGE_C } from "../constants";
+import { BOLTZMANN_EV_PER_K, BOLTZMANN_J_PER_K, CM2_PER_ANGSTROM2, ELECTRON_MASS_KG } from "../constants";
+import { ScienceInputError } from "../errors";
 import { linearTimesXExponentialWeights } from "../quadrature/exponential-moments";
 import { regularizedUpperGamma } from "../quadrature/incomplete-gamma";
+
+/** √(8 k_B / (π m_e)) in cm/(s·K^½): v̄ = MEAN_SPEED_CM_PER_S_SQRT_K · √T. */
+const MEAN_SPEED_CM_PER_S_SQRT_K = Math.sqrt((8 * BOLTZMANN_J_PER_K) / (Math.PI * ELECTRON_MASS_KG)) * 100;
 
 /**
  * Mean speed of a Maxwellian electron, v̄ = √(8 k_B T / (π m_e)).
  *
  * @param temperatureK - electron temperature in K (> 0)
- * @returns v̄ in cm/s
+ * @returns v̄ in cm/s (√T taken separately, so no product underflows or overflows)
  */
 export function meanElectronSpeedCmPerS(temperatureK: number): number {
-  const thermalEnergyJ = BOLTZMANN_EV_PER_K * temperatureK * ELEMENTARY_CHARGE_C;
-  return Math.sqrt((8 * thermalEnergyJ) / (Math.PI * ELECTRON_MASS_KG)) * 100;
+  return MEAN_SPEED_CM_PER_S_SQRT_K * Math.sqrt(temperatureK);
+}
+
+/** E/(k_B T); 0 for E = 0 even where k_B T underflows to 0 (T below ~1e-319 K). */
+function reducedEnergy(energyEv: number, thermalEv: number): number {
+  return energyEv === 0 ? 0 : energyEv / thermalEv;
 }
 
 /** Rate coefficients of one table at several temperatures. */
@@ -54,7 +65,8 @@ export interface MaxwellianRates {
  * @param temperatureK - electron temperature in K (> 0)
  * @param tail - extrapolation above the last point
  * @param scratch - optional reusable buffers (length ≥ 3 and ≥ 2)
- * @returns k(T) in cm³/s
+ * @returns k(T) in cm³/s; +Infinity only when the true rate exceeds the double range, which
+ *   {@link maxwellianRateCoefficients} refuses
  */
 export function maxwellianRateCoefficient(
   table: { energiesEv: ArrayLike<number>; crossSectionsA2: ArrayLike<number> },
@@ -69,21 +81,26 @@ export function maxwellianRateCoefficient(
   const energies = table.energiesEv;
   const sigma = table.crossSectionsA2;
   const last = energies.length - 1;
-  let integral = 0;
+  // In cm²: σ up to ~1.8e308 Å² times weights of order 1 to 1e3 stays finite (1e16 of headroom).
+  let integralCm2 = 0;
   for (let i = 0; i < last; i++) {
-    const xa = energies[i]! / thermalEv;
+    const xa = reducedEnergy(energies[i]!, thermalEv);
     const decay = Math.exp(-xa);
     if (decay === 0) break;
     const h = (energies[i + 1]! - energies[i]!) / thermalEv;
     const w = linearTimesXExponentialWeights(xa, h, scratch.moments, scratch.weights);
-    integral += decay * (sigma[i]! * w[0]! + sigma[i + 1]! * w[1]!);
+    const sigmaACm2 = sigma[i]! * CM2_PER_ANGSTROM2;
+    const sigmaBCm2 = sigma[i + 1]! * CM2_PER_ANGSTROM2;
+    integralCm2 += decay * (sigmaACm2 * w[0]! + sigmaBCm2 * w[1]!);
   }
   if (tail !== "zero") {
-    const xLast = energies[last]! / thermalEv;
+    const xLast = reducedEnergy(energies[last]!, thermalEv);
     const decay = Math.exp(-xLast);
-    integral += sigma[last]! * (tail === "constant" ? 1 + xLast : xLast) * decay;
+    if (decay > 0) {
+      integralCm2 += sigma[last]! * CM2_PER_ANGSTROM2 * (tail === "constant" ? 1 + xLast : xLast) * decay;
+    }
   }
-  return meanElectronSpeedCmPerS(temperatureK) * integral * CM2_PER_ANGSTROM2;
+  return meanElectronSpeedCmPerS(temperatureK) * integralCm2;
 }
 
 /**
@@ -92,7 +109,7 @@ export function maxwellianRateCoefficient(
  * @param request - `{ table, temperaturesK, tail? }` validated with `maxwellianRateRequestSchema`
  * @returns k(T) in cm³/s and the population fraction beyond the table per temperature
  * @throws ScienceInputError for a malformed table (unsorted or negative energies, negative σ, length
- *   mismatch) or non-positive temperatures
+ *   mismatch), non-positive temperatures, or a rate coefficient beyond the double range
  */
 export function maxwellianRateCoefficients(request: MaxwellianRateRequest): MaxwellianRates {
   const { table, temperaturesK, tail } = parseScienceInput(
@@ -104,9 +121,20 @@ export function maxwellianRateCoefficients(request: MaxwellianRateRequest): Maxw
   const scratch = { moments: new Float64Array(3), weights: new Float64Array(2) };
   const lastEv = typed.energiesEv[typed.energiesEv.length - 1]!;
   const temperatures = Float64Array.from(temperaturesK);
+  const rateCm3PerS = temperatures.map((t) => maxwellianRateCoefficient(typed, t, tail, scratch));
+  const overflow = rateCm3PerS.findIndex((rate) => !Number.isFinite(rate));
+  if (overflow >= 0) {
+    const largestA2 = typed.crossSectionsA2.reduce((largest, sigma) => Math.max(largest, sigma), 0);
+    throw new ScienceInputError(
+      `The rate coefficient at ${temperatures[overflow]} K exceeds the largest representable number ` +
+        `(largest cross section in the table: ${largestA2} Å²). Cross sections are ` +
+        "in Å² (1 Å² = 1e-16 cm²) and temperatures in K: check the units of the table and the temperatures.",
+      { temperatureK: temperatures[overflow] },
+    );
+  }
   return {
     temperaturesK: temperatures,
-    rateCm3PerS: temperatures.map((t) => maxwellianRateCoefficient(typed, t, tail, scratch)),
+    rateCm3PerS,
     tail,
     maxwellianFractionBeyondTable: temperatures.map((t) =>
       regularizedUpperGamma(1.5, lastEv / (BOLTZMANN_EV_PER_K * t)),

@@ -40,7 +40,9 @@ export function gaussianChargeBeyond(
   if (!(exponentBohr2 > 0) || !(distanceBohr >= 0)) {
     throw new ScienceInputError("The Gaussian exponent must be > 0 and the distance ≥ 0.");
   }
-  return regularizedUpperGamma(angularMomentum + 1.5, 2 * exponentBohr2 * distanceBohr * distanceBohr);
+  // (√(2α)·ρ)² rather than 2αρ²: ρ² alone overflows for the radii of very diffuse functions.
+  const scaledDistance = Math.sqrt(2 * exponentBohr2) * distanceBohr;
+  return regularizedUpperGamma(angularMomentum + 1.5, scaledDistance * scaledDistance);
 }
 
 /**
@@ -49,7 +51,8 @@ export function gaussianChargeBeyond(
  * @param exponentBohr2 - α in bohr⁻²
  * @param chargeTolerance - ε in (0, 1)
  * @param angularMomentum - l (default 0)
- * @returns ρ_ε in bohr, from bisection on F(ρ) (monotone), relative accuracy 1e-12
+ * @returns ρ_ε in bohr, from bisection on F(ρ) (monotone), relative accuracy 1e-12; finite for every
+ *   positive α (ρ_ε ≈ 1e162 bohr at the smallest double)
  */
 export function gaussianTailRadiusBohr(
   exponentBohr2: number,
@@ -68,7 +71,8 @@ export function gaussianTailRadiusBohr(
     if (regularizedUpperGamma(a, mid) > chargeTolerance) low = mid;
     else high = mid;
   }
-  return Math.sqrt((0.5 * (low + high)) / (2 * exponentBohr2));
+  // √x/√(2α), not √(x/(2α)): the quotient overflows for α near the smallest doubles, ρ_ε does not.
+  return Math.sqrt(0.5 * (low + high)) / Math.sqrt(2 * exponentBohr2);
 }
 
 export interface SphereRadiusResult {

@@ -9,6 +9,7 @@ import { computeKMatrixCrossSections } from "@shared/science/kmatrix/cross-secti
 import { eigenphaseSumFromKMatrix, tMatrixFromKMatrix } from "@shared/science/kmatrix/t-matrix";
 import { truncatedExponentialMoments } from "@shared/science/quadrature/exponential-moments";
 import { maxwellianRateCoefficients } from "@shared/science/rates/maxwellian-rate";
+import { gaussianChargeBeyond, gaussianTailRadiusBohr, requiredSphereRadius } from "@shared/science/sphere";
 import { describe, expect, it } from "vitest";
 import { bebReferenceA2 } from "./support/high-precision";
 
@@ -54,6 +55,22 @@ describe("target geometry at extreme coordinates", () => {
     expect(report.principalMomentsUAngstrom2[0]).toBe(0);
     expect(relative(report.principalMomentsUAngstrom2[2], (1.00782503223 / 2) * 1e12)).toBeLessThan(1e-12);
     expect(report.rotationalConstantsCm1.every((b) => b === null || Number.isFinite(b))).toBe(true);
+  });
+});
+
+describe("R-matrix sphere for extremely diffuse Gaussians", () => {
+  it("scales the tail radius as 1/√α down to the smallest double exponent", () => {
+    // regression: extreme inputs must not print null (x/(2α) overflowed to an infinite radius at α = 5e-324)
+    // The charge fraction Q(l + 3/2, 2αρ²) depends on αρ² only (module derivation), so ρ_ε·√α is the same
+    // for every α; √(5e-324) = 2^-537 is exact. Tolerance 1e-12 relative (the bisection's accuracy).
+    const reference = gaussianTailRadiusBohr(1, 1e-5);
+    for (const alpha of [5e-324, 1e-300, 1e-100]) {
+      const radius = gaussianTailRadiusBohr(alpha, 1e-5);
+      expect(relative(radius * Math.sqrt(alpha), reference), `α = ${alpha}`).toBeLessThan(1e-12);
+      expect(relative(gaussianChargeBeyond(alpha, radius), 1e-5), `α = ${alpha}`).toBeLessThan(1e-8);
+    }
+    const sphere = requiredSphereRadius({ positionsAngstrom: [[0, 0, 0]], mostDiffuseExponentBohr2: 5e-324 });
+    expect(Number.isFinite(sphere.requiredRadiusBohr)).toBe(true);
   });
 });
 

@@ -91,15 +91,19 @@ export async function hostForCaller(
   return { host, role };
 }
 
+/**
+ * Reads a host's key for registration. Every failure gives the same answer, whatever the port did
+ * (refused, closed, timed out, answered with something other than SSH): a different message for a
+ * closed and an open port would make host registration a port scanner.
+ */
 async function readHostKey(deps: HostDeps, address: string, port: number): Promise<HostKey> {
   try {
     return await deps.fetchHostKey(address, port, deps.hostKeyTimeoutMs ?? HOST_KEY_TIMEOUT_MS);
-  } catch (error) {
-    const reason = error instanceof Error ? error.message : String(error);
+  } catch {
     throw new AppError(
       502,
       "host_unreachable",
-      `Sigmaflow could not read the SSH host key of ${address}:${port} (${reason}). Check the address and port and that the host accepts SSH connections from the Sigmaflow server; nothing was saved.`,
+      `Could not reach an SSH server at ${address}:${port}. Check the address and port and that the host accepts SSH connections from the Sigmaflow server; nothing was saved.`,
     );
   }
 }

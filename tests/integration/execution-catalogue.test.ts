@@ -6,6 +6,7 @@
 import { execFileSync } from "node:child_process";
 import { mkdtempSync, readFileSync } from "node:fs";
 import { appendFile } from "node:fs/promises";
+import { type AddressInfo, createServer, type Socket } from "node:net";
 import { eq } from "drizzle-orm";
 import { Client } from "ssh2";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
@@ -130,6 +131,57 @@ describe("registering a host", () => {
     expect(reply.body.error.code).toBe("host_unreachable");
     expect(reply.body.error.message).toContain(`127.0.0.1:${port}`);
     expect(await counts()).toEqual(before);
+  });
+
+  // Regression: a closed port and an open port that does not speak SSH gave different errors, so
+  // registering hosts told an admin which ports of a machine were open.
+  it("gives the same answer for a closed port and an open port that is not SSH", async () => {
+    const sockets = new Set<Socket>();
+    const track = (socket: Socket) => {
+      sockets.add(socket.on("close", () => sockets.delete(socket)));
+      return socket;
+    };
+    const notSsh = createServer((socket) => track(socket).end("HTTP/1.1 400 Bad Request\r\n\r\n"));
+    const banner = createServer((socket) => track(socket).write("SSH-1.5-museum\r\n"));
+    for (const server of [notSsh, banner])
+      await new Promise<void>((resolve) => server.listen(0, "127.0.0.1", resolve));
+    try {
+      const before = await counts();
+      const ports = [
+        await freePort(),
+        (notSsh.address() as AddressInfo).port,
+        (banner.address() as AddressInfo).port,
+      ];
+      const replies = [];
+      for (const [i, port] of ports.entries()) {
+        const reply = await call(
+          "admin",
+          "POST",
+          `/api/groups/${groupId}/hosts`,
+          hostBody(`probe-${i}`, port),
+        );
+        replies.push({
+          status: reply.status,
+          body: JSON.stringify(reply.body).replace(String(port), "<port>"),
+        });
+      }
+      expect(replies[0]).toEqual({
+        status: 502,
+        body: JSON.stringify({
+          error: {
+            code: "host_unreachable",
+            message:
+              "Could not reach an SSH server at 127.0.0.1:<port>. Check the address and port and that the host accepts SSH connections from the Sigmaflow server; nothing was saved.",
+          },
+        }),
+      });
+      expect(replies[1]).toEqual(replies[0]);
+      expect(replies[2]).toEqual(replies[0]);
+      expect(await counts()).toEqual(before);
+    } finally {
+      for (const socket of sockets) socket.destroy();
+      for (const server of [notSsh, banner]) await new Promise((resolve) => server.close(resolve));
+    }
   });
 
   it("refuses a second host of the same name, and bad input, writing nothing", async () => {

@@ -66,15 +66,20 @@ const SIGNING_ALGORITHMS = [
 /**
  * Connects, captures the host key during key exchange and aborts before authenticating. ed25519 is
  * asked for first, the type most hosts have and the one Sigmaflow pins by preference.
+ *
+ * Every way of not getting a key (refused, timed out, closed, something other than SSH answering)
+ * fails with the same message: the probe runs for whoever may register a host, and distinct messages
+ * would tell them which ports of a machine are open. The kind and the underlying error stay on the
+ * error (`failure`, `cause`) for logs.
  */
 export function fetchHostKey(address: string, port: number, timeoutMs: number): Promise<HostKey> {
+  const unreachable = (failure: TransportError["failure"], cause?: unknown) =>
+    new TransportError(failure, `could not reach an SSH server at ${address}:${port}`, { cause });
   return new Promise<HostKey>((resolve, reject) => {
     const client = new Client();
     let settled = false;
     const timer = setTimeout(() => {
-      settle(() =>
-        reject(new TransportError("timeout", `no host key from ${address}:${port} in ${timeoutMs} ms`)),
-      );
+      settle(() => reject(unreachable("timeout")));
     }, timeoutMs);
     function settle(action: () => void): void {
       if (settled) return;
@@ -85,10 +90,12 @@ export function fetchHostKey(address: string, port: number, timeoutMs: number): 
       setImmediate(() => client.destroy());
     }
     // Errors after the key was captured are the abort itself ("Host denied"); keep a handler for good.
-    client.on("error", (error) => settle(() => reject(classifySshError(error))));
-    client.on("close", () =>
-      settle(() => reject(new TransportError("closed", `${address}:${port} closed before presenting a key`))),
-    );
+    client.on("error", (error) => {
+      const classified = classifySshError(error);
+      const failure = classified instanceof TransportError ? classified.failure : "unknown";
+      settle(() => reject(unreachable(failure, classified)));
+    });
+    client.on("close", () => settle(() => reject(unreachable("closed"))));
     client.connect({
       host: address,
       port,

@@ -380,6 +380,9 @@ function cleanReason(error: unknown): string {
     : reason;
 }
 
+/** Raw blocks one template may hold: nunjucks copies the rest of the template for each one it reads. */
+const MAX_RAW_BLOCKS = 100;
+
 /**
  * Refuses a `{% raw %}` or `{% verbatim %}` block that is never closed. nunjucks looks for the end with
  * an unanchored lazy regex; when there is none it retries from every position, quadratic in the rest
@@ -387,12 +390,23 @@ function cleanReason(error: unknown): string {
  */
 function checkRawBlocks(source: string, fileName: string): void {
   const tags = /\{%(-?)\s*(end)?(raw|verbatim)\s*(-?)%\}/g;
+  const lineOf = (index: number) => source.slice(0, index).split("\n").length;
   let open: { name: string; index: number; depth: number } | null = null;
+  let blocks = 0;
   for (const tag of source.matchAll(tags)) {
     const [, dashBefore, end, name] = tag;
     const plain = !dashBefore && !tag[4];
     if (!open) {
-      if (!end) open = { name: name!, index: tag.index, depth: 1 };
+      if (end) continue;
+      open = { name: name!, index: tag.index, depth: 1 };
+      blocks += 1;
+      if (blocks > MAX_RAW_BLOCKS) {
+        throw new TemplateError(
+          fileName,
+          lineOf(tag.index),
+          `a template may hold at most ${MAX_RAW_BLOCKS} {% raw %} or {% verbatim %} blocks; merge them`,
+        );
+      }
     } else if (plain && name === open.name) {
       open.depth += end ? -1 : 1;
       if (open.depth === 0) open = null;
@@ -401,7 +415,7 @@ function checkRawBlocks(source: string, fileName: string): void {
   if (open) {
     throw new TemplateError(
       fileName,
-      source.slice(0, open.index).split("\n").length,
+      lineOf(open.index),
       `{% ${open.name} %} is never closed; end it with {% end${open.name} %} (written without "-")`,
     );
   }

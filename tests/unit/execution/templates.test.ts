@@ -410,4 +410,12 @@ describe("raw blocks", () => {
     // nunjucks does not see an end tag written with "-" inside the block.
     expect(() => renderOne("text", "{% verbatim %}x{%- endverbatim %}", {})).toThrow(/never closed/);
   });
+
+  it("are limited to 100 per template, since nunjucks copies the rest of the template for each", () => {
+    const block = "{% raw %}x{% endraw %}\n";
+    expect(renderOne("text", block.repeat(100), {})).toBe("x\n".repeat(100));
+    expect(() => renderOne("text", block.repeat(101), {})).toThrow(
+      /^input\.dat, line 101: a template may hold at most 100 \{% raw %\} or \{% verbatim %\} blocks/,
+    );
+  });
 });

@@ -97,7 +97,8 @@ export class UserPattern {
  * An estimate, made without compiling, of how many RE2 instructions the pattern expands to: each atom
  * counts once, a group counts what it holds, and `{n}`, `{n,m}` or `{n,}` multiply what they repeat.
  * It stays near or below the compiled size, so refusing above the limit refuses nothing the compiled
- * check would accept, and anything it lets through compiles quickly. One pass over the source.
+ * check would accept (except a literal `{n}` quoted with `\Q…\E`, read as a count), and anything it
+ * lets through compiles quickly. One pass over the source.
  */
 export function estimatedProgramSize(source: string): number {
   type Frame = { sum: number; last: number };

@@ -1,4 +1,4 @@
-import { Atom, Cpu, type LucideIcon, TrendingUp } from "lucide-react";
+import { Atom, type LucideIcon, TrendingUp } from "lucide-react";
 import { EmptyState } from "@/components/ui/empty-state";
 import { PageHeader } from "@/components/ui/page-header";
 import { useCurrentGroup } from "./use-current-group";
@@ -31,21 +31,6 @@ const AREAS = {
     tasks: [
       "Register a molecule from Cartesian coordinates and check its symmetry",
       "Compare target-state energies against reference values before committing cluster time",
-    ],
-  },
-  codes: {
-    title: "Codes",
-    summary: "The scattering and structure programs installed on your group's clusters, by version.",
-    icon: Cpu,
-    emptyTitle: "No codes connected yet",
-    emptyBody: "Once a cluster is connected, the programs it offers are listed here with their versions.",
-    holds: [
-      "Every installed build, the cluster it lives on and the queue it submits to",
-      "The input parameters each build accepts and its default settings",
-    ],
-    tasks: [
-      "Pick the build and version a run will use, so results stay reproducible",
-      "See at a glance which clusters can run which kind of calculation",
     ],
   },
   studies: {
@@ -98,10 +83,6 @@ function AreaPage({ area }: { area: Area }) {
 
 export function TargetsRoute() {
   return <AreaPage area={AREAS.targets} />;
-}
-
-export function CodesRoute() {
-  return <AreaPage area={AREAS.codes} />;
 }
 
 export function StudiesRoute() {

@@ -1,0 +1,61 @@
+import { useQuery } from "@tanstack/react-query";
+import { Cpu } from "lucide-react";
+import { EmptyState } from "@/components/ui/empty-state";
+import { ErrorState } from "@/components/ui/error-state";
+import { TableSkeleton } from "@/components/ui/skeleton";
+import { Table, TBody, TD, TH, THead, TR } from "@/components/ui/table";
+import { formatDate } from "@/lib/format";
+import { codeQueries } from "../api/code-queries";
+
+const names = (list: string[]) => (list.length === 0 ? "—" : list.join(", "));
+
+/** The group's codes as the API lists them: each registered name and version with what it reads and writes. */
+export function CodesTable({ groupId, groupName }: { groupId: string; groupName: string }) {
+  const codes = useQuery(codeQueries.list(groupId));
+  if (codes.isPending) return <TableSkeleton rows={4} label="Loading codes" />;
+  if (codes.isError)
+    return <ErrorState error={codes.error} onRetry={() => codes.refetch()} retrying={codes.isFetching} />;
+  if (codes.data.codes.length === 0) {
+    return (
+      <EmptyState icon={<Cpu className="size-5" aria-hidden="true" />} title="No codes registered yet">
+        Codes registered through the API are listed here by name and version, with the files they read and
+        write.
+      </EmptyState>
+    );
+  }
+  return (
+    <Table caption={`Codes of ${groupName}`}>
+      <THead>
+        <TR>
+          <TH>Code</TH>
+          <TH>Version</TH>
+          <TH>Executable</TH>
+          <TH>Input files</TH>
+          <TH>Collected files</TH>
+          <TH>Defaults</TH>
+          <TH>Registered</TH>
+        </TR>
+      </THead>
+      <TBody>
+        {codes.data.codes.map(({ id, definition, createdAt }) => (
+          <TR key={id}>
+            <TD>
+              <div className="font-medium text-ink-900">{definition.name}</div>
+              {definition.description ? (
+                <div className="mt-1 max-w-xs text-xs text-ink-500">{definition.description}</div>
+              ) : null}
+            </TD>
+            <TD className="font-mono text-xs">{definition.version}</TD>
+            <TD className="font-mono text-xs">{definition.executable}</TD>
+            <TD className="font-mono text-xs">{names(definition.inputTemplates.map((t) => t.fileName))}</TD>
+            <TD className="font-mono text-xs">{names(definition.outputFiles)}</TD>
+            <TD className="font-mono text-xs">
+              {definition.defaults.cores} × {definition.defaults.wallTimeMinutes} min
+            </TD>
+            <TD className="text-xs">{formatDate(createdAt)}</TD>
+          </TR>
+        ))}
+      </TBody>
+    </Table>
+  );
+}

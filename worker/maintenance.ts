@@ -58,7 +58,8 @@ async function pollHostsWithActiveRuns(ctx: WorkerContext): Promise<void> {
 
 /**
  * Resumes held runs whose host answers again — never while the host's key is mismatched or a replaced
- * key is not yet confirmed by an admin.
+ * key is not yet confirmed by an admin. The host is probed with each account the held runs use: one
+ * account the host refuses must neither keep the other accounts' runs held nor be resumed with them.
  */
 export async function resumeHeldRuns(ctx: WorkerContext): Promise<number> {
   const held = await ctx.db
@@ -73,9 +74,9 @@ export async function resumeHeldRuns(ctx: WorkerContext): Promise<number> {
         isNotNull(runs.heldFromState),
       ),
     );
-  const byHost = groupBy(held, (row) => row.host.id);
+  const byHostAccount = groupBy(held, (row) => `${row.host.id}:${row.run.hostAccountId}`);
   let resumed = 0;
-  for (const rows of byHost.values()) {
+  for (const rows of byHostAccount.values()) {
     const host = rows[0]!.host;
     try {
       const session = await sessionFor(ctx, host, rows[0]!.run.hostAccountId);

@@ -50,11 +50,11 @@ afterAll(async () => {
   await database?.drop();
 });
 
-async function submit(api: Api, label: string): Promise<string> {
+async function submit(api: Api, label: string, sleepSeconds = 0): Promise<string> {
   const created = await api(
     "POST",
     `/api/groups/${sf.groupId}/runs`,
-    runSpec(recipeId, hostId, { prepare: { label } }, label),
+    runSpec(recipeId, hostId, { prepare: { label, sleepSeconds } }, label),
   );
   expect(created.status, JSON.stringify(created.body)).toBe(201);
   return created.body.id;
@@ -138,6 +138,24 @@ describe("a personal account the host refuses", () => {
     expect(run.state, run.stateMessage).toBe("done");
     expect(await accountOfRun(runId)).toBe(replaced.body.id);
   });
+
+  // A held run of the refused account must neither keep other accounts' held runs from resuming when
+  // their host answers again, nor be resumed along with them (only to be held again, over and over).
+  it("stays held while another account's runs on the host resume", async () => {
+    const runId = await submit(member, "comes-back", 4);
+    await waitForState(sf, runId, ["running"]);
+    await host.stop();
+    const held = await waitForState(sf, runId, ["held"]);
+    expect(held.stateMessage).toMatch(/unreachable/);
+    await host.restart();
+    const run = await waitForState(sf, runId, ["done", "failed"], 40_000);
+    expect(run.state, run.stateMessage).toBe("done");
+
+    const refused = (await sf.api("GET", `/api/runs/${heldRunId}`)).body;
+    expect(refused.state).toBe("held");
+    const moves = refused.events.map((e: { toState: string }) => e.toState);
+    expect(moves.filter((state: string) => state === "held")).toHaveLength(1);
+  }, 60_000);
 });
 
 describe("a group account the host refuses", () => {

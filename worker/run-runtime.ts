@@ -3,9 +3,9 @@
  * account (credentials decrypted in memory, cached briefly), the scheduler adapter and the job reference.
  */
 import { eq } from "drizzle-orm";
+import { loadAccountCredentials } from "../server/credentials/account-credentials";
 import { hosts, runs } from "../server/db/schema";
 import type { RunPlan } from "../server/execution/run-plan";
-import { loadAccountCredentials } from "../server/services/host-accounts.service";
 import type { WorkerContext } from "./context";
 import { schedulerFor } from "./schedulers";
 import type { JobRef } from "./schedulers/types";

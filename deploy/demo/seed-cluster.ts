@@ -10,10 +10,10 @@ import { and, eq, isNull } from "drizzle-orm";
 import type { Principal } from "../../server/auth/principal";
 import { createDatabase } from "../../server/db/client";
 import { groups, hostAccounts, hosts, users } from "../../server/db/schema";
+import { fetchHostKey } from "../../server/hosts/host-key-probe";
 import { activeAllocation, createAllocation } from "../../server/services/allocations.service";
 import { createHostAccount } from "../../server/services/host-accounts.service";
 import { confirmHostKey, createHost } from "../../server/services/hosts.service";
-import { fetchHostKey } from "../../worker/ssh/host-key";
 
 const env = {
   databaseUrl: process.env.DATABASE_URL,

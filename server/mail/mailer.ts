@@ -1,11 +1,19 @@
 import nodemailer from "nodemailer";
-import type { ServerConfig } from "../config";
+
+/** The mail relay, as the server's and the worker's settings both describe it. */
+export type SmtpSettings = {
+  host: string;
+  port: number;
+  secure: boolean;
+  auth: { user: string; pass: string } | undefined;
+  from: string;
+};
 
 export type OutgoingMail = { to: string; subject: string; text: string; html: string };
 export type Mailer = { send(mail: OutgoingMail): Promise<void>; close(): void };
 
 /** SMTP delivery through nodemailer (the development sink in deploy/fake-smtp, or a real relay). */
-export function createMailer(smtp: ServerConfig["smtp"]): Mailer {
+export function createMailer(smtp: SmtpSettings): Mailer {
   const transport = nodemailer.createTransport({
     host: smtp.host,
     port: smtp.port,

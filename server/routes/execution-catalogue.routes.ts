@@ -1,10 +1,10 @@
 /**
  * The execution catalogue under /api: hosts and their accounts, codes, recipes and allocations.
  * The host-key reader is injectable so the routes can be exercised without a network; by default it is
- * the worker's SSH probe.
+ * the server's one-handshake SSH probe.
  */
 import { Router } from "express";
-import { fetchHostKey } from "../../worker/ssh/host-key";
+import { fetchHostKey } from "../hosts/host-key-probe";
 import { HOST_KEY_TIMEOUT_MS, type HostKeyFetcher } from "../services/hosts.service";
 import { allocationRoutes } from "./allocations.routes";
 import { codeRoutes } from "./codes.routes";

@@ -8,7 +8,7 @@ import type { GroupRole } from "../../shared/schemas/groups";
 import type { Principal } from "../auth/principal";
 import type { DbExecutor } from "../db/client";
 import { memberships } from "../db/schema";
-import { forbidden, notFound } from "../http/errors";
+import { AppError, forbidden, notFound } from "../http/errors";
 
 const RANK: Record<GroupRole, number> = { collaborator: 0, member: 1, admin: 2 };
 
@@ -47,6 +47,25 @@ export async function requireGroupRole(
     );
   }
   return role;
+}
+
+/**
+ * Checks the caller's role in the group owning a row. A row of a group the caller does not belong to is
+ * reported as missing under its own name, like the group itself.
+ */
+export async function requireRoleFor(
+  db: DbExecutor,
+  principal: Principal,
+  groupId: string,
+  minimum: GroupRole,
+  what: string,
+): Promise<GroupRole | null> {
+  try {
+    return await requireGroupRole(db, principal, groupId, minimum);
+  } catch (error) {
+    if (error instanceof AppError && error.status === 404) throw notFound(what);
+    throw error;
+  }
 }
 
 export function requireSiteAdmin(principal: Principal): void {

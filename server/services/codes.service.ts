@@ -4,19 +4,18 @@
  * compiles, so a broken one is refused at registration rather than at the first run.
  */
 import { and, asc, eq, inArray, sql } from "drizzle-orm";
-import type { Code, CodeDefinition } from "../../shared/schemas/execution/codes";
-import { codeDefinitionSchema } from "../../shared/schemas/execution/codes";
-import { isReservedRunFileName } from "../../shared/schemas/execution/run-folder";
+import type { Code, CodeDefinition } from "../../shared/schemas/codes";
+import { codeDefinitionSchema } from "../../shared/schemas/codes";
+import { isReservedRunFileName } from "../../shared/schemas/run-folder";
+import { recordAudit } from "../audit/record-audit";
 import type { Principal } from "../auth/principal";
 import type { Database } from "../db/client";
 import { codes, recipes } from "../db/schema";
-import { outputRuleProblems } from "../execution/output-rules";
+import { outputRuleProblems } from "../execution/output-rule-checks";
 import { compileParameterSchema, ParameterSchemaError } from "../execution/parameters";
 import { checkCodeTemplates } from "../execution/templates";
 import { AppError, conflict, forbidden, notFound } from "../http/errors";
-import { requireGroupRole } from "./access";
-import { recordAudit } from "./audit.service";
-import { requireRoleFor } from "./hosts.service";
+import { requireGroupRole, requireRoleFor } from "./access";
 
 type CodeRow = typeof codes.$inferSelect;
 type Problem = { path: string; message: string };

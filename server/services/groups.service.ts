@@ -1,11 +1,11 @@
 import { and, eq, sql } from "drizzle-orm";
 import type { CreateGroupRequest, Group } from "../../shared/schemas/groups";
+import { recordAudit } from "../audit/record-audit";
 import type { Principal } from "../auth/principal";
 import type { Database } from "../db/client";
 import { groups, memberships } from "../db/schema";
 import { conflict } from "../http/errors";
 import { requireGroupRole, requireSiteAdmin } from "./access";
-import { recordAudit } from "./audit.service";
 
 const memberCount = sql<number>`(select count(*)::int from ${memberships} m where m.group_id = ${groups.id})`;
 

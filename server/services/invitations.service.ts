@@ -1,10 +1,11 @@
 import { and, desc, eq, gt, isNull, sql } from "drizzle-orm";
+import type { GroupRole } from "../../shared/schemas/groups";
 import type {
   CreateInvitationRequest,
-  GroupRole,
   Invitation,
   InvitationPreview,
-} from "../../shared/schemas/groups";
+} from "../../shared/schemas/invitations";
+import { recordAudit } from "../audit/record-audit";
 import type { Principal } from "../auth/principal";
 import { hashSecret, newSecret } from "../auth/tokens";
 import type { Database } from "../db/client";
@@ -13,7 +14,6 @@ import { AppError, conflict, forbidden, notFound } from "../http/errors";
 import type { Mailer } from "../mail/mailer";
 import { invitationMail } from "../mail/templates";
 import { requireGroupRole } from "./access";
-import { recordAudit } from "./audit.service";
 
 type InvitationRow = typeof invitations.$inferSelect;
 

@@ -7,8 +7,9 @@ import { and, desc, eq, gt, inArray, isNull } from "drizzle-orm";
 import { alias } from "drizzle-orm/pg-core";
 import type pg from "pg";
 import type PgBoss from "pg-boss";
+import type { CodeDefinition } from "../../shared/schemas/codes";
+import { codeDefinitionSchema } from "../../shared/schemas/codes";
 import {
-  codeDefinitionSchema,
   FINAL_RUN_STATES,
   type OnDuplicate,
   type ResubmitRunRequest,
@@ -20,8 +21,8 @@ import {
   type RunSummary,
   runSpecSchema,
   runStageProgressSchema,
-} from "../../shared/schemas/execution";
-import type { CodeDefinition } from "../../shared/schemas/execution/codes";
+} from "../../shared/schemas/runs";
+import { recordAudit } from "../audit/record-audit";
 import type { Principal } from "../auth/principal";
 import type { Database } from "../db/client";
 import { withClientTransaction } from "../db/client-transaction";
@@ -45,7 +46,6 @@ import { AppError, conflict, forbidden, notFound } from "../http/errors";
 import { RUN_STEP_QUEUES } from "../queue/queues";
 import { requireGroupRole } from "./access";
 import { activeAllocation, reserveAgainstAllocation } from "./allocations.service";
-import { recordAudit } from "./audit.service";
 import { chooseAccount } from "./host-accounts.service";
 
 export type RunDeps = { db: Database; pool: pg.Pool; boss: PgBoss };

@@ -15,12 +15,13 @@ import { chown, lchown, readFile, stat, symlink, writeFile } from "node:fs/promi
 import { tmpdir } from "node:os";
 import path from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { fingerprintOf } from "../../server/crypto/ssh-public-keys";
+import { fetchHostKey } from "../../server/hosts/host-key-probe";
 import { readLogFrom, readLogsFrom } from "../../worker/logs/tail";
 import { directScheduler } from "../../worker/schedulers/direct";
 import { slurmScheduler } from "../../worker/schedulers/slurm";
 import type { JobStatus, JobSubmission } from "../../worker/schedulers/types";
 import { HostKeyMismatchError, RemotePathError, type TransportError } from "../../worker/ssh/errors";
-import { fetchHostKey, fingerprintOf } from "../../worker/ssh/host-key";
 import { SshPool, type SshTarget } from "../../worker/ssh/pool";
 import { prepareRunDir, stageFiles } from "../../worker/ssh/remote-fs";
 import type { RemoteSession } from "../../worker/ssh/session";

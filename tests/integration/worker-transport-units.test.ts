@@ -9,6 +9,7 @@ import { mkdtempSync, rmSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import path from "node:path";
 import { afterAll, describe, expect, it } from "vitest";
+import { fingerprintOf, parsePublicKeyLine } from "../../server/crypto/ssh-public-keys";
 import { completeUtf8Length, consumableLength } from "../../worker/logs/tail";
 import { directStatusOf } from "../../worker/schedulers/direct";
 import {
@@ -25,7 +26,6 @@ import {
   RemotePathError,
   TransportError,
 } from "../../worker/ssh/errors";
-import { fingerprintOf, parsePublicKeyLine } from "../../worker/ssh/host-key";
 import { commandLine, shellQuote } from "../../worker/ssh/quote";
 import { assertInside, normaliseBaseDir, parseSha256sum } from "../../worker/ssh/remote-fs";
 import { chargeFor, wallTimeLimitMessage } from "../../worker/steps/collect";

@@ -7,13 +7,17 @@
 import { createHash } from "node:crypto";
 import { Client, type SFTPWrapper } from "ssh2";
 import {
+  fingerprintOfBlob,
+  hostKeyAlgorithmsFor,
+  parsePublicKeyLine,
+} from "../../server/crypto/ssh-public-keys";
+import {
   AuthenticationError,
   classifySshError,
   HostKeyMismatchError,
   type SshError,
   TransportError,
 } from "./errors";
-import { fingerprintOfBlob, hostKeyAlgorithmsFor, parsePublicKeyLine } from "./host-key";
 
 export type SshTarget = {
   /** Pool key, e.g. "<hostId>:<accountId>": connections are shared by operations with the same key. */

@@ -6,12 +6,12 @@
 import { and, eq, inArray } from "drizzle-orm";
 import { withClientTransaction } from "../../server/db/client-transaction";
 import { hosts, runLogChunks, runs, runTimings } from "../../server/db/schema";
-import { compileOutputRules, parseLogLines } from "../../server/execution/output-rules";
 import { transitionRun } from "../../server/execution/run-transitions";
 import { RUN_STEP_QUEUES } from "../../server/queue/queues";
 import type { WorkerContext } from "../context";
 import { guardStep, holdHostRuns } from "../failures";
 import { groupBy } from "../group-by";
+import { compileOutputRules, parseLogLines } from "../logs/output-rules";
 import { advanceProgress, storedProgress } from "../logs/progress";
 import { readLogFrom } from "../logs/tail";
 import { type HostRow, jobRefOf, loadHost, planOf, type RunRow, sessionFor } from "../run-runtime";

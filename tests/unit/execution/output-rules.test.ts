@@ -3,14 +3,14 @@
  * timings and progress are the numbers printed in the sample lines themselves.
  */
 import { afterEach, describe, expect, it, vi } from "vitest";
+import { outputRuleProblems } from "../../../server/execution/output-rule-checks";
+import type { RunPlan } from "../../../server/execution/run-plan";
 import {
   compileOutputRules,
   MAX_RULE_LINE_CHARS,
-  outputRuleProblems,
   parseLogLines,
   RULE_TIME_BUDGET_MS,
-} from "../../../server/execution/output-rules";
-import type { RunPlan } from "../../../server/execution/run-plan";
+} from "../../../worker/logs/output-rules";
 import { regExpSourcesRunDuring } from "./native-regexp";
 
 function planWith(outputRules: { progress: string[]; timings: string[] }): RunPlan {

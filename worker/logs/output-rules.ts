@@ -3,13 +3,13 @@
  * stage markers Sigmaflow's batch script prints (`[sigmaflow] stage 2/3 inner: start …`).
  *
  * Output rules are patterns written by group members and run on the worker's event loop, so they are
- * compiled as RE2 (user-patterns.ts) and matched in time linear in the line. Parsing is also bounded
- * per chunk: lines longer than MAX_RULE_LINE_CHARS are not matched, and once a chunk has spent
- * RULE_TIME_BUDGET_MS on rules the rest of it is only scanned for stage markers. Either case leaves a
+ * compiled as RE2 (server/execution/user-patterns.ts) and matched in time linear in the line. Parsing is
+ * also bounded per chunk: lines longer than MAX_RULE_LINE_CHARS are not matched, and once a chunk has
+ * spent RULE_TIME_BUDGET_MS on rules the rest of it is only scanned for stage markers. Either case leaves a
  * note in the result; the log text itself is stored whole regardless.
  */
-import type { RunPlan } from "./run-plan";
-import { compileUserPattern, PatternError, type UserPattern } from "./user-patterns";
+import type { RunPlan } from "../../server/execution/run-plan";
+import { compileUserPattern, PatternError, type UserPattern } from "../../server/execution/user-patterns";
 
 export type ParsedTiming = { stage: string; symmetry: string; elapsedMs: number };
 export type ParsedProgress = { stage: string; done?: number; total?: number; percent?: number };
@@ -20,7 +20,6 @@ export type LogParseResult = {
   /** What was left unparsed and why (long lines, the time budget, unusable rules); empty normally. */
   notes: string[];
 };
-type OutputRules = RunPlan["stages"][number]["outputRules"];
 
 /** Lines longer than this are not matched against output rules (progress lines are short). */
 export const MAX_RULE_LINE_CHARS = 1000;
@@ -31,28 +30,10 @@ const STAGE_MARKER = /^\[sigmaflow\] stage (\d+)\/(\d+) ([a-z][a-z0-9-]*): (star
 
 type CompiledStage = { name: string; progress: UserPattern[]; timings: UserPattern[]; refused: string[] };
 
-/** Why each output rule of a code definition cannot be used, with its path; empty when all can. */
-export function outputRuleProblems(rules: OutputRules): { path: string; message: string }[] {
-  const problems: { path: string; message: string }[] = [];
-  for (const kind of ["progress", "timings"] as const) {
-    rules[kind].forEach((source, index) => {
-      try {
-        compileUserPattern(source);
-      } catch (error) {
-        if (!(error instanceof PatternError)) throw error;
-        problems.push({
-          path: `outputRules.${kind}.${index}`,
-          message: `Not a usable pattern: ${error.reason}`,
-        });
-      }
-    });
-  }
-  return problems;
-}
-
 /**
- * Compiles each stage's rules. Rules are checked when a code is registered; one that still fails here
- * (stored before a rule changed) is left out and named in the notes rather than failing the poll.
+ * Compiles each stage's rules. Rules are checked when a code is registered
+ * (server/execution/output-rule-checks.ts); one that still fails here (stored before a rule changed) is
+ * left out and named in the notes rather than failing the poll.
  */
 export function compileOutputRules(plan: RunPlan): Map<string, CompiledStage> {
   return new Map(

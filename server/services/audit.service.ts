@@ -175,7 +175,10 @@ async function currentTargets(db: DbExecutor, groupId: string, rows: AuditRow[])
     );
   }
   if (idsOf("group").includes(groupId)) {
-    put("group", await db.select({ id: groups.id, name: groups.name }).from(groups).where(eq(groups.id, groupId)));
+    put(
+      "group",
+      await db.select({ id: groups.id, name: groups.name }).from(groups).where(eq(groups.id, groupId)),
+    );
   }
   return found;
 }
@@ -219,7 +222,8 @@ export async function listGroupAudit(
     for (const row of rows) {
       if (row.targetType !== type || row.targetId === null) continue;
       const name = recordedName(row, hostName);
-      if (name !== null && !recorded.has(key(type, row.targetId))) recorded.set(key(type, row.targetId), name);
+      if (name !== null && !recorded.has(key(type, row.targetId)))
+        recorded.set(key(type, row.targetId), name);
     }
   }
 

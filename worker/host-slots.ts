@@ -8,7 +8,7 @@ import { and, asc, count, eq, inArray, isNotNull, sql } from "drizzle-orm";
 import { hosts, runs } from "../server/db/schema";
 import { transitionRun } from "../server/execution/run-transitions";
 import { RUN_STEP_QUEUES } from "../server/queue/queues";
-import type { RunState } from "../shared/schemas/execution/runs";
+import type { RunState } from "../shared/schemas/runs";
 import type { WorkerContext } from "./context";
 import type { RunRow } from "./run-runtime";
 

@@ -8,7 +8,7 @@ import { withClientTransaction } from "../server/db/client-transaction";
 import { hosts, runs } from "../server/db/schema";
 import { transitionRun } from "../server/execution/run-transitions";
 import { RUN_STEP_QUEUES } from "../server/queue/queues";
-import type { RunState } from "../shared/schemas/execution/runs";
+import type { RunState } from "../shared/schemas/runs";
 import type { WorkerContext } from "./context";
 import type { HeldStep } from "./failures";
 import { groupBy } from "./group-by";

@@ -12,7 +12,7 @@ import { createHash } from "node:crypto";
 import { Ajv2020, type ErrorObject, type Options, type ValidateFunction } from "ajv/dist/2020.js";
 import addFormatsModule from "ajv-formats";
 import { findExcessDepth } from "../../shared/json-depth";
-import type { CodeDefinition } from "../../shared/schemas/execution/codes";
+import type { CodeDefinition } from "../../shared/schemas/codes";
 import { compileUserPattern, PatternError } from "./user-patterns";
 
 // ajv-formats is CommonJS with `exports.default`; under ESM interop the function may sit one level down.

@@ -10,7 +10,7 @@
  *   <run dir>/job.log                      stdout and stderr of the whole job
  */
 import { createHash } from "node:crypto";
-import type { CodeDefinition } from "../../shared/schemas/execution/codes";
+import type { CodeDefinition } from "../../shared/schemas/codes";
 import { renderCodeFiles } from "./templates";
 
 export type PlanFile = { relativePath: string; contentBase64: string; sha256: string };

@@ -2,13 +2,8 @@
  * What a run asks for before it is planned: resources filled in from the recipe's codes, and a
  * resubmission's changes applied to the spec of the run it copies.
  */
-import type { CodeDefinition } from "../../shared/schemas/execution/codes";
-import type {
-  RunResources,
-  RunSpec,
-  RunSpecChanges,
-  RunSpecRequest,
-} from "../../shared/schemas/execution/runs";
+import type { CodeDefinition } from "../../shared/schemas/codes";
+import type { RunResources, RunSpec, RunSpecChanges, RunSpecRequest } from "../../shared/schemas/runs";
 
 /** The longest wall time a run may ask for, and the longest run name (runSpecSchema). */
 const MAX_WALL_TIME_MINUTES = 43_200;

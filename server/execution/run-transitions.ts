@@ -8,7 +8,7 @@
  * even when the worker is the one that sees the scheduler confirm it.
  */
 import { and, eq, inArray } from "drizzle-orm";
-import type { RunState } from "../../shared/schemas/execution/runs";
+import type { RunState } from "../../shared/schemas/runs";
 import type { DbExecutor } from "../db/client";
 import { runEvents, runs } from "../db/schema";
 

@@ -25,7 +25,7 @@
 import { createHash } from "node:crypto";
 import { createRequire } from "node:module";
 import nunjucks from "nunjucks";
-import type { CodeDefinition, TemplateFormat } from "../../shared/schemas/execution/codes";
+import type { CodeDefinition, TemplateFormat } from "../../shared/schemas/codes";
 import { compileUserPattern, PatternError, UserPattern } from "./user-patterns";
 
 export class TemplateError extends Error {

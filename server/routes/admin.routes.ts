@@ -1,5 +1,5 @@
 import { Router } from "express";
-import { adminUserListSchema } from "../../shared/schemas/auth";
+import { adminUserListSchema } from "../../shared/schemas/users";
 import { requirePrincipal } from "../auth/principal";
 import { shape } from "../http/validate";
 import { listUsersForAdmin } from "../services/users.service";

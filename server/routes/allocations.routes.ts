@@ -5,7 +5,7 @@ import {
   allocationSchema,
   createAllocationRequestSchema,
   ledgerSchema,
-} from "../../shared/schemas/execution/allocations";
+} from "../../shared/schemas/allocations";
 import { requirePrincipal } from "../auth/principal";
 import { parseBody, parseParams, shape } from "../http/validate";
 import { allocationLedger, createAllocation, listAllocations } from "../services/allocations.service";

@@ -4,7 +4,7 @@ import {
   apiTokenListSchema,
   createApiTokenRequestSchema,
   createdApiTokenSchema,
-} from "../../shared/schemas/auth";
+} from "../../shared/schemas/tokens";
 import { requirePrincipal } from "../auth/principal";
 import { forbidden } from "../http/errors";
 import { parseBody, parseParams, shape } from "../http/validate";

@@ -6,7 +6,7 @@ import {
   codeImportSchema,
   codeListSchema,
   codeSchema,
-} from "../../shared/schemas/execution/codes";
+} from "../../shared/schemas/codes";
 import { requirePrincipal } from "../auth/principal";
 import { parseBody, parseParams, shape } from "../http/validate";
 import {

@@ -1,17 +1,13 @@
 import { Router } from "express";
 import { z } from "zod";
-import { auditListSchema } from "../../shared/schemas/auth";
+import { auditListSchema } from "../../shared/schemas/audit";
+import { createGroupRequestSchema, groupListSchema, groupSchema } from "../../shared/schemas/groups";
 import {
-  createGroupRequestSchema,
   createInvitationRequestSchema,
-  groupListSchema,
-  groupSchema,
   invitationListSchema,
   invitationSchema,
-  memberListSchema,
-  memberSchema,
-  updateMemberRequestSchema,
-} from "../../shared/schemas/groups";
+} from "../../shared/schemas/invitations";
+import { memberListSchema, memberSchema, updateMemberRequestSchema } from "../../shared/schemas/members";
 import { requirePrincipal } from "../auth/principal";
 import { parseBody, parseParams, shape } from "../http/validate";
 import { listGroupAudit } from "../services/audit.service";

@@ -1,7 +1,7 @@
 import { performance } from "node:perf_hooks";
 import { sql } from "drizzle-orm";
 import { Router } from "express";
-import { healthSchema } from "../../shared/schemas/auth";
+import { healthSchema } from "../../shared/schemas/health";
 import { shape } from "../http/validate";
 import type { RouteContext } from "./context";
 

@@ -1,17 +1,19 @@
 import { Router } from "express";
 import { z } from "zod";
 import {
-  confirmHostKeyRequestSchema,
   createHostAccountRequestSchema,
-  createHostRequestSchema,
   hostAccountListSchema,
   hostAccountSchema,
-  hostListSchema,
-  hostSchema,
   patchHostAccountRequestSchema,
   replaceHostAccountRequestSchema,
-} from "../../shared/schemas/execution/hosts";
-import { patchHostRequestSchema } from "../../shared/schemas/execution/hosts-extra";
+} from "../../shared/schemas/host-accounts";
+import {
+  confirmHostKeyRequestSchema,
+  createHostRequestSchema,
+  hostListSchema,
+  hostSchema,
+  patchHostRequestSchema,
+} from "../../shared/schemas/hosts";
 import { requirePrincipal } from "../auth/principal";
 import { parseBody, parseParams, shape } from "../http/validate";
 import {

@@ -1,6 +1,6 @@
 import { Router } from "express";
 import { z } from "zod";
-import { acceptInvitationResponseSchema, invitationPreviewSchema } from "../../shared/schemas/groups";
+import { acceptInvitationResponseSchema, invitationPreviewSchema } from "../../shared/schemas/invitations";
 import { requirePrincipal } from "../auth/principal";
 import { parseParams, shape } from "../http/validate";
 import { acceptInvitation, previewInvitation } from "../services/invitations.service";

@@ -1,10 +1,6 @@
 import { Router } from "express";
 import { z } from "zod";
-import {
-  createRecipeRequestSchema,
-  recipeListSchema,
-  recipeSchema,
-} from "../../shared/schemas/execution/recipes";
+import { createRecipeRequestSchema, recipeListSchema, recipeSchema } from "../../shared/schemas/recipes";
 import { requirePrincipal } from "../auth/principal";
 import { parseBody, parseParams, shape } from "../http/validate";
 import { createRecipe, deleteRecipe, getRecipe, listRecipes } from "../services/recipes.service";

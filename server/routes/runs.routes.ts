@@ -8,7 +8,7 @@ import {
   runLogSchema,
   runStateSchema,
   runSummarySchema,
-} from "../../shared/schemas/execution";
+} from "../../shared/schemas/runs";
 import { requirePrincipal } from "../auth/principal";
 import { validationError } from "../http/errors";
 import { parseBody, parseParams, shape } from "../http/validate";

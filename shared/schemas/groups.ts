@@ -1,5 +1,5 @@
 import { z } from "zod";
-import { emailSchema, isoDateTimeSchema, uuidSchema } from "./common";
+import { isoDateTimeSchema, uuidSchema } from "./common";
 
 /**
  * Roles inside a group. `collaborator` reads results only, `member` (a researcher) may submit work,
@@ -37,55 +37,3 @@ export const createGroupRequestSchema = z.strictObject({
   description: z.string().trim().max(2000).default(""),
 });
 export type CreateGroupRequest = z.input<typeof createGroupRequestSchema>;
-
-export const memberSchema = z.object({
-  userId: uuidSchema,
-  email: z.string(),
-  displayName: z.string(),
-  role: groupRoleSchema,
-  joinedAt: isoDateTimeSchema,
-});
-export type Member = z.infer<typeof memberSchema>;
-
-export const memberListSchema = z.object({ members: z.array(memberSchema) });
-export type MemberList = z.infer<typeof memberListSchema>;
-
-export const updateMemberRequestSchema = z.strictObject({ role: groupRoleSchema });
-export type UpdateMemberRequest = z.infer<typeof updateMemberRequestSchema>;
-
-export const invitationStatusSchema = z.enum(["pending", "accepted", "revoked", "expired"]);
-
-export const invitationSchema = z.object({
-  id: uuidSchema,
-  groupId: uuidSchema,
-  email: z.string(),
-  role: groupRoleSchema,
-  status: invitationStatusSchema,
-  invitedBy: z.string(),
-  createdAt: isoDateTimeSchema,
-  expiresAt: isoDateTimeSchema,
-});
-export type Invitation = z.infer<typeof invitationSchema>;
-
-export const invitationListSchema = z.object({ invitations: z.array(invitationSchema) });
-export type InvitationList = z.infer<typeof invitationListSchema>;
-
-export const createInvitationRequestSchema = z.strictObject({
-  email: emailSchema,
-  role: groupRoleSchema.default("member"),
-});
-export type CreateInvitationRequest = z.input<typeof createInvitationRequestSchema>;
-
-/** What the invitee sees before accepting (looked up by the secret token from the e-mail). */
-export const invitationPreviewSchema = z.object({
-  groupName: z.string(),
-  groupSlug: z.string(),
-  email: z.string(),
-  role: groupRoleSchema,
-  status: invitationStatusSchema,
-  invitedBy: z.string(),
-  expiresAt: isoDateTimeSchema,
-});
-export type InvitationPreview = z.infer<typeof invitationPreviewSchema>;
-
-export const acceptInvitationResponseSchema = z.object({ groupId: uuidSchema, role: groupRoleSchema });

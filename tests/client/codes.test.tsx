@@ -1,5 +1,5 @@
 /**
- * The Codes page against the fake API (shared/schemas/execution/codes.ts is the contract).
+ * The Codes page against the fake API (shared/schemas/codes.ts is the contract).
  *
  * Regression: the page said "No codes connected yet" while the group had ten codes — it was a static
  * placeholder that never asked `GET /api/groups/:groupId/codes`. It now lists what that answers.

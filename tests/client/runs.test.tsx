@@ -1,5 +1,5 @@
 /**
- * The runs pages against the fake API (shared/schemas/execution/runs.ts is the contract): the list with
+ * The runs pages against the fake API (shared/schemas/runs.ts is the contract): the list with
  * states and reasons, cancel for members (a POST carrying the CSRF token), read-only for collaborators,
  * a run's progress, history, timings, collected files and log, reused results, and the short run address
  * that run e-mails link to.

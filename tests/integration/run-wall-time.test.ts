@@ -5,7 +5,7 @@
  * reports it (Slurm: TIMEOUT); the run then fails with the limit as its reason, and is charged at most
  * its reservation, with any use beyond it stated in the ledger and the run's history.
  *
- * The limit is 1 minute, the smallest a run spec allows (shared/schemas/execution/runs.ts). The code
+ * The limit is 1 minute, the smallest a run spec allows (shared/schemas/runs.ts). The code
  * ignores TERM, so it outlives the batch script and is ended by KILL after the worker's grace period
  * (2 s here).
  * Expected figures: reservation = cores × wall time = 1 × 60 core-seconds (DEVELOPERS.md, run creation).

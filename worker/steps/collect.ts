@@ -7,7 +7,7 @@ import { createHash } from "node:crypto";
 import { and, eq } from "drizzle-orm";
 import { ledgerEntries, runArtifacts, runs, users } from "../../server/db/schema";
 import { transitionRun } from "../../server/execution/run-transitions";
-import type { RunState } from "../../shared/schemas/execution/runs";
+import type { RunState } from "../../shared/schemas/runs";
 import type { WorkerContext } from "../context";
 import { guardStep } from "../failures";
 import { loadRun, runtimeFor } from "../run-runtime";

@@ -1,5 +1,4 @@
-import type { AdminUser, ApiToken, Group, Invitation, Me, Member } from "@shared/schemas";
-import type { RunDetail } from "@shared/schemas/execution";
+import type { AdminUser, ApiToken, Group, Invitation, Me, Member, RunDetail } from "@shared/schemas";
 import { HttpResponse, http } from "msw";
 import { adminUsers, kestrel, kestrelMembers, marrow } from "./fixtures";
 import { server } from "./server";

@@ -1,4 +1,4 @@
-import type { RunDetail } from "@shared/schemas/execution";
+import type { RunDetail } from "@shared/schemas";
 import { KESTREL_ID } from "./fixtures";
 
 export const RUN_IDS = {

@@ -1,13 +1,13 @@
 /**
  * Regression: a code could name an input file `sigmaflow.args`, the file that carries each stage's
  * arguments, and so replace it. Every name Sigmaflow writes into a run folder is reserved
- * (shared/schemas/execution/run-folder.ts); this checks the list against what the run plan and the
+ * (shared/schemas/run-folder.ts); this checks the list against what the run plan and the
  * schedulers actually write, so a new file there cannot be forgotten.
  */
 import { describe, expect, it } from "vitest";
 import { buildRunPlan } from "../../../server/execution/run-plan";
-import { codeDefinitionSchema } from "../../../shared/schemas/execution/codes";
-import { isReservedRunFileName } from "../../../shared/schemas/execution/run-folder";
+import { codeDefinitionSchema } from "../../../shared/schemas/codes";
+import { isReservedRunFileName } from "../../../shared/schemas/run-folder";
 import { DIRECT_JOB_FILES } from "../../../worker/schedulers/direct";
 import { SLURM_JOB_FILES } from "../../../worker/schedulers/slurm";
 

@@ -10,7 +10,7 @@
 import { execFileSync } from "node:child_process";
 import { describe, expect, it } from "vitest";
 import { checkCodeTemplates, renderCodeFiles, TemplateError } from "../../../server/execution/templates";
-import { type CodeDefinition, codeDefinitionSchema } from "../../../shared/schemas/execution/codes";
+import { type CodeDefinition, codeDefinitionSchema } from "../../../shared/schemas/codes";
 import { regExpSourcesRunDuring } from "./native-regexp";
 
 const HOSTILE: Record<string, string> = {

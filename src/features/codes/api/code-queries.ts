@@ -1,4 +1,4 @@
-import { codeListSchema } from "@shared/schemas/execution";
+import { codeListSchema } from "@shared/schemas";
 import { queryOptions } from "@tanstack/react-query";
 import { api } from "@/lib/api-client";
 

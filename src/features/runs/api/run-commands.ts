@@ -1,4 +1,4 @@
-import { runSummarySchema } from "@shared/schemas/execution";
+import { runSummarySchema } from "@shared/schemas";
 import { api } from "@/lib/api-client";
 
 /** Queued: never starts. On the scheduler: cancelled there, then `cancelled` once it confirms. */

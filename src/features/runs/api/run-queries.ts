@@ -4,7 +4,7 @@ import {
   runDetailSchema,
   runListSchema,
   runLogSchema,
-} from "@shared/schemas/execution";
+} from "@shared/schemas";
 import { queryOptions } from "@tanstack/react-query";
 import { api } from "@/lib/api-client";
 

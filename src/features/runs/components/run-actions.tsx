@@ -1,4 +1,4 @@
-import type { RunSummary } from "@shared/schemas/execution";
+import type { RunSummary } from "@shared/schemas";
 import { useMutation, useQueryClient } from "@tanstack/react-query";
 import { Button } from "@/components/ui/button";
 import { Notice } from "@/components/ui/notice";

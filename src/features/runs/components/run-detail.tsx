@@ -1,4 +1,4 @@
-import type { RunDetail } from "@shared/schemas/execution";
+import type { RunDetail } from "@shared/schemas";
 import { useQuery } from "@tanstack/react-query";
 import { Card, CardBody } from "@/components/ui/card";
 import { Table, TBody, TD, TH, THead, TR } from "@/components/ui/table";

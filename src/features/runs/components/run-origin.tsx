@@ -1,4 +1,4 @@
-import type { RunDetail } from "@shared/schemas/execution";
+import type { RunDetail } from "@shared/schemas";
 import { useQuery } from "@tanstack/react-query";
 import { Link } from "react-router-dom";
 import { Notice } from "@/components/ui/notice";

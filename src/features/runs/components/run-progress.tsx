@@ -1,4 +1,4 @@
-import type { RunProgress as RunProgressData } from "@shared/schemas/execution";
+import type { RunProgress as RunProgressData } from "@shared/schemas";
 
 function describe(progress: RunProgressData): string {
   const stage = `Stage ${progress.stageIndex} of ${progress.stageCount}: ${progress.stage}`;

@@ -1,4 +1,4 @@
-import type { RunState } from "@shared/schemas/execution";
+import type { RunState } from "@shared/schemas";
 import { Badge, type BadgeTone } from "@/components/ui/badge";
 
 const TONES: Record<RunState, BadgeTone> = {

@@ -1,5 +1,5 @@
 import { z } from "zod";
-import { isoDateTimeSchema, uuidSchema } from "../common";
+import { isoDateTimeSchema, uuidSchema } from "./common";
 
 export const runStateSchema = z.enum([
   "queued",

@@ -1,5 +1,5 @@
 import { z } from "zod";
-import { isoDateTimeSchema, uuidSchema } from "../common";
+import { isoDateTimeSchema, uuidSchema } from "./common";
 import { identifierSchema, safeFileNameSchema } from "./names";
 
 /** How parameter values are escaped when a template puts them into a file of this kind. */

@@ -1,5 +1,5 @@
 import { z } from "zod";
-import { isoDateTimeSchema, uuidSchema } from "../common";
+import { isoDateTimeSchema, uuidSchema } from "./common";
 import { identifierSchema } from "./names";
 
 export const recipeStageSchema = z.strictObject({ name: identifierSchema, codeId: uuidSchema });

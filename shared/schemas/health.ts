@@ -1,0 +1,8 @@
+import { z } from "zod";
+
+export const healthSchema = z.object({
+  status: z.enum(["ok", "degraded"]),
+  database: z.object({ ok: z.boolean(), latencyMs: z.number().nullable(), error: z.string().optional() }),
+  version: z.string(),
+});
+export type Health = z.infer<typeof healthSchema>;

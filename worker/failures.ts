@@ -6,10 +6,10 @@
  * so pg-boss retries the item once PostgreSQL is back.
  */
 import { and, eq, inArray, sql } from "drizzle-orm";
+import { recordAudit } from "../server/audit/record-audit";
 import { hostAccounts, hosts, ledgerEntries, memberships, runs, users } from "../server/db/schema";
 import { transitionRun } from "../server/execution/run-transitions";
 import { RUN_STEP_QUEUES, type RunStepName } from "../server/queue/queues";
-import { recordAudit } from "../server/services/audit.service";
 import type { RunState } from "../shared/schemas/runs";
 import type { WorkerContext } from "./context";
 import type { HostRow, RunRow } from "./run-runtime";

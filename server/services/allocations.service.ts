@@ -9,13 +9,12 @@
  */
 import { and, asc, eq, gt, inArray, lt, lte, sql } from "drizzle-orm";
 import type { Allocation } from "../../shared/schemas/allocations";
+import { recordAudit } from "../audit/record-audit";
 import type { Principal } from "../auth/principal";
 import type { Database, DbExecutor } from "../db/client";
 import { allocations, groups, ledgerEntries } from "../db/schema";
 import { AppError, conflict, notFound } from "../http/errors";
-import { requireGroupRole } from "./access";
-import { recordAudit } from "./audit.service";
-import { requireRoleFor } from "./hosts.service";
+import { requireGroupRole, requireRoleFor } from "./access";
 
 export type AllocationRow = typeof allocations.$inferSelect;
 export type LedgerTotals = { reserveSeconds: number; releaseSeconds: number; chargeSeconds: number };

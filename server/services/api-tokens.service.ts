@@ -1,11 +1,11 @@
 import { and, desc, eq, gt, isNull, lt, or } from "drizzle-orm";
 import type { ApiToken, CreatedApiToken } from "../../shared/schemas/tokens";
+import { recordAudit } from "../audit/record-audit";
 import type { Principal } from "../auth/principal";
 import { hashSecret, newSecret } from "../auth/tokens";
 import type { Database } from "../db/client";
 import { apiTokens } from "../db/schema";
 import { notFound } from "../http/errors";
-import { recordAudit } from "./audit.service";
 import { findPrincipal } from "./users.service";
 
 export const API_TOKEN_PREFIX = "sf_";

@@ -2,7 +2,7 @@
  * The accounts Sigmaflow logs in with on a host: one group account (set up by an admin) and personal
  * accounts (each researcher their own). Private keys are generated here or pasted once, stored only
  * encrypted (AES-256-GCM, bound to the account id) and never returned: the API shows the public key to
- * install in ~/.ssh/authorized_keys. The worker decrypts them through `loadAccountCredentials`.
+ * install in ~/.ssh/authorized_keys. Sealing and decrypting live in server/credentials/.
  *
  * Runs point at the account they used, so an account runs have used is never deleted: its owner or an
  * admin disables it (new runs then skip it: a member's runs fall back to the group account) or replaces
@@ -15,22 +15,20 @@ import type {
   HostAccount,
   ReplaceHostAccountRequest,
 } from "../../shared/schemas/host-accounts";
-import { fingerprintOf } from "../../worker/ssh/host-key";
+import { recordAudit } from "../audit/record-audit";
 import type { Principal } from "../auth/principal";
-import { createSecretBox } from "../crypto/secret-box";
+import { type SecretsConfig, sealAccountKey } from "../credentials/account-credentials";
 import { generateSshKeyPair, parsePrivateKey, SshKeyError, type SshKeyPair } from "../crypto/ssh-keys";
+import { fingerprintOf } from "../crypto/ssh-public-keys";
 import type { Database, DbExecutor } from "../db/client";
+import { pgErrorCode } from "../db/pg-errors";
 import { hostAccounts, hosts, runs } from "../db/schema";
 import { AppError, conflict, forbidden, notFound } from "../http/errors";
-import { recordAudit } from "./audit.service";
-import { type HostRow, hostForCaller, pgErrorCode, requireRoleFor } from "./hosts.service";
+import { requireRoleFor } from "./access";
+import { type HostRow, hostForCaller } from "./hosts.service";
 
-export type SecretsConfig = { secretsKey: string };
 export type HostAccountDeps = { db: Database; config: SecretsConfig };
 type AccountRow = typeof hostAccounts.$inferSelect;
-
-/** Ties a ciphertext to its row: a sealed key copied into another account fails to decrypt. */
-const associatedData = (accountId: string) => `host_accounts:${accountId}`;
 
 function toHostAccount(row: AccountRow): HostAccount {
   return {
@@ -110,7 +108,7 @@ function newAccount(
 ): NewAccount {
   const pair = keyPairFor(input, `sigmaflow-${input.username}@${host.name}`);
   const id = randomUUID();
-  const sealed = createSecretBox(deps.config.secretsKey).seal(pair.privateKey, associatedData(id));
+  const sealed = sealAccountKey(deps.config, id, pair.privateKey);
   return {
     id,
     publicKey: pair.publicKey,
@@ -365,21 +363,6 @@ export async function replaceHostAccount(
     if (pgErrorCode(error) === "23505") throw alreadyThere(kindOf(found.account), mine);
     throw error;
   }
-}
-
-/** For the worker: the login name and the decrypted OpenSSH private key of an account. */
-export async function loadAccountCredentials(
-  db: DbExecutor,
-  config: SecretsConfig,
-  accountId: string,
-): Promise<{ username: string; privateKey: string }> {
-  const [row] = await db
-    .select({ username: hostAccounts.username, sealed: hostAccounts.privateKeyEncrypted })
-    .from(hostAccounts)
-    .where(eq(hostAccounts.id, accountId));
-  if (!row) throw notFound("Host account");
-  const privateKey = createSecretBox(config.secretsKey).open(row.sealed, associatedData(accountId));
-  return { username: row.username, privateKey: privateKey.toString("utf8") };
 }
 
 export type ChosenAccount = { id: string; username: string; kind: "personal" | "group" };

@@ -6,13 +6,14 @@
 import { and, asc, eq, sql } from "drizzle-orm";
 import type { GroupRole } from "../../shared/schemas/groups";
 import type { Host, PatchHostRequest } from "../../shared/schemas/hosts";
-import type { HostKey } from "../../worker/ssh/host-key";
+import { recordAudit } from "../audit/record-audit";
 import type { Principal } from "../auth/principal";
+import type { HostKey } from "../crypto/ssh-public-keys";
 import type { Database, DbExecutor } from "../db/client";
+import { pgErrorCode } from "../db/pg-errors";
 import { hosts, runs } from "../db/schema";
 import { AppError, conflict, notFound } from "../http/errors";
-import { requireGroupRole } from "./access";
-import { recordAudit } from "./audit.service";
+import { requireGroupRole, requireRoleFor } from "./access";
 
 export type HostKeyFetcher = (address: string, port: number, timeoutMs: number) => Promise<HostKey>;
 export type HostDeps = { db: Database; fetchHostKey: HostKeyFetcher; hostKeyTimeoutMs?: number };
@@ -28,36 +29,6 @@ export type CreateHostInput = {
 
 export const HOST_KEY_TIMEOUT_MS = 10_000;
 const UNCONFIRMED_MESSAGE = "Compare the host key fingerprint with the host's own and confirm it.";
-
-/** The PostgreSQL error code (e.g. 23503) behind an error, also when the driver wraps it. */
-export function pgErrorCode(error: unknown): string | undefined {
-  let current: unknown = error;
-  for (let depth = 0; depth < 4 && current && typeof current === "object"; depth++) {
-    const code = (current as { code?: unknown }).code;
-    if (typeof code === "string" && /^[0-9A-Z]{5}$/.test(code)) return code;
-    current = (current as { cause?: unknown }).cause;
-  }
-  return undefined;
-}
-
-/**
- * Runs `work` after checking the caller's role in the group owning a row. A row of a group the caller
- * does not belong to is reported as missing under its own name, like the group itself.
- */
-export async function requireRoleFor(
-  db: DbExecutor,
-  principal: Principal,
-  groupId: string,
-  minimum: GroupRole,
-  what: string,
-): Promise<GroupRole | null> {
-  try {
-    return await requireGroupRole(db, principal, groupId, minimum);
-  } catch (error) {
-    if (error instanceof AppError && error.status === 404) throw notFound(what);
-    throw error;
-  }
-}
 
 export function toHost(row: HostRow): Host {
   return {

@@ -5,6 +5,7 @@ import type {
   Invitation,
   InvitationPreview,
 } from "../../shared/schemas/invitations";
+import { recordAudit } from "../audit/record-audit";
 import type { Principal } from "../auth/principal";
 import { hashSecret, newSecret } from "../auth/tokens";
 import type { Database } from "../db/client";
@@ -13,7 +14,6 @@ import { AppError, conflict, forbidden, notFound } from "../http/errors";
 import type { Mailer } from "../mail/mailer";
 import { invitationMail } from "../mail/templates";
 import { requireGroupRole } from "./access";
-import { recordAudit } from "./audit.service";
 
 type InvitationRow = typeof invitations.$inferSelect;
 

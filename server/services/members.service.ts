@@ -1,12 +1,12 @@
 import { and, eq, sql } from "drizzle-orm";
 import type { GroupRole } from "../../shared/schemas/groups";
 import type { Member } from "../../shared/schemas/members";
+import { recordAudit } from "../audit/record-audit";
 import type { Principal } from "../auth/principal";
 import type { Database, DbExecutor } from "../db/client";
 import { memberships, users } from "../db/schema";
 import { conflict, notFound } from "../http/errors";
 import { requireGroupRole } from "./access";
-import { recordAudit } from "./audit.service";
 
 export async function listMembers(db: Database, principal: Principal, groupId: string): Promise<Member[]> {
   await requireGroupRole(db, principal, groupId, "collaborator");

@@ -4,13 +4,13 @@
  */
 import { and, asc, eq, inArray, sql } from "drizzle-orm";
 import type { CreateRecipeRequest, Recipe } from "../../shared/schemas/recipes";
+import { recordAudit } from "../audit/record-audit";
 import type { Principal } from "../auth/principal";
 import type { Database, DbExecutor } from "../db/client";
+import { pgErrorCode } from "../db/pg-errors";
 import { codes, recipes, runs } from "../db/schema";
 import { AppError, conflict, forbidden, notFound } from "../http/errors";
-import { requireGroupRole } from "./access";
-import { recordAudit } from "./audit.service";
-import { pgErrorCode, requireRoleFor } from "./hosts.service";
+import { requireGroupRole, requireRoleFor } from "./access";
 
 type RecipeRow = typeof recipes.$inferSelect;
 type StoredStage = { name: string; codeId: string };

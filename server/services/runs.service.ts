@@ -22,6 +22,7 @@ import {
   runSpecSchema,
   runStageProgressSchema,
 } from "../../shared/schemas/runs";
+import { recordAudit } from "../audit/record-audit";
 import type { Principal } from "../auth/principal";
 import type { Database } from "../db/client";
 import { withClientTransaction } from "../db/client-transaction";
@@ -45,7 +46,6 @@ import { AppError, conflict, forbidden, notFound } from "../http/errors";
 import { RUN_STEP_QUEUES } from "../queue/queues";
 import { requireGroupRole } from "./access";
 import { activeAllocation, reserveAgainstAllocation } from "./allocations.service";
-import { recordAudit } from "./audit.service";
 import { chooseAccount } from "./host-accounts.service";
 
 export type RunDeps = { db: Database; pool: pg.Pool; boss: PgBoss };

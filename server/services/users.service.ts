@@ -1,13 +1,13 @@
 import { eq, sql } from "drizzle-orm";
 import type { Me } from "../../shared/schemas/auth";
 import type { AdminUser } from "../../shared/schemas/users";
+import { recordAudit } from "../audit/record-audit";
 import type { Principal } from "../auth/principal";
 import type { DbExecutor } from "../db/client";
+import { pgErrorCode } from "../db/pg-errors";
 import { groups, memberships, users } from "../db/schema";
 import { AppError } from "../http/errors";
 import { requireSiteAdmin } from "./access";
-import { recordAudit } from "./audit.service";
-import { pgErrorCode } from "./hosts.service";
 
 export type OidcIdentity = {
   issuer: string;

@@ -1,5 +1,6 @@
 export * from "./allocations";
 export * from "./audit";
+export * from "./audit-actions";
 export * from "./auth";
 export * from "./codes";
 export * from "./common";

@@ -4,8 +4,9 @@
  * progress line of that stage. A progress line never decides the stage: the last one read may belong to
  * a stage whose exit and the next stage's start were read after it.
  */
-import type { LogParseResult } from "../../server/execution/output-rules";
+
 import { type RunStageProgress, runStageProgressSchema } from "../../shared/schemas/runs";
+import type { LogParseResult } from "./output-rules";
 
 /** The stored progress of a run, or null before the log reached its first stage (or if unreadable). */
 export function storedProgress(value: unknown): RunStageProgress | null {

@@ -1,12 +1,12 @@
 /**
  * How the poller carries a run's stage and progress from one log chunk to the next
- * (worker/logs/progress.ts with server/execution/output-rules.ts). Chunk boundaries are chosen where a
+ * (worker/logs/progress.ts with worker/logs/output-rules.ts). Chunk boundaries are chosen where a
  * poll can fall: between a stage's last progress line and the next stage's lines.
  */
 import { describe, expect, it } from "vitest";
-import { compileOutputRules, parseLogLines } from "../../../server/execution/output-rules";
 import type { RunPlan } from "../../../server/execution/run-plan";
 import type { RunStageProgress } from "../../../shared/schemas/runs";
+import { compileOutputRules, parseLogLines } from "../../../worker/logs/output-rules";
 import { advanceProgress } from "../../../worker/logs/progress";
 
 const stage = (index: number, name: string, timings: string, progress: string) => ({

@@ -13,9 +13,10 @@ import path from "node:path";
 import pg from "pg";
 import { createDatabase } from "../../server/db/client";
 import { applyMigrations } from "../../server/db/migrate";
-import { type Api, apiClient, waitFor } from "../../tests/integration/support/api-client";
+import { type Api, apiClient } from "../../tests/integration/support/api-client";
 import { addMember, createGroup, createUser, tokenFor } from "../../tests/integration/support/people";
 import { startPrivatePostgres } from "../../tests/integration/support/private-postgres";
+import { waitFor } from "../../tests/integration/support/wait-for";
 import {
   type FakeClusterProcess,
   freePort,
@@ -83,13 +84,13 @@ export async function startEngineStack(options: StackOptions) {
     null,
   );
   await waitFor(
+    "the server to answer /api/health",
     () =>
       fetch(`${baseUrl}/api/health`)
         .then((r) => r.status)
         .catch(() => 0),
     (status) => status === 200,
-    30_000,
-    "the server to answer /api/health",
+    { timeoutMs: 30_000 },
   );
   const workers: ChildProcess[] = [];
   for (let i = 0; i < (options.workers ?? 1); i += 1) {

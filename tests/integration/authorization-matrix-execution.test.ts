@@ -15,7 +15,8 @@ import {
   groupWrite,
   type MatrixCase,
 } from "./support/authorization-matrix";
-import { minimalCode, startTestCluster, type TestCluster } from "./support/catalogue-app";
+import { startTestCluster, type TestCluster } from "./support/catalogue-app";
+import { codeDefinition } from "./support/code-fixtures";
 import { addMember, createGroup, createUser, tokenFor } from "./support/people";
 import { startTestApp } from "./support/test-app";
 import { createTestDatabase, type TestDatabase } from "./support/test-database";
@@ -71,7 +72,7 @@ async function freshAccount(ownerUserId: string | null = null, disabled = false)
 const freshGroupAccount = () => freshAccount(null);
 
 async function freshCode(createdBy: string | null = null): Promise<string> {
-  const definition = minimalCode();
+  const definition = codeDefinition();
   const [row] = await database.db
     .insert(codes)
     .values({ groupId, name: definition.name, version: definition.version, definition, createdBy })
@@ -221,7 +222,7 @@ const CASES: MatrixCase[] = [
     name: "register a code",
     method: "POST",
     path: () => `/api/groups/${groupId}/codes`,
-    body: () => minimalCode(),
+    body: () => codeDefinition(),
     expected: groupWrite(201),
   },
   { name: "read a code", method: "GET", path: () => `/api/codes/${codeId}`, expected: groupRead(200) },
@@ -248,7 +249,7 @@ const CASES: MatrixCase[] = [
     name: "import codes",
     method: "POST",
     path: () => `/api/groups/${groupId}/codes/import`,
-    body: () => ({ format: "sigmaflow-code-definitions", version: 1, codes: [minimalCode()] }),
+    body: () => ({ format: "sigmaflow-code-definitions", version: 1, codes: [codeDefinition()] }),
     expected: groupWrite(201),
   },
   {

@@ -15,6 +15,7 @@ import path from "node:path";
 import { Client, type SFTPWrapper } from "ssh2";
 import { afterAll, beforeAll, describe, it } from "vitest";
 import { z } from "zod";
+import { waitFor } from "./support/wait-for";
 
 const engineEnvSchema = z.object({
   ENGINE_SSH_HOST: z.string().min(1),
@@ -111,24 +112,6 @@ function sftpCall<T>(call: (done: (error: Error | null | undefined, value?: T) =
   );
 }
 
-/** Polls `probe` until `accept` holds or the deadline passes; returns the accepted value. */
-async function pollUntil<T>(
-  what: string,
-  probe: () => Promise<T>,
-  accept: (value: T) => boolean,
-  timeoutMs = 20_000,
-  intervalMs = 100,
-): Promise<T> {
-  const deadline = Date.now() + timeoutMs;
-  let last: T | undefined;
-  while (Date.now() < deadline) {
-    last = await probe();
-    if (accept(last)) return last;
-    await new Promise((resolve) => setTimeout(resolve, intervalMs));
-  }
-  throw new Error(`${what}: condition not met within ${timeoutMs} ms (last value: ${JSON.stringify(last)})`);
-}
-
 const quote = (value: string) => `'${value.replaceAll("'", `'\\''`)}'`;
 
 interface AccountingRow {
@@ -215,8 +198,8 @@ describe.concurrent("OpenSSH + Slurm engines on loopback", () => {
   // next periodic pass (measured here: up to ~5 s later). Until then sacct shows the final State and ExitCode
   // but the placeholder JobName "allocation". Wait for the full record.
   const finalRow = (jobId: string, settled: (row: AccountingRow) => boolean = () => true) =>
-    pollUntil(
-      `sacct final record of job ${jobId}`,
+    waitFor(
+      `the final sacct record of job ${jobId}`,
       () => accounting(jobId),
       (row) =>
         row !== undefined && FINAL_STATES.test(row.state) && row.jobName !== "allocation" && settled(row),
@@ -254,16 +237,16 @@ describe.concurrent("OpenSSH + Slurm engines on loopback", () => {
     expect(await squeueState(jobId)).toMatch(/^(PENDING|CONFIGURING|RUNNING)$/);
     // The worker's guard against a double submit: the token names exactly this job.
     expect(await run(client, `squeue -h --name=${quote(name)} -o %i`)).toBe(jobId);
-    await pollUntil(
-      "job running",
+    await waitFor(
+      "the job to run",
       () => squeueState(jobId),
       (state) => state === "RUNNING",
     );
 
     await sftpCall<void>((done) => sftp.writeFile(path.posix.join(runDir, "release"), "", done));
     const outputPath = path.posix.join(runDir, `${name}.out`);
-    const output = await pollUntil(
-      "job output",
+    const output = await waitFor(
+      "the job's output to say released",
       () => exec(client, `cat ${quote(outputPath)}`).then((r) => r.stdout),
       (text) => text.includes("released"),
     );
@@ -291,8 +274,8 @@ describe.concurrent("OpenSSH + Slurm engines on loopback", () => {
 
   it("ends a cancelled sleeping job as CANCELLED, by the submitting user", async ({ expect }) => {
     const jobId = await submit(`sf-${token}-sleep`, "sleep 300");
-    await pollUntil(
-      "sleeping job running",
+    await waitFor(
+      "the sleeping job to run",
       () => squeueState(jobId),
       (state) => state === "RUNNING",
     );
@@ -302,8 +285,8 @@ describe.concurrent("OpenSSH + Slurm engines on loopback", () => {
     // sacct(1) State: "CANCELLED by <uid>" names who cancelled it.
     expect(row.state).toBe(`CANCELLED by ${uid}`);
     expect(row.jobName).toBe(`sf-${token}-sleep`);
-    await pollUntil(
-      "cancelled job gone from squeue",
+    await waitFor(
+      "the cancelled job to leave squeue",
       () => squeueState(jobId),
       (state) => !/RUNNING|PENDING/.test(state),
     );

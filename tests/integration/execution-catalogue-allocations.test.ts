@@ -4,13 +4,14 @@
  * Expected figures are worked by hand in each test and compared exactly (all are multiples of 1/3600 h
  * that binary floating point represents after one division).
  */
-import { afterAll, beforeAll, describe, expect, it, vi } from "vitest";
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { ledgerEntries } from "../../server/db/schema";
 import { activeAllocation, reserveAgainstAllocation } from "../../server/services/allocations.service";
 import { callApi } from "./support/catalogue-app";
 import { addMember, createGroup, createUser, tokenFor } from "./support/people";
 import { startTestApp } from "./support/test-app";
 import { createTestDatabase, type TestDatabase } from "./support/test-database";
+import { waitFor } from "./support/wait-for";
 
 let database: TestDatabase;
 let app: Awaited<ReturnType<typeof startTestApp>>;
@@ -188,14 +189,16 @@ describe("the active allocation", () => {
       return (await reserveAgainstAllocation(tx, allocation!.id, null, 0)).availableCoreSeconds;
     });
     // The second transaction is blocked on the row lock until the first commits.
-    await vi.waitFor(
+    await waitFor(
+      "the second reservation to wait for the allocation's row lock",
       async () => {
         const waiting = await database.pool.query(
           "select count(*)::int as n from pg_stat_activity where datname = current_database() and wait_event_type = 'Lock' and query ilike '%sigmaflow_reserve_core_seconds%'",
         );
-        expect(waiting.rows[0].n).toBe(1);
+        return waiting.rows[0].n as number;
       },
-      { timeout: 10_000, interval: 20 },
+      (n) => n === 1,
+      { timeoutMs: 10_000, intervalMs: 20 },
     );
     letFirstCommit();
     await first;

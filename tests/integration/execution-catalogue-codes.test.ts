@@ -4,7 +4,8 @@
  */
 import { randomBytes } from "node:crypto";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { callApi, insertRun, minimalCode, startTestCluster, type TestCluster } from "./support/catalogue-app";
+import { callApi, insertRun, startTestCluster, type TestCluster } from "./support/catalogue-app";
+import { codeDefinition } from "./support/code-fixtures";
 import { addMember, createGroup, createUser, tokenFor } from "./support/people";
 import { startTestApp } from "./support/test-app";
 import { createTestDatabase, type TestDatabase } from "./support/test-database";
@@ -55,7 +56,12 @@ afterAll(async () => {
 
 describe("registering codes", () => {
   it("accepts a definition from a member and applies the contract's defaults", async () => {
-    const reply = await call("member", "POST", `/api/groups/${groupId}/codes`, minimalCode("scatter", "2.1"));
+    const reply = await call(
+      "member",
+      "POST",
+      `/api/groups/${groupId}/codes`,
+      codeDefinition({ name: "scatter", version: "2.1" }),
+    );
     expect(reply.status, reply.text).toBe(201);
     expect(reply.body.definition).toMatchObject({
       name: "scatter",
@@ -70,7 +76,12 @@ describe("registering codes", () => {
 
   it("refuses the same name and version twice (409)", async () => {
     const before = await counts();
-    const reply = await call("member", "POST", `/api/groups/${groupId}/codes`, minimalCode("scatter", "2.1"));
+    const reply = await call(
+      "member",
+      "POST",
+      `/api/groups/${groupId}/codes`,
+      codeDefinition({ name: "scatter", version: "2.1" }),
+    );
     expect(reply.status).toBe(409);
     expect(await counts()).toEqual(before);
   });
@@ -122,7 +133,7 @@ describe("registering codes", () => {
     it(`refuses ${label} with 422 naming ${path}, writing nothing`, async () => {
       const before = await counts();
       const reply = await call("member", "POST", `/api/groups/${groupId}/codes`, {
-        ...minimalCode(),
+        ...codeDefinition(),
         ...change,
       });
       expect(reply.status, reply.text).toBe(422);
@@ -135,7 +146,7 @@ describe("registering codes", () => {
 
   it("refuses input files whose names would leave the run folder", async () => {
     const reply = await call("member", "POST", `/api/groups/${groupId}/codes`, {
-      ...minimalCode(),
+      ...codeDefinition(),
       inputTemplates: [{ fileName: "../escape.txt", format: "text", template: "x" }],
     });
     expect(reply.status).toBe(422);
@@ -147,7 +158,7 @@ describe("registering codes", () => {
   it("refuses input and output files named like Sigmaflow's own run-folder files (422), writing nothing", async () => {
     const before = await counts();
     const reply = await call("member", "POST", `/api/groups/${groupId}/codes`, {
-      ...minimalCode(),
+      ...codeDefinition(),
       inputTemplates: [
         { fileName: "input.txt", format: "text", template: "x" },
         { fileName: "sigmaflow.args", format: "text", template: "--evil" },
@@ -167,7 +178,7 @@ describe("registering codes", () => {
     const imported = await call("member", "POST", `/api/groups/${groupId}/codes/import`, {
       format: "sigmaflow-code-definitions",
       version: 1,
-      codes: [{ ...minimalCode(), outputFiles: ["job.log"] }],
+      codes: [{ ...codeDefinition(), outputFiles: ["job.log"] }],
     });
     expect(imported.status, imported.text).toBe(422);
     expect(imported.body.error.details[0].path).toBe("codes.0.outputFiles.0");
@@ -175,9 +186,9 @@ describe("registering codes", () => {
   });
 
   it("does not let collaborators register codes", async () => {
-    expect((await call("collaborator", "POST", `/api/groups/${groupId}/codes`, minimalCode())).status).toBe(
-      403,
-    );
+    expect(
+      (await call("collaborator", "POST", `/api/groups/${groupId}/codes`, codeDefinition())).status,
+    ).toBe(403);
   });
 });
 
@@ -211,7 +222,11 @@ describe("export and import", () => {
     const document = {
       format: "sigmaflow-code-definitions",
       version: 1,
-      codes: [minimalCode("fresh", "1"), minimalCode("scatter", "2.1"), minimalCode("fresher", "1")],
+      codes: [
+        codeDefinition({ name: "fresh", version: "1" }),
+        codeDefinition({ name: "scatter", version: "2.1" }),
+        codeDefinition({ name: "fresher", version: "1" }),
+      ],
     };
     const reply = await call("member", "POST", `/api/groups/${groupId}/codes/import`, document);
     expect(reply.status).toBe(409);
@@ -224,7 +239,10 @@ describe("export and import", () => {
     const document = {
       format: "sigmaflow-code-definitions",
       version: 1,
-      codes: [minimalCode("fine", "1"), { ...minimalCode("broken", "1"), arguments: ["{{ x"] }],
+      codes: [
+        codeDefinition({ name: "fine", version: "1" }),
+        { ...codeDefinition({ name: "broken", version: "1" }), arguments: ["{{ x"] },
+      ],
     };
     const reply = await call("member", "POST", `/api/groups/${groupId}/codes/import`, document);
     expect(reply.status).toBe(422);
@@ -236,7 +254,7 @@ describe("export and import", () => {
     const document = {
       format: "sigmaflow-code-definitions",
       version: 1,
-      codes: [minimalCode("twin", "1"), minimalCode("twin", "1")],
+      codes: [codeDefinition({ name: "twin", version: "1" }), codeDefinition({ name: "twin", version: "1" })],
     };
     const reply = await call("member", "POST", `/api/groups/${groupId}/codes/import`, document);
     expect(reply.status).toBe(409);
@@ -248,7 +266,7 @@ describe("export and import", () => {
     const document = {
       format: "sigmaflow-code-definitions",
       version: 1,
-      codes: names.map((n) => minimalCode(n)),
+      codes: names.map((n) => codeDefinition({ name: n })),
     };
     const reply = await call("member", "POST", `/api/groups/${groupId}/codes/import`, document);
     expect(reply.status).toBe(201);
@@ -266,8 +284,14 @@ describe("recipes", () => {
   let codeId = "";
   let recipeId = "";
   beforeAll(async () => {
-    codeId = (await call("member", "POST", `/api/groups/${groupId}/codes`, minimalCode("target", "1"))).body
-      .id;
+    codeId = (
+      await call(
+        "member",
+        "POST",
+        `/api/groups/${groupId}/codes`,
+        codeDefinition({ name: "target", version: "1" }),
+      )
+    ).body.id;
   });
 
   it("creates a recipe whose stages name their codes", async () => {
@@ -294,7 +318,7 @@ describe("recipes", () => {
       "otherAdmin",
       "POST",
       `/api/groups/${otherGroupId}/codes`,
-      minimalCode("theirs"),
+      codeDefinition({ name: "theirs" }),
     );
     const before = await counts();
     const reply = await call("member", "POST", `/api/groups/${groupId}/recipes`, {
@@ -344,7 +368,12 @@ describe("recipes", () => {
     expect((await call("collaborator", "DELETE", `/api/recipes/${made.body.id}`)).status).toBe(403);
     expect((await call("member", "DELETE", `/api/recipes/${made.body.id}`)).status).toBe(204);
 
-    const lone = await call("admin", "POST", `/api/groups/${groupId}/codes`, minimalCode("lone"));
+    const lone = await call(
+      "admin",
+      "POST",
+      `/api/groups/${groupId}/codes`,
+      codeDefinition({ name: "lone" }),
+    );
     expect((await call("member", "DELETE", `/api/codes/${lone.body.id}`)).status).toBe(403);
     expect((await call("admin", "DELETE", `/api/codes/${lone.body.id}`)).status).toBe(204);
     expect((await call("admin", "GET", `/api/codes/${lone.body.id}`)).status).toBe(404);
@@ -352,7 +381,7 @@ describe("recipes", () => {
 
   // Regression: a member could delete their own recipes but not a code they registered (403).
   it("lets the member who registered an unused code delete it, as with recipes", async () => {
-    const own = await call("member", "POST", `/api/groups/${groupId}/codes`, minimalCode("own"));
+    const own = await call("member", "POST", `/api/groups/${groupId}/codes`, codeDefinition({ name: "own" }));
     expect(own.status, own.text).toBe(201);
     const refused = await call("collaborator", "DELETE", `/api/codes/${own.body.id}`);
     expect(refused.status).toBe(403);

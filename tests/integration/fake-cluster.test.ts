@@ -34,6 +34,7 @@ import ssh2, { type ClientChannel, type ConnectConfig, type SFTPWrapper } from "
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { type FakeCluster, startFakeCluster } from "../../deploy/fake-cluster/server";
 import { testKeyPair } from "./support/keys";
+import { waitFor } from "./support/wait-for";
 
 const USERNAME = "sigmaflow";
 const MAX_SESSIONS = 4;
@@ -48,15 +49,6 @@ type ExecResult = { stdout: string; stderr: string; code: number | null; signal:
 
 const sha256 = (data: Buffer) => createHash("sha256").update(data).digest("hex");
 const blobOf = (publicKeyLine: string) => Buffer.from(publicKeyLine.split(" ")[1] ?? "", "base64");
-
-/** Waits for a condition the server brings about (a file, a process gone); never a fixed sleep. */
-async function waitFor(what: string, condition: () => Promise<boolean> | boolean, timeoutMs = 10_000) {
-  const deadline = Date.now() + timeoutMs;
-  while (!(await condition())) {
-    if (Date.now() > deadline) throw new Error(`timed out waiting for ${what}`);
-    await new Promise((resolve) => setTimeout(resolve, 20));
-  }
-}
 
 function processAlive(pid: number): boolean {
   try {
@@ -310,9 +302,13 @@ describe("fake cluster host", () => {
       );
       expect(processAlive(directPid)).toBe(true);
       channel.close();
-      await waitFor("the direct child to be signalled", () => !processAlive(directPid));
+      await waitFor(
+        "the direct child to be signalled",
+        () => processAlive(directPid),
+        (alive) => !alive,
+      );
       await writeFile(path.join(jobDir, "release"), "");
-      await waitFor("the detached job to finish", () => existsSync(path.join(jobDir, "job.out")));
+      await waitFor("the detached job to finish", () => existsSync(path.join(jobDir, "job.out")), Boolean);
       expect(await readFile(path.join(jobDir, "job.out"), "utf8")).toBe("survived\n");
     });
   });
@@ -362,8 +358,8 @@ describe("fake cluster host", () => {
         );
       expect(await readAt(0)).toBe(11);
       expect(await readAt(11)).toBe(0);
-      expect(lines.some((line) => /Received STATUS \(id:\d+, 1, /.test(line))).toBe(true);
-      expect(lines.some((line) => /Received DATA \(id:\d+, 0\)/.test(line))).toBe(false);
+      expect(lines).toContainEqual(expect.stringMatching(/Received STATUS \(id:\d+, 1, /));
+      expect(lines).not.toContainEqual(expect.stringMatching(/Received DATA \(id:\d+, 0\)/));
     });
 
     it("lists, stats, renames and removes", async () => {

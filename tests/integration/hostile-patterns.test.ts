@@ -7,9 +7,11 @@
  * refused when the code is registered, with a message naming RE2 syntax.
  */
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { type ShellCodeOverrides, shellCode } from "./support/code-fixtures";
 import {
   type FakeHost,
   registerHost,
+  registerRecipe,
   runSpec,
   type Sigmaflow,
   startFakeHost,
@@ -71,27 +73,13 @@ async function healthGapsDuring<T>(work: Promise<T>): Promise<{ result: T; longe
   return { result: await finished, longestGapMs };
 }
 
-/** A one-stage code run by /bin/sh from a rendered run.sh; `extra` adds or overrides definition fields. */
-function shellCode(name: string, extra: Record<string, unknown>) {
-  return sf.api("POST", `/api/groups/${sf.groupId}/codes`, {
-    name,
-    version: "1.0",
-    executable: "/bin/sh",
-    arguments: ["run.sh"],
-    inputTemplates: [{ fileName: "run.sh", format: "text", template: "exit 0\n" }],
-    ...extra,
-  });
+/** Registers a code run by /bin/sh from a rendered run.sh (code-fixtures.ts); `extra` overrides fields. */
+function registerShellCode(name: string, extra: ShellCodeOverrides) {
+  return sf.api("POST", `/api/groups/${sf.groupId}/codes`, shellCode({ name, ...extra }));
 }
 
-async function oneStageRecipe(name: string, extra: Record<string, unknown>) {
-  const code = await shellCode(name, extra);
-  expect(code.status, JSON.stringify(code.body)).toBe(201);
-  const recipe = await sf.api("POST", `/api/groups/${sf.groupId}/recipes`, {
-    name,
-    stages: [{ name: "main", codeId: code.body.id }],
-  });
-  expect(recipe.status, JSON.stringify(recipe.body)).toBe(201);
-  return recipe.body.id as string;
+function oneStageRecipe(name: string, extra: ShellCodeOverrides) {
+  return registerRecipe(sf, name, [{ name: "main", code: shellCode({ name, ...extra }) }]);
 }
 
 const createRun = (recipeId: string, parameters: Record<string, unknown>) =>
@@ -116,7 +104,7 @@ describe("a template regex", () => {
   });
 
   it("that RE2 cannot run is refused when the code is registered", async () => {
-    const refused = await shellCode("template-backreference", {
+    const refused = await registerShellCode("template-backreference", {
       inputTemplates: [
         { fileName: "run.sh", format: "text", template: `{{ "aa" | replace(r/${BACKREFERENCE}/, "x") }}` },
       ],
@@ -151,7 +139,7 @@ describe("a parameter schema pattern", () => {
   });
 
   it("that RE2 cannot run is refused when the code is registered", async () => {
-    const refused = await shellCode("schema-backreference", {
+    const refused = await registerShellCode("schema-backreference", {
       parameters: { type: "object", properties: { label: { type: "string", pattern: BACKREFERENCE } } },
     });
     expect(refused.status).toBe(422);
@@ -188,7 +176,7 @@ describe("an output rule", () => {
   });
 
   it("that RE2 cannot run is refused when the code is registered", async () => {
-    const refused = await shellCode("output-rule-backreference", {
+    const refused = await registerShellCode("output-rule-backreference", {
       outputRules: { progress: [BACKREFERENCE], timings: [] },
     });
     expect(refused.status).toBe(422);

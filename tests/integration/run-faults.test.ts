@@ -15,6 +15,7 @@ import { readdir } from "node:fs/promises";
 import path from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { type FakeSmtp, startFakeSmtp } from "../../deploy/fake-smtp/sink";
+import { shellCode } from "./support/code-fixtures";
 import {
   apiLogText,
   createDatabaseAt,
@@ -24,7 +25,6 @@ import {
   occurrences,
   type PrivatePostgres,
   type RekeyableHost,
-  registerCountingRecipe,
   runDirOnHost,
   startPrivatePostgres,
   startRekeyableHost,
@@ -33,19 +33,23 @@ import { freePort } from "./support/http-browser";
 import {
   type FakeHost,
   registerHost,
+  registerShellRecipe,
   runSpec,
   type Sigmaflow,
   startFakeHost,
   startSigmaflow,
-  waitFor,
   waitForState,
 } from "./support/lifecycle-harness";
 import { tokenFor } from "./support/people";
 import { createTestDatabase, type TestDatabase } from "./support/test-database";
+import { waitFor } from "./support/wait-for";
 
 type RunEvent = { toState: string; fromState: string | null; message: string | null };
 
 const PREPARE_START = "[sigmaflow] stage 1/2 prepare: start";
+
+/** The two-stage recipe whose job records each start on the host and whose log grows while it runs. */
+const COUNTED = { countStarts: true, tick: true };
 
 let database: TestDatabase;
 let sf: Sigmaflow;
@@ -70,7 +74,7 @@ beforeAll(async () => {
     { name: "fault-host", address: "127.0.0.1", port: host.port, scheduler: "direct", remoteBaseDir: "runs" },
     { username: "sigmaflow", authorize: host.authorize },
   );
-  recipeId = await registerCountingRecipe(sf);
+  recipeId = await registerShellRecipe(sf, "counted", COUNTED);
   worker = sf.spawnWorker();
 }, 60_000);
 
@@ -137,10 +141,10 @@ describe("a worker killed with SIGKILL, and restarted", () => {
       await gate.waitForWaiter();
       // The scheduler has the job (its pid file is written by the job itself); the database does not.
       await waitFor(
+        "the job to start on the host",
         async () => existsSync(path.join(runDirOnHost(host.rootDir, runId), "job.pid")),
         Boolean,
-        10_000,
-        "the job to start on the host",
+        { timeoutMs: 10_000 },
       );
       await killHard(worker);
       expect(await stateInDatabase(runId)).toBe("staging");
@@ -173,10 +177,10 @@ describe("a worker killed with SIGKILL, and restarted", () => {
   it("killed in running, with part of the log already stored", async () => {
     const runId = await submit("kill-running", 3);
     await waitFor(
+      "the first ticks of the log to be stored",
       () => apiLogText(sf.api, runId),
       (text) => text.includes("tick 3"),
-      15_000,
-      "the first ticks of the log to be stored",
+      { timeoutMs: 15_000 },
     );
     await killHard(worker);
     expect(await stateInDatabase(runId)).toBe("running");
@@ -210,10 +214,10 @@ describe("the host goes away", () => {
   it("finishes a run after the SSH server restarted under it", async () => {
     const runId = await submit("ssh-restart", 3);
     await waitFor(
+      "the first ticks of the log to be stored",
       () => apiLogText(sf.api, runId),
       (text) => text.includes("tick 2"),
-      15_000,
-      "the first ticks of the log to be stored",
+      { timeoutMs: 15_000 },
     );
     await host.stop();
     await host.restart();
@@ -256,6 +260,7 @@ describe("the host goes away", () => {
     expect(audit).toEqual([{ details: { expected: oldFingerprint, actual: newFingerprint } }]);
     type InboxMessage = { subject: string; text: string };
     const mail = await waitFor(
+      "the host-key mail to the group admin",
       async () =>
         (
           (await (await fetch(`${inboxUrl}?to=${sf.researcher.email}`)).json()) as {
@@ -263,8 +268,7 @@ describe("the host goes away", () => {
           }
         ).messages,
       (messages) => messages.length > 0,
-      10_000,
-      "the host-key mail to the group admin",
+      { timeoutMs: 10_000 },
     );
     expect(mail).toHaveLength(1);
     expect(mail[0]!.subject).toBe("Sigmaflow: host key of fault-host changed");
@@ -281,9 +285,16 @@ describe("the host goes away", () => {
     expect(refreshed.status, JSON.stringify(refreshed.body)).toBe(200);
     expect(refreshed.body.hostKeyFingerprint).toBe(newFingerprint);
     expect(refreshed.body.status).toBe("unverified");
-    // A key that was read but not confirmed is not trusted: five hold-probe intervals (300 ms each in
-    // the test settings) pass and the run is still held.
-    await new Promise((resolve) => setTimeout(resolve, 1500));
+    // A key that was read but not confirmed is not trusted: a whole pass of the hold probe runs after the
+    // refresh and the run is still held. Passes never overlap, so of two passes logged after the refresh
+    // the second began after it.
+    const refreshedAt = Date.now();
+    await waitFor(
+      "two hold-probe passes of the worker after the key was refreshed",
+      () => sf.workerLog().filter((line) => line.msg === "held runs probed" && line.time > refreshedAt),
+      (passes) => passes.length >= 2,
+      { timeoutMs: 15_000 },
+    );
     expect(await stateInDatabase(runId)).toBe("held");
 
     const confirmed = await sf.api("POST", `/api/hosts/${hostId}/host-key/confirm`, {
@@ -303,14 +314,15 @@ describe("hostile input at the API", () => {
     return rows[0];
   }
 
+  /** A valid code with one hostile change. */
   const code = (overrides: Record<string, unknown>) => ({
-    name: "hostile",
-    version: "1.0",
-    executable: "/bin/sh",
-    arguments: ["main.sh"],
-    inputTemplates: [{ fileName: "main.sh", format: "shell", template: "echo {{ x }}" }],
-    parameters: { type: "object", properties: { x: { type: "string" } } },
-    outputFiles: ["out.dat"],
+    ...shellCode({
+      name: "hostile",
+      script: "echo {{ x }}",
+      scriptFormat: "shell",
+      parameters: { type: "object", properties: { x: { type: "string" } } },
+      outputFiles: ["out.dat"],
+    }),
     ...overrides,
   });
 
@@ -366,7 +378,10 @@ describe("hostile input at the API", () => {
       expect(["validation_failed", "invalid_code_definition"]).toContain(response.body.error.code);
       expect(response.body.error.message.length).toBeGreaterThan(20);
       const paths = (response.body.error.details as { path: string }[]).map((d) => d.path);
-      expect(paths.some((p) => p === field || p.startsWith(`${field}.`) || p.endsWith(field))).toBe(true);
+      expect(
+        paths.some((p) => p === field || p.startsWith(`${field}.`) || p.endsWith(field)),
+        `${field} among ${JSON.stringify(paths)}`,
+      ).toBe(true);
       expect(await rowCounts()).toEqual(before);
     });
   }
@@ -444,7 +459,7 @@ describe("hostile input at the API", () => {
     );
     expect(await readdir(host.rootDir)).toEqual(["runs"]);
     const runDirs = await readdir(path.join(host.rootDir, "runs"));
-    expect(runDirs.every((name) => /^sf-run-[0-9a-f-]{36}$/.test(name))).toBe(true);
+    for (const name of runDirs) expect(name).toMatch(/^sf-run-[0-9a-f-]{36}$/);
     expect(existsSync("/tmp/sf-pwned")).toBe(false);
   });
 });
@@ -476,7 +491,7 @@ describe("PostgreSQL restarted under a running engine", () => {
       },
       { username: "sigmaflow", authorize: pgHost.authorize },
     );
-    pgRecipeId = await registerCountingRecipe(pgSf, "pg-counted");
+    pgRecipeId = await registerShellRecipe(pgSf, "pg-counted", COUNTED);
   }, 90_000);
 
   afterAll(async () => {
@@ -496,10 +511,10 @@ describe("PostgreSQL restarted under a running engine", () => {
     await waitForState(pgSf, created.body.id, ["running"]);
     await privatePg.restart();
     await waitFor(
+      "GET /api/health to answer 200 again",
       async () => (await fetch(`${pgSf.app.baseUrl}/api/health`)).status,
       (status) => status === 200,
-      20_000,
-      "GET /api/health to answer 200 again",
+      { timeoutMs: 20_000 },
     );
     const run = await waitForState(pgSf, created.body.id, ["done", "failed", "cancelled"], 45_000);
     expect(run.state, run.stateMessage).toBe("done");

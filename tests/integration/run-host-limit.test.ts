@@ -15,10 +15,10 @@ import {
   type Sigmaflow,
   startFakeHost,
   startSigmaflow,
-  waitFor,
   waitForState,
 } from "./support/lifecycle-harness";
 import { createTestDatabase, type TestDatabase } from "./support/test-database";
+import { waitFor } from "./support/wait-for";
 
 const LIMIT = 2;
 const RUNS = 6;
@@ -115,15 +115,24 @@ describe("a host that runs at most two runs at once", () => {
       }),
     );
     ids.push(...created);
+    // Six runs of at least 1 s on two slots: four of them wait, the last two for at least 2 s. The row
+    // is read as it is while it waits (once it has a slot its message says so instead).
     const waiting = await waitFor(
-      () => sf.api("GET", `/api/runs/${ids.at(-1)}`),
-      (r) => r.body.state !== "queued" || /^Waiting for a free slot/.test(r.body.stateMessage ?? ""),
-      15_000,
-      "a run to wait for a slot",
+      "one of the runs to wait queued for a slot",
+      async () => {
+        const { rows } = await database.pool.query(
+          "select state, state_message from runs where id = any($1) and waiting_for_slot_since is not null limit 1",
+          [ids],
+        );
+        return rows[0] as { state: string; state_message: string } | undefined;
+      },
+      (row) => row !== undefined,
+      { timeoutMs: 15_000, intervalMs: 20 },
     );
-    if (waiting.body.state === "queued") {
-      expect(waiting.body.stateMessage).toBe("Waiting for a free slot: narrow-host runs at most 2 at once");
-    }
+    expect(waiting).toEqual({
+      state: "queued",
+      state_message: "Waiting for a free slot: narrow-host runs at most 2 at once",
+    });
     for (const id of ids) {
       const run = await waitForState(sf, id, ["done", "failed", "cancelled"], 60_000);
       expect(run.state, run.stateMessage).toBe("done");
@@ -154,10 +163,10 @@ describe("a host that runs at most two runs at once", () => {
     const waitingId = ids[2]!;
     // The two busy runs hold both slots for 4 s: the third one must wait.
     await waitFor(
+      "the third run to wait for a slot",
       () => sf.api("GET", `/api/runs/${waitingId}`),
       (r) => /^Waiting for a free slot/.test(r.body.stateMessage ?? ""),
-      15_000,
-      "the third run to wait for a slot",
+      { timeoutMs: 15_000 },
     );
     const cancelled = await sf.api("POST", `/api/runs/${waitingId}/cancel`);
     expect(cancelled.status, JSON.stringify(cancelled.body)).toBe(200);

@@ -13,10 +13,10 @@ import {
   runSpec,
   type Sigmaflow,
   startSigmaflow,
-  waitFor,
   waitForState,
 } from "./support/lifecycle-harness";
 import { createTestDatabase, type TestDatabase } from "./support/test-database";
+import { waitFor } from "./support/wait-for";
 
 const engine = {
   host: process.env.ENGINE_SSH_HOST,
@@ -38,10 +38,12 @@ let recipeId: string;
  */
 function jobsNamed(token: string): Promise<string[]> {
   return waitFor(
-    async () => sacctByName(token),
+    `the sacct record of ${token}`,
+    () => sacctByName(token),
     (rows) => rows.length > 0,
-    20_000,
-    `sacct record of ${token}`,
+    {
+      timeoutMs: 20_000,
+    },
   );
 }
 
@@ -148,10 +150,8 @@ describe("runs on a real Slurm over real OpenSSH", () => {
     const token = (await database.pool.query("select submit_token from runs where id = $1", [run.id])).rows[0]
       .submit_token;
     expect(await jobsNamed(token)).toHaveLength(1);
-    expect(
-      run.events
-        .map((e: { message: string | null }) => e.message ?? "")
-        .some((m: string) => m.includes("submitted earlier")),
-    ).toBe(true);
+    expect(run.events.map((e: { message: string | null }) => e.message)).toContainEqual(
+      expect.stringContaining("submitted earlier"),
+    );
   }, 120_000);
 });

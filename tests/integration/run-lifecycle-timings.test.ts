@@ -5,9 +5,11 @@
  * (one symmetry every 3 s, as a small target takes on a workstation).
  */
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { shellCode } from "./support/code-fixtures";
 import {
   type FakeHost,
   registerHost,
+  registerRecipe,
   type Sigmaflow,
   startFakeHost,
   startSigmaflow,
@@ -26,24 +28,6 @@ let host: FakeHost;
 let hostId: string;
 let recipeId: string;
 
-/** A code run by /bin/sh from one rendered script, with the given output rules. */
-async function registerScriptCode(
-  name: string,
-  script: string[],
-  outputRules: { timings: string[]; progress: string[] },
-) {
-  const created = await sf.api("POST", `/api/groups/${sf.groupId}/codes`, {
-    name,
-    version: "1.0",
-    executable: "/bin/sh",
-    arguments: ["run.sh"],
-    inputTemplates: [{ fileName: "run.sh", format: "text", template: script.join("\n") }],
-    outputRules,
-  });
-  expect(created.status, JSON.stringify(created.body)).toBe(201);
-  return created.body.id as string;
-}
-
 beforeAll(async () => {
   database = await createTestDatabase("timings");
   sf = await startSigmaflow(database, { inProcessWorker: false });
@@ -56,9 +40,9 @@ beforeAll(async () => {
     { username: "sigmaflow", authorize: host.authorize },
   );
   // Like a target-orbital code: "symmetry <irrep> done in <s> s" and "progress <done>/<total>".
-  const orbitals = await registerScriptCode(
-    "orbitals",
-    [
+  const orbitals = shellCode({
+    name: "orbitals",
+    script: [
       "n=0",
       "for sym in Ag B1u; do",
       `  sleep ${SECONDS_PER_SYMMETRY}`,
@@ -66,16 +50,16 @@ beforeAll(async () => {
       "  n=$((n + 1))",
       '  echo "progress $n/2"',
       "done",
-    ],
-    {
+    ].join("\n"),
+    outputRules: {
       timings: ["^symmetry (?<symmetry>\\S+) done in (?<seconds>[0-9.]+) s$"],
       progress: ["^progress (?<done>\\d+)/(?<total>\\d+)$"],
     },
-  );
+  });
   // Like an inner-region code: a different line format for both timings and progress.
-  const inner = await registerScriptCode(
-    "inner",
-    [
+  const inner = shellCode({
+    name: "inner",
+    script: [
       "pct=0",
       "for irrep in B2u B3g; do",
       `  sleep ${SECONDS_PER_SYMMETRY}`,
@@ -83,21 +67,16 @@ beforeAll(async () => {
       "  pct=$((pct + 50))",
       '  echo " $pct% complete"',
       "done",
-    ],
-    {
+    ].join("\n"),
+    outputRules: {
       timings: ["^ IRREP (?<symmetry>\\S+) +TIME= +(?<seconds>[0-9.]+)$"],
       progress: ["^ (?<percent>[0-9.]+)% complete$"],
     },
-  );
-  const recipe = await sf.api("POST", `/api/groups/${sf.groupId}/recipes`, {
-    name: "slow-symmetries",
-    stages: [
-      { name: "orbitals", codeId: orbitals },
-      { name: "inner", codeId: inner },
-    ],
   });
-  expect(recipe.status, JSON.stringify(recipe.body)).toBe(201);
-  recipeId = recipe.body.id;
+  recipeId = await registerRecipe(sf, "slow-symmetries", [
+    { name: "orbitals", code: orbitals },
+    { name: "inner", code: inner },
+  ]);
 }, 60_000);
 
 afterAll(async () => {

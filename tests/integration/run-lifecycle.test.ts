@@ -9,9 +9,11 @@ import { existsSync } from "node:fs";
 import { readFile } from "node:fs/promises";
 import path from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { shellCode } from "./support/code-fixtures";
 import {
   type FakeHost,
   registerHost,
+  registerRecipe,
   registerShellRecipe,
   runSpec,
   type Sigmaflow,
@@ -20,6 +22,7 @@ import {
   waitForState,
 } from "./support/lifecycle-harness";
 import { createTestDatabase, type TestDatabase } from "./support/test-database";
+import { waitFor } from "./support/wait-for";
 
 let database: TestDatabase;
 let sf: Sigmaflow;
@@ -44,6 +47,15 @@ afterAll(async () => {
   await host?.stop();
   await database?.drop();
 });
+
+/** States of the pg-boss items of one queue for a run (pg-boss keeps completed items for a while). */
+async function queueItemStates(queue: string, runId: string): Promise<string[]> {
+  const { rows } = await database.pool.query(
+    "select state from pgboss.job where name = $1 and data->>'runId' = $2 order by created_on",
+    [queue, runId],
+  );
+  return rows.map((row) => row.state);
+}
 
 async function ledgerSum(runId: string) {
   const { rows } = await database.pool.query(
@@ -195,7 +207,14 @@ describe("cancel, resubmit and reuse", () => {
     const ledger = await ledgerSum(created.body.id);
     expect(ledger.release).toBe(ledger.reserve);
     sf.spawnWorker();
-    await new Promise((resolve) => setTimeout(resolve, 3000));
+    // The stage item sent when the run was created is still queued; once the worker has taken it and
+    // finished it (pg-boss marks it completed), staging had its chance and must have done nothing.
+    await waitFor(
+      "the worker to finish the run's stage item",
+      () => queueItemStates("run-stage", created.body.id),
+      (states) => states.length > 0 && states.every((state) => state === "completed"),
+      { timeoutMs: 30_000 },
+    );
     expect(existsSync(path.join(host.rootDir, "runs", `sf-run-${created.body.id}`))).toBe(false);
     const run = await sf.api("GET", `/api/runs/${created.body.id}`);
     expect(run.body.state).toBe("cancelled");
@@ -333,25 +352,11 @@ describe("resources", () => {
   // Regression: leaving resources out of a run was a 422 although every code declares default cores and
   // wall time.
   it("come from the codes' defaults when left out: most cores of any stage, wall times added up", async () => {
-    const code = async (name: string, defaults: { cores: number; wallTimeMinutes: number }) => {
-      const created = await sf.api("POST", `/api/groups/${sf.groupId}/codes`, {
-        name,
-        version: "1.0",
-        executable: "/bin/true",
-        defaults,
-      });
-      expect(created.status, JSON.stringify(created.body)).toBe(201);
-      return created.body.id as string;
-    };
-    const recipe = await sf.api("POST", `/api/groups/${sf.groupId}/recipes`, {
-      name: "defaults",
-      stages: [
-        { name: "target", codeId: await code("wide", { cores: 4, wallTimeMinutes: 30 }) },
-        { name: "inner", codeId: await code("long", { cores: 2, wallTimeMinutes: 45 }) },
-      ],
-    });
-    expect(recipe.status, JSON.stringify(recipe.body)).toBe(201);
-    const spec = { name: "defaults", recipeId: recipe.body.id, hostId };
+    const defaultsRecipeId = await registerRecipe(sf, "defaults", [
+      { name: "target", code: shellCode({ name: "wide", defaults: { cores: 4, wallTimeMinutes: 30 } }) },
+      { name: "inner", code: shellCode({ name: "long", defaults: { cores: 2, wallTimeMinutes: 45 } }) },
+    ]);
+    const spec = { name: "defaults", recipeId: defaultsRecipeId, hostId };
 
     const fromDefaults = await sf.api("POST", `/api/groups/${sf.groupId}/runs`, { spec, onDuplicate: "run" });
     expect(fromDefaults.status, JSON.stringify(fromDefaults.body)).toBe(201);

@@ -15,16 +15,18 @@ import path from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { loadWorkerConfig } from "../../worker/config";
 import { startWorker } from "../../worker/index";
+import { shellCode } from "./support/code-fixtures";
 import {
   type FakeHost,
   registerHost,
+  registerRecipe,
   type Sigmaflow,
   startFakeHost,
   startSigmaflow,
-  waitFor,
   waitForState,
 } from "./support/lifecycle-harness";
 import { createTestDatabase, type TestDatabase } from "./support/test-database";
+import { waitFor } from "./support/wait-for";
 
 const GRACE_SECONDS = 2;
 
@@ -50,19 +52,11 @@ beforeAll(async () => {
     { name: "dev-host", address: "127.0.0.1", port: host.port, scheduler: "direct", remoteBaseDir: "runs" },
     { username: "sigmaflow", authorize: host.authorize },
   );
-  const code = await sf.api("POST", `/api/groups/${sf.groupId}/codes`, {
+  const stubborn = shellCode({
     name: "stubborn",
-    version: "1.0",
-    executable: "/bin/sh",
-    arguments: ["stubborn.sh"],
-    inputTemplates: [
-      {
-        fileName: "stubborn.sh",
-        format: "shell",
-        // Ignores TERM (and so does its sleep, which inherits the ignored signal), records its pid.
-        template: "trap '' TERM\necho $$ > code.pid\necho working\nsleep {{ seconds }}\necho finished\n",
-      },
-    ],
+    // Ignores TERM (and so does its sleep, which inherits the ignored signal), records its pid.
+    script: "trap '' TERM\necho $$ > code.pid\necho working\nsleep {{ seconds }}\necho finished\n",
+    scriptFormat: "shell",
     parameters: {
       type: "object",
       properties: { seconds: { type: "integer", minimum: 1, maximum: 1000 } },
@@ -70,13 +64,7 @@ beforeAll(async () => {
       additionalProperties: false,
     },
   });
-  expect(code.status, JSON.stringify(code.body)).toBe(201);
-  const recipe = await sf.api("POST", `/api/groups/${sf.groupId}/recipes`, {
-    name: "stubborn",
-    stages: [{ name: "work", codeId: code.body.id }],
-  });
-  expect(recipe.status, JSON.stringify(recipe.body)).toBe(201);
-  recipeId = recipe.body.id;
+  recipeId = await registerRecipe(sf, "stubborn", [{ name: "work", code: stubborn }]);
 }, 60_000);
 
 afterAll(async () => {
@@ -123,10 +111,10 @@ describe("a run over its wall-time limit on a direct host", () => {
     // The code ignored TERM and outlived the batch script: KILL after the grace period ends it.
     const codePid = Number((await readFile(path.join(runDir, "stage-1-work", "code.pid"), "utf8")).trim());
     await waitFor(
+      "the code to be killed after the grace period",
       () => isLive(codePid),
       (live) => !live,
-      10_000,
-      "the code to be killed after the grace period",
+      { timeoutMs: 10_000 },
     );
 
     // 1 core × 1 min = 60 core-seconds reserved; the job used at least that, and pays exactly that.

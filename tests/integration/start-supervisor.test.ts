@@ -10,6 +10,7 @@ import { mkdtemp, readFile, rm, writeFile } from "node:fs/promises";
 import { tmpdir } from "node:os";
 import path from "node:path";
 import { afterEach, beforeEach, describe, expect, it } from "vitest";
+import { waitFor } from "./support/wait-for";
 
 const LIB = path.resolve(__dirname, "../../deploy/lib.sh");
 
@@ -43,15 +44,8 @@ let dir: string;
 let driver: ChildProcess | undefined;
 let stdout = "";
 
-async function waitFor<T>(what: string, probe: () => Promise<T | undefined> | T | undefined, ms = 20_000) {
-  const deadline = Date.now() + ms;
-  for (;;) {
-    const value = await probe();
-    if (value !== undefined) return value;
-    if (Date.now() > deadline) throw new Error(`timed out waiting for ${what}; stdout so far:\n${stdout}`);
-    await new Promise((resolve) => setTimeout(resolve, 50));
-  }
-}
+/** The driver's output so far, for a wait that gives up. */
+const driverOutput = { context: () => `stdout so far:\n${stdout}` };
 
 async function runs(): Promise<Array<{ run: number; pid: number }>> {
   const text = await readFile(path.join(dir, "runs"), "utf8").catch(() => "");
@@ -96,7 +90,12 @@ async function startDriver() {
   });
   const exited = new Promise<number | null>((resolve) => driver!.once("exit", (code) => resolve(code)));
   // The fifth run is the one that stays up.
-  const steady = await waitFor("the fifth run", async () => (await runs()).find((r) => r.run === 5));
+  const steady = await waitFor(
+    "the fifth run",
+    async () => (await runs()).find((r) => r.run === 5),
+    (run) => run !== undefined,
+    driverOutput,
+  );
   return { exited, steady };
 }
 
@@ -133,7 +132,15 @@ describe("sf_supervise (deploy/start.sh's services)", () => {
 
     process.kill(driver!.pid!, "SIGTERM");
     expect(await exited).toBe(0);
-    await waitFor("the service to stop", () => (alive(steady.pid) ? undefined : true), 5_000);
+    await waitFor(
+      "the service to stop",
+      () => alive(steady.pid),
+      (live) => !live,
+      {
+        ...driverOutput,
+        timeoutMs: 5_000,
+      },
+    );
     expect(restartLines(stdout)).toHaveLength(4); // stopping is not a crash
     expect((await runs()).length).toBe(5);
   }, 40_000);
@@ -142,7 +149,15 @@ describe("sf_supervise (deploy/start.sh's services)", () => {
     const { exited, steady } = await startDriver();
     process.kill(-driver!.pid!, "SIGINT");
     expect(await exited).toBe(0);
-    await waitFor("the service to stop", () => (alive(steady.pid) ? undefined : true), 5_000);
+    await waitFor(
+      "the service to stop",
+      () => alive(steady.pid),
+      (live) => !live,
+      {
+        ...driverOutput,
+        timeoutMs: 5_000,
+      },
+    );
     expect(restartLines(stdout)).toHaveLength(4);
     expect((await runs()).length).toBe(5);
   }, 40_000);

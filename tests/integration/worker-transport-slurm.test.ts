@@ -26,6 +26,7 @@ import { SshPool, type SshTarget } from "../../worker/ssh/pool";
 import { prepareRunDir, stageFiles } from "../../worker/ssh/remote-fs";
 import type { RemoteSession } from "../../worker/ssh/session";
 import { testKeyPair } from "./support/keys";
+import { waitFor } from "./support/wait-for";
 
 const env = process.env;
 const pools: SshPool[] = [];
@@ -42,22 +43,6 @@ function newPool(options?: ConstructorParameters<typeof SshPool>[0]): SshPool {
   const pool = new SshPool(options);
   pools.push(pool);
   return pool;
-}
-
-async function waitFor<T>(
-  read: () => Promise<T>,
-  done: (value: T) => boolean,
-  timeoutMs = 20_000,
-): Promise<T> {
-  const deadline = Date.now() + timeoutMs;
-  let last = await read();
-  while (!done(last)) {
-    if (Date.now() > deadline)
-      throw new Error(`condition not met within ${timeoutMs} ms; last value ${JSON.stringify(last)}`);
-    await new Promise((resolve) => setTimeout(resolve, 100));
-    last = await read();
-  }
-  return last;
 }
 
 function countingSession(session: RemoteSession): { session: RemoteSession; execs: () => number } {
@@ -100,6 +85,7 @@ afterAll(async () => {
     if (submitted.length > 0) await session.exec(["scancel", ...submitted]).catch(() => undefined);
     // Slurm jobs may still be writing their logs for a moment after scancel: wait for them to leave squeue.
     await waitFor(
+      "the test's jobs to leave the Slurm queue",
       () => session.run(["squeue", "-h", "-u", target.username, "-o", "%i"]).catch(() => ""),
       (listed) => !submitted.some((id) => listed.split("\n").includes(id)),
     ).catch(() => undefined);
@@ -241,11 +227,13 @@ describe("direct scheduler under OpenSSH", () => {
     expect([first.alreadySubmitted, second.alreadySubmitted].sort()).toEqual([false, true]);
     const ref = { ...job, jobId: first.jobId };
     await waitFor(
+      "the job to run",
       async () => (await directScheduler.states(session, [ref])).get(ref.jobId)?.state,
       (state) => state === "running",
     );
     await directScheduler.cancel(session, ref);
     const status = await waitFor(
+      "the job to be cancelled",
       async () => (await directScheduler.states(session, [ref])).get(ref.jobId),
       (s) => s?.state === "cancelled",
     );
@@ -280,11 +268,13 @@ describe("Slurm scheduler", () => {
     expect(named.trim().split("\n")).toEqual([first.jobId]);
 
     await waitFor(
+      "the job to run",
       () => statusOf(first.jobId, job),
       (status) => status?.state === "running",
     );
     await writeFile(`${job.runDir}/release`, "");
     const done = await waitFor(
+      "the job to complete",
       () => statusOf(first.jobId, job),
       (status) => status?.state === "completed",
     );
@@ -304,6 +294,7 @@ describe("Slurm scheduler", () => {
       jobs.push({ ...job, jobId });
     }
     await waitFor(
+      "the jobs to complete, fail and run",
       () => slurmScheduler.states(session, jobs),
       (map) =>
         map.get(jobs[0]!.jobId)?.state === "completed" &&
@@ -335,11 +326,13 @@ describe("Slurm scheduler", () => {
     const { jobId } = await slurmScheduler.submit(session, job);
     submitted.push(jobId);
     await waitFor(
+      "the job to run",
       () => statusOf(jobId, job),
       (status) => status?.state === "running",
     );
     await slurmScheduler.cancel(session, { ...job, jobId });
     await waitFor(
+      "the job to be cancelled",
       () => statusOf(jobId, job),
       (status) => status?.state === "cancelled",
     );
@@ -352,10 +345,12 @@ describe("Slurm scheduler", () => {
     const { jobId } = await slurmScheduler.submit(session, job);
     submitted.push(jobId);
     await waitFor(
+      "the job to complete",
       () => statusOf(jobId, job),
       (status) => status?.state === "completed",
     );
     const usage = await waitFor(
+      "sacct to account the job's elapsed time",
       () => slurmScheduler.accounting(session, { ...job, jobId }, 2),
       (value) => value !== null && value.elapsedSeconds > 0,
     );

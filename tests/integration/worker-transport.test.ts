@@ -24,6 +24,7 @@ import { SshPool, type SshTarget } from "../../worker/ssh/pool";
 import { prepareRunDir, stageFiles } from "../../worker/ssh/remote-fs";
 import type { RemoteSession } from "../../worker/ssh/session";
 import { testKeyPair } from "./support/keys";
+import { waitFor } from "./support/wait-for";
 
 let workDir: string;
 let rootDir: string;
@@ -56,22 +57,6 @@ function newPool(options?: ConstructorParameters<typeof SshPool>[0]): SshPool {
   const pool = new SshPool(options);
   pools.push(pool);
   return pool;
-}
-
-async function waitFor<T>(
-  read: () => Promise<T>,
-  done: (value: T) => boolean,
-  timeoutMs = 10_000,
-): Promise<T> {
-  const deadline = Date.now() + timeoutMs;
-  let last = await read();
-  while (!done(last)) {
-    if (Date.now() > deadline)
-      throw new Error(`condition not met within ${timeoutMs} ms; last value ${JSON.stringify(last)}`);
-    await new Promise((resolve) => setTimeout(resolve, 25));
-    last = await read();
-  }
-  return last;
 }
 
 /** Whether a process exists and is not a zombie (an exited child not yet reaped is state Z in /proc/<pid>/stat). */
@@ -199,6 +184,7 @@ describe("SSH pool", () => {
 
     await restartable.close();
     await waitFor(
+      "the pool to drop its connections to the stopped host",
       async () => pool.stats().perTarget.restartable ?? 0,
       (connections) => connections === 0,
     );
@@ -223,6 +209,7 @@ describe("SSH pool", () => {
     expect((error as TransportError).failure).toBe("command-timeout");
     // Only the persistent SFTP channel may remain; none was opened here, so nothing stays open.
     await waitFor(
+      "the timed-out command's channel to be released",
       async () => pool.stats().channelsInUse,
       (channels) => channels === 0,
     );
@@ -246,6 +233,7 @@ describe("SSH pool", () => {
     const session = pool.session(targetFor(dropping.port, dropping.hostPublicKey, "dropping"));
     const running = session.exec(["sleep", "20"]).catch((caught: unknown) => caught);
     await waitFor(
+      "the command to hold a channel",
       async () => pool.stats().channelsInUse,
       (channels) => channels === 1,
     );
@@ -381,6 +369,7 @@ describe("direct scheduler", () => {
 
     await writeFile(path.join(rootDir, "runs/d-once/release"), "");
     const ended = await waitFor(
+      "the job to complete",
       () => stateOf({ ...job, jobId: first.jobId }),
       (status) => status?.state === "completed",
     );
@@ -398,6 +387,7 @@ describe("direct scheduler", () => {
 
     const counted = countingSession(session);
     const statuses = await waitFor(
+      "the first job to complete and the second to fail",
       () => directScheduler.states(counted.session, jobs),
       (map) => map.get(jobs[0]!.jobId)?.state === "completed" && map.get(jobs[1]!.jobId)?.state === "failed",
     );
@@ -418,6 +408,7 @@ describe("direct scheduler", () => {
     const job = await stageJob("d-cancel", "sleep 30 &\nchild=$!\necho $child > child.pid\nwait $child\n");
     const { jobId } = await directScheduler.submit(session, job);
     await waitFor(
+      "the job to record its child's pid",
       () => readFile(path.join(rootDir, "runs/d-cancel/child.pid"), "utf8").catch(() => ""),
       (text) => text.trim() !== "",
     );
@@ -426,6 +417,7 @@ describe("direct scheduler", () => {
 
     await directScheduler.cancel(session, { ...job, jobId });
     const status = await waitFor(
+      "the job to be cancelled",
       () => stateOf({ ...job, jobId }),
       (s) => s?.state === "cancelled",
     );
@@ -433,6 +425,7 @@ describe("direct scheduler", () => {
     expect(status?.exitCode).toBe(143);
     // The background child, in the same process group, was signalled too.
     await waitFor(
+      "the job's child to end",
       () => isLive(childPid),
       (live) => !live,
     );
@@ -450,6 +443,7 @@ describe("direct scheduler", () => {
     );
     const { jobId } = await directScheduler.submit(session, job);
     await waitFor(
+      "the job to record its child's pid",
       () => readFile(path.join(rootDir, "runs/d-cancel-stubborn/child.pid"), "utf8").catch(() => ""),
       (text) => text.trim() !== "",
     );
@@ -471,6 +465,7 @@ describe("direct scheduler", () => {
     });
     const { jobId } = await directScheduler.submit(session, job);
     const status = await waitFor(
+      "the job to end at its wall-time limit",
       () => stateOf({ ...job, jobId }),
       (s) => s?.state !== "running" && s?.state !== "pending",
     );
@@ -484,6 +479,7 @@ describe("direct scheduler", () => {
     expect(await readFile(path.join(rootDir, "runs/d-limit/job.log"), "utf8")).not.toContain("late");
     const scriptPid = Number((await readFile(path.join(rootDir, "runs/d-limit/script.pid"), "utf8")).trim());
     await waitFor(
+      "the batch script to end",
       () => isLive(scriptPid),
       (live) => !live,
     );
@@ -496,6 +492,7 @@ describe("direct scheduler", () => {
     });
     const { jobId } = await directScheduler.submit(session, job);
     const status = await waitFor(
+      "the job to end at its wall-time limit",
       () => stateOf({ ...job, jobId }),
       (s) => s?.state !== "running" && s?.state !== "pending",
     );
@@ -507,6 +504,7 @@ describe("direct scheduler", () => {
     expect(usage!.elapsedSeconds).toBeLessThan(6);
     const childPid = Number((await readFile(path.join(rootDir, "runs/d-stubborn/child.pid"), "utf8")).trim());
     await waitFor(
+      "the job's child to end",
       () => isLive(childPid),
       (live) => !live,
     );
@@ -517,6 +515,7 @@ describe("direct scheduler", () => {
     const job = await stageJob("d-in-time", "echo done\n");
     const { jobId } = await directScheduler.submit(session, job);
     const status = await waitFor(
+      "the job to complete",
       () => stateOf({ ...job, jobId }),
       (s) => s?.state === "completed",
     );
@@ -524,6 +523,7 @@ describe("direct scheduler", () => {
     expect((await directScheduler.accounting(session, { ...job, jobId }, 1))?.timedOut).toBe(false);
     // The wrapper is the session leader (setsid): nothing of the job, its timer included, lives on.
     await waitFor(
+      "nothing of the job to live on in its session",
       () => liveInSession(Number(jobId)),
       (live) => live.length === 0,
     );
@@ -533,6 +533,7 @@ describe("direct scheduler", () => {
     const job = await stageJob("d-account", "sleep 0.4\n", 3);
     const { jobId } = await directScheduler.submit(session, job);
     await waitFor(
+      "the job to complete",
       () => stateOf({ ...job, jobId }),
       (s) => s?.state === "completed",
     );

@@ -10,6 +10,7 @@ import path from "node:path";
 import { type FakeCluster, startFakeCluster } from "../../../deploy/fake-cluster/server";
 import type { Database } from "../../../server/db/client";
 import { allocations, codes, hostAccounts, recipes, runs } from "../../../server/db/schema";
+import { codeDefinition } from "./code-fixtures";
 
 // biome-ignore lint/suspicious/noExplicitAny: replies are checked field by field with expect().
 export type JsonReply = { status: number; body: any; text: string };
@@ -64,14 +65,6 @@ export async function startTestCluster(): Promise<TestCluster> {
   };
 }
 
-export const minimalCode = (name = `code-${randomBytes(3).toString("hex")}`, version = "1.0") => ({
-  name,
-  version,
-  executable: "/opt/sigmaflow/bin/probe",
-  inputTemplates: [{ fileName: "input.txt", format: "text" as const, template: "molecule {{ molecule }}\n" }],
-  parameters: { type: "object", properties: { molecule: { type: "string" } }, required: ["molecule"] },
-});
-
 /** Inserts a run (with the code, recipe and allocation it needs unless given) that points at a host. */
 export async function insertRun(
   db: Database,
@@ -80,7 +73,7 @@ export async function insertRun(
   const suffix = randomBytes(4).toString("hex");
   let recipeId = refs.recipeId;
   if (!recipeId) {
-    const definition = minimalCode(`run-code-${suffix}`);
+    const definition = codeDefinition({ name: `run-code-${suffix}` });
     const [code] = await db
       .insert(codes)
       .values({ groupId: refs.groupId, name: definition.name, version: definition.version, definition })

@@ -16,7 +16,8 @@ import { createDatabase } from "../../../server/db/client";
 import { applyMigrations } from "../../../server/db/migrate";
 import { loadWorkerConfig } from "../../../worker/config";
 import { startWorker } from "../../../worker/index";
-import { type Api, type Sigmaflow, waitFor } from "./lifecycle-harness";
+import type { Api, Sigmaflow } from "./lifecycle-harness";
+import { waitFor } from "./wait-for";
 
 export { type PrivatePostgres, startPrivatePostgres } from "./private-postgres";
 
@@ -92,6 +93,7 @@ export async function installGate(databaseUrl: string, table: string, when: stri
     /** Waits until a transaction is stopped at the gate. */
     async waitForWaiter(timeoutMs = 20_000) {
       await waitFor(
+        `a transaction waiting at gate ${name}`,
         async () => {
           const { rows } = await admin.query(
             "select count(*)::int as n from pg_locks where locktype = 'advisory' and not granted and objid = $1",
@@ -100,8 +102,7 @@ export async function installGate(databaseUrl: string, table: string, when: stri
           return rows[0].n as number;
         },
         (n) => n > 0,
-        timeoutMs,
-        `a transaction waiting at gate ${name}`,
+        { timeoutMs },
       );
     },
     async open() {
@@ -158,76 +159,6 @@ export const hostFile = (rootDir: string, runId: string, name: string) =>
 
 export function occurrences(text: string, needle: string): number {
   return text.split(needle).length - 1;
-}
-
-/**
- * A two-stage recipe like the harness's, whose prepare stage also appends its process id to
- * `prepare.starts` in the run folder: an append-only record of how often the job really started there.
- */
-export async function registerCountingRecipe(sf: Sigmaflow, name = "counted") {
-  const prepare = await sf.api("POST", `/api/groups/${sf.groupId}/codes`, {
-    name: `${name}-prepare`,
-    version: "1.0",
-    executable: "/bin/sh",
-    arguments: ["prepare.sh"],
-    inputTemplates: [
-      {
-        fileName: "prepare.sh",
-        format: "shell",
-        template: [
-          'echo "$$" >> ../prepare.starts',
-          "label={{ label }}",
-          'echo "target label: $label"',
-          'for sym in A1 B1 B2 A2; do echo "symmetry $sym done in 0.25 s"; done',
-          "i=0",
-          "n=$(({{ sleepSeconds }} * 10))",
-          // Ticks while sleeping, so the log grows during the run and polls store it in pieces.
-          'while [ "$i" -lt "$n" ]; do echo "tick $i"; sleep 0.1; i=$((i + 1)); done',
-          'printf "%s\\n" "$label" > orbitals.dat',
-          "echo progress 1/1",
-        ].join("\n"),
-      },
-    ],
-    parameters: {
-      type: "object",
-      properties: {
-        label: { type: "string", maxLength: 5000 },
-        sleepSeconds: { type: "integer", minimum: 0, maximum: 60, default: 0 },
-      },
-      required: ["label"],
-      additionalProperties: false,
-    },
-    outputFiles: ["orbitals.dat"],
-    outputRules: {
-      timings: ["^symmetry (?<symmetry>\\S+) done in (?<seconds>[0-9.]+) s$"],
-      progress: ["^progress (?<done>\\d+)/(?<total>\\d+)$"],
-    },
-  });
-  expect(prepare.status, JSON.stringify(prepare.body)).toBe(201);
-  const scatter = await sf.api("POST", `/api/groups/${sf.groupId}/codes`, {
-    name: `${name}-scatter`,
-    version: "1.0",
-    executable: "/bin/sh",
-    arguments: ["scatter.sh"],
-    inputTemplates: [
-      {
-        fileName: "scatter.sh",
-        format: "shell",
-        template: 'echo "K-matrix from $(cat orbitals.dat)" > kmatrix.dat\n',
-      },
-    ],
-    outputFiles: ["kmatrix.dat"],
-  });
-  expect(scatter.status, JSON.stringify(scatter.body)).toBe(201);
-  const recipe = await sf.api("POST", `/api/groups/${sf.groupId}/recipes`, {
-    name,
-    stages: [
-      { name: "prepare", codeId: prepare.body.id },
-      { name: "scatter", codeId: scatter.body.id },
-    ],
-  });
-  expect(recipe.status, JSON.stringify(recipe.body)).toBe(201);
-  return recipe.body.id as string;
 }
 
 /** createTestDatabase against any PostgreSQL: a fresh database with the migrations applied. */

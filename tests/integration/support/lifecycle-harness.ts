@@ -8,16 +8,20 @@ import { type ChildProcess, spawn } from "node:child_process";
 import { appendFile, mkdtemp, writeFile } from "node:fs/promises";
 import { tmpdir } from "node:os";
 import path from "node:path";
+import { createInterface } from "node:readline";
 import { expect } from "vitest";
 import { type FakeCluster, startFakeCluster } from "../../../deploy/fake-cluster/server";
+import type { CodeDefinitionInput } from "../../../shared/schemas";
 import { loadWorkerConfig } from "../../../worker/config";
 import { startWorker } from "../../../worker/index";
-import { apiClient, waitFor } from "./api-client";
+import { apiClient } from "./api-client";
+import { type TwoStageOptions, twoStageCodes } from "./code-fixtures";
 import { addMember, createGroup, createUser, tokenFor } from "./people";
 import { startTestApp } from "./test-app";
 import type { TestDatabase } from "./test-database";
+import { waitFor } from "./wait-for";
 
-export { type Api, apiClient, waitFor } from "./api-client";
+export { type Api, apiClient } from "./api-client";
 
 export const WORKER_TEST_ENV = {
   SIGMAFLOW_SECRETS_KEY: "integration-test-secrets-key-0123456789abcdef",
@@ -30,6 +34,9 @@ export const WORKER_TEST_ENV = {
   WORKER_HOLD_PROBE_INTERVAL_MS: "300",
   LOG_LEVEL: process.env.SF_TEST_WORKER_LOG ?? "silent",
 };
+
+/** One line a worker process logged (pino JSON: `time` in ms since the epoch, `msg`, fields). */
+export type WorkerLogLine = { time: number; msg: string; [field: string]: unknown };
 
 export async function startFakeHost(port = 0) {
   const dir = await mkdtemp(path.join(tmpdir(), "sf-fake-host-"));
@@ -75,6 +82,7 @@ export async function startSigmaflow(
   let worker =
     options.inProcessWorker === false ? null : await startWorker(loadWorkerConfig(workerEnv as never));
   let child: ChildProcess | null = null;
+  const workerLog: WorkerLogLine[] = [];
   return {
     app,
     api,
@@ -82,14 +90,26 @@ export async function startSigmaflow(
     researcher,
     allocationId: allocation.body.id as string,
     workerEnv,
-    /** Starts the worker as its own process (so a test can SIGKILL it). */
+    /**
+     * Starts the worker as its own process (so a test can SIGKILL it). It logs at debug level into
+     * `workerLog()`, where a test finds evidence that a pass of the worker ran (SF_TEST_WORKER_LOG=1
+     * shows the lines too).
+     */
     spawnWorker() {
       child = spawn(process.execPath, ["--import", "tsx", "worker/index.ts"], {
-        env: { ...process.env, ...workerEnv },
-        stdio: ["ignore", "ignore", "inherit"],
+        env: { ...process.env, ...workerEnv, LOG_LEVEL: "debug" },
+        stdio: ["ignore", "pipe", "inherit"],
+      });
+      createInterface({ input: child.stdout! }).on("line", (line) => {
+        if (process.env.SF_TEST_WORKER_LOG) process.stdout.write(`${line}\n`);
+        try {
+          workerLog.push(JSON.parse(line));
+        } catch {}
       });
       return child;
     },
+    /** Every line the worker processes started by `spawnWorker` logged so far, in order. */
+    workerLog: (): readonly WorkerLogLine[] => workerLog,
     killWorkerHard() {
       child?.kill("SIGKILL");
       child = null;
@@ -137,77 +157,33 @@ export async function registerHost(
   return hostId;
 }
 
-/**
- * A two-stage recipe of shell codes: `prepare` writes orbitals.dat and per-symmetry timing lines from a
- * template; `scatter` reads it and writes kmatrix.dat. `sleepSeconds` keeps a stage running for the
- * fault tests.
- */
-export async function registerShellRecipe(sf: Sigmaflow, name = "two-stage") {
-  const prepare = await sf.api("POST", `/api/groups/${sf.groupId}/codes`, {
-    name: `${name}-prepare`,
-    version: "1.0",
-    executable: "/bin/sh",
-    arguments: ["prepare.sh"],
-    inputTemplates: [
-      {
-        fileName: "prepare.sh",
-        format: "shell",
-        template: [
-          "label={{ label }}",
-          'echo "target label: $label"',
-          'for sym in A1 B1 B2 A2; do echo "symmetry $sym done in 0.25 s"; done',
-          "sleep {{ sleepSeconds }}",
-          'printf "%s\\n" "$label" > orbitals.dat',
-          "echo progress 1/1",
-        ].join("\n"),
-      },
-      { fileName: "notes.txt", format: "text", template: "label: {{ label }}\n" },
-    ],
-    parameters: {
-      type: "object",
-      properties: {
-        label: { type: "string", maxLength: 5000 },
-        sleepSeconds: { type: "number", minimum: 0, maximum: 60, default: 0 },
-      },
-      required: ["label"],
-      additionalProperties: false,
-    },
-    outputFiles: ["orbitals.dat"],
-    outputRules: {
-      timings: ["^symmetry (?<symmetry>\\S+) done in (?<seconds>[0-9.]+) s$"],
-      progress: ["^progress (?<done>\\d+)/(?<total>\\d+)$"],
-    },
-  });
-  expect(prepare.status, JSON.stringify(prepare.body)).toBe(201);
-  const scatter = await sf.api("POST", `/api/groups/${sf.groupId}/codes`, {
-    name: `${name}-scatter`,
-    version: "1.0",
-    executable: "/bin/sh",
-    arguments: ["scatter.sh"],
-    inputTemplates: [
-      {
-        fileName: "scatter.sh",
-        format: "shell",
-        template: 'echo "K-matrix from $(cat orbitals.dat)" > kmatrix.dat\nexit {{ exitCode }}\n',
-      },
-    ],
-    parameters: {
-      type: "object",
-      properties: { exitCode: { type: "integer", minimum: 0, maximum: 255, default: 0 } },
-      additionalProperties: false,
-    },
-    outputFiles: ["kmatrix.dat"],
-  });
-  expect(scatter.status, JSON.stringify(scatter.body)).toBe(201);
+/** Registers each stage's code through the API, then a recipe of those stages in order; returns its id. */
+export async function registerRecipe(
+  sf: Sigmaflow,
+  name: string,
+  stages: { name: string; code: CodeDefinitionInput }[],
+): Promise<string> {
+  const codeIds: string[] = [];
+  for (const stage of stages) {
+    const code = await sf.api("POST", `/api/groups/${sf.groupId}/codes`, stage.code);
+    expect(code.status, JSON.stringify(code.body)).toBe(201);
+    codeIds.push(code.body.id);
+  }
   const recipe = await sf.api("POST", `/api/groups/${sf.groupId}/recipes`, {
     name,
-    stages: [
-      { name: "prepare", codeId: prepare.body.id },
-      { name: "scatter", codeId: scatter.body.id },
-    ],
+    stages: stages.map((stage, i) => ({ name: stage.name, codeId: codeIds[i] })),
   });
   expect(recipe.status, JSON.stringify(recipe.body)).toBe(201);
   return recipe.body.id as string;
+}
+
+/** The engine tests' two-stage recipe of shell codes, `prepare` then `scatter` (code-fixtures.ts). */
+export async function registerShellRecipe(sf: Sigmaflow, name = "two-stage", options: TwoStageOptions = {}) {
+  const { prepare, scatter } = twoStageCodes(name, options);
+  return registerRecipe(sf, name, [
+    { name: "prepare", code: prepare },
+    { name: "scatter", code: scatter },
+  ]);
 }
 
 export function runSpec(
@@ -224,10 +200,10 @@ export function runSpec(
 
 export async function waitForState(sf: Sigmaflow, runId: string, states: string[], timeoutMs = 25_000) {
   const result = await waitFor(
+    `run ${runId} to reach ${states.join("/")}`,
     () => sf.api("GET", `/api/runs/${runId}`),
     (r) => states.includes(r.body?.state),
-    timeoutMs,
-    `run ${runId} to reach ${states.join("/")}`,
+    { timeoutMs },
   );
   return result.body;
 }

@@ -73,7 +73,7 @@ describe("sigmaflow at extreme inputs (regression: extreme inputs must not print
     expect(json.code).toBe(0);
     expect(json.stdout).not.toMatch(NOT_A_NUMBER);
     const document = JSON.parse(json.stdout);
-    expect(numbersIn(document.crossSectionA2).every((v) => typeof v === "number" && v > 1e200)).toBe(true);
+    for (const value of numbersIn(document.crossSectionA2)) expect(value).toBeGreaterThan(1e200);
     const text = await sigmaflow(["ionization", "beb", "--orbitals", path, "--energies-ev", "10,100"]);
     expect(text.code).toBe(0);
     expect(text.stdout).not.toMatch(NOT_A_NUMBER);
@@ -159,7 +159,7 @@ describe("sigmaflow at extreme inputs (regression: extreme inputs must not print
     expect(run.code).toBe(0);
     expect(run.stdout).not.toMatch(NOT_A_NUMBER);
     const document = JSON.parse(run.stdout);
-    expect(numbersIn(document.crossSectionA2).every((v) => typeof v === "number" && v > 0)).toBe(true);
+    for (const value of numbersIn(document.crossSectionA2)) expect(value).toBeGreaterThan(0);
   });
 });
 

@@ -25,6 +25,8 @@ export const paths = {
   signIn: () => "/signin",
   group: (groupId: string, section: GroupSection = DEFAULT_GROUP_SECTION) =>
     `/groups/${encodeURIComponent(groupId)}/${section}`,
+  run: (groupId: string, runId: string) =>
+    `/groups/${encodeURIComponent(groupId)}/runs/${encodeURIComponent(runId)}`,
   invitation: (token: string) => `/invitations/${encodeURIComponent(token)}`,
   apiTokens: () => "/settings/tokens",
   adminGroups: () => "/admin/groups",

@@ -10,7 +10,7 @@ export const ROLE_LABELS: Record<GroupRole, string> = {
 
 /** What each role may do, worded for the people choosing it. */
 export const ROLE_DESCRIPTIONS: Record<GroupRole, string> = {
-  collaborator: "Reads the group's results; cannot submit work.",
-  member: "Submits and manages calculations on the group's clusters.",
-  admin: "Also manages members, invitations and quotas.",
+  collaborator: "Reads the group's runs and results; cannot submit runs.",
+  member: "Submits and manages runs on the group's hosts, registers codes and recipes.",
+  admin: "Also manages members, invitations, hosts and allocations.",
 };

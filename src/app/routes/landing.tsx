@@ -10,8 +10,8 @@ export function LandingRoute() {
     <div className="mx-auto max-w-2xl pt-8">
       <EmptyState icon={<Mailbox className="size-5" aria-hidden="true" />} title="You are not in a group yet">
         <p>
-          In Sigmaflow, targets, runs and results belong to a research group, and each group shares its own
-          clusters. You join a group by invitation.
+          In Sigmaflow, targets, runs and results belong to a research group, and each group runs on its own
+          hosts. You join a group by invitation.
         </p>
         <ol className="mt-5 flex list-decimal flex-col gap-2 pl-5 text-left">
           <li>

@@ -25,10 +25,5 @@ export function RunLinkRoute() {
       />
     );
   }
-  return (
-    <Navigate
-      replace
-      to={`/groups/${encodeURIComponent(run.data.groupId)}/runs/${encodeURIComponent(run.data.id)}`}
-    />
-  );
+  return <Navigate replace to={paths.run(run.data.groupId, run.data.id)} />;
 }

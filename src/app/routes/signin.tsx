@@ -10,7 +10,7 @@ import { ModelResultsNote } from "../layouts/model-results-note";
 const HIGHLIGHTS = [
   {
     title: "Queue",
-    body: "Submit calculations to your group's clusters and follow them from queue to output.",
+    body: "Submit runs to your group's hosts and follow them from queue to output.",
   },
   {
     title: "Track",
@@ -40,7 +40,7 @@ export function SignInRoute() {
         <div className="my-16 max-w-lg">
           <h1 className="text-4xl font-semibold tracking-tight text-ink-950 sm:text-5xl">Sigmaflow</h1>
           <p className="mt-4 text-lg leading-relaxed text-ink-700">
-            Queue and track electron–molecule collision calculations on your group's clusters, and turn their
+            Queue and track electron–molecule collision calculations on your group's hosts, and turn their
             output into cross sections and rates.
           </p>
           {failed ? (

@@ -16,7 +16,7 @@ export function AdminGroupsRoute() {
         <Card>
           <CardHeader
             title="Create group"
-            description="A group shares clusters, targets and runs. Invite its first admin once it exists."
+            description="A group shares hosts, codes, recipes, targets and runs. Invite its first admin once it exists."
           />
           <CardBody>
             <CreateGroupForm />

@@ -9,7 +9,7 @@ export function ActivityRoute() {
       <PageHeader
         eyebrow={group.name}
         title="Activity"
-        description="Who changed what in this group: memberships, roles and invitations."
+        description="Who changed what in this group, newest first: members, invitations, hosts, accounts, codes, recipes, allocations and runs."
       />
       <ActivityLog groupId={groupId} />
     </>

@@ -30,7 +30,7 @@ const AREAS = {
     ],
     tasks: [
       "Register a molecule from Cartesian coordinates and check its symmetry",
-      "Compare target-state energies against reference values before committing cluster time",
+      "Compare target-state energies against reference values before spending core-hours on a host",
     ],
   },
   studies: {

@@ -7,6 +7,7 @@ import { runQueries } from "@/features/runs/api/run-queries";
 import { RunActions } from "@/features/runs/components/run-actions";
 import { RunDetailView } from "@/features/runs/components/run-detail";
 import { RunsTable } from "@/features/runs/components/runs-table";
+import { paths } from "@/lib/paths";
 import { roleInGroup } from "@/lib/permissions";
 import { useCurrentGroup } from "./use-current-group";
 
@@ -38,10 +39,7 @@ export function RunRoute() {
   const navigate = useNavigate();
   const run = useQuery(runQueries.detail(runId));
   const back = (
-    <Link
-      to={`/groups/${encodeURIComponent(groupId)}/runs`}
-      className="text-sm text-flux-800 hover:underline"
-    >
+    <Link to={paths.group(groupId, "runs")} className="text-sm text-flux-800 hover:underline">
       ← All runs
     </Link>
   );
@@ -57,12 +55,7 @@ export function RunRoute() {
       />
       {canAct ? (
         <div className="mb-4 flex justify-end">
-          <RunActions
-            run={run.data}
-            onResubmitted={(id) =>
-              navigate(`/groups/${encodeURIComponent(groupId)}/runs/${encodeURIComponent(id)}`)
-            }
-          />
+          <RunActions run={run.data} onResubmitted={(id) => navigate(paths.run(groupId, id))} />
         </div>
       ) : null}
       <RunDetailView run={run.data} />

@@ -10,7 +10,7 @@ export function ApiTokensRoute() {
       <PageHeader
         eyebrow="Settings"
         title="API tokens"
-        description="Personal tokens let scripts and cluster jobs call Sigmaflow as you, without a browser session."
+        description="Personal tokens let scripts, on your own machine or on a host, call Sigmaflow as you, without a browser session."
       />
       <div className="grid gap-8 2xl:grid-cols-[minmax(0,1fr)_24rem]">
         <div className="flex min-w-0 flex-col gap-8">

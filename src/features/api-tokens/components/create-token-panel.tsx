@@ -58,8 +58,8 @@ export function CreateTokenPanel() {
           <span className="flex items-start gap-2">
             <TriangleAlert className="mt-0.5 size-4 shrink-0" aria-hidden="true" />
             <span>
-              Copy this token now and keep it somewhere safe, such as your cluster's credential store. It will
-              not be shown again.
+              Copy this token now and keep it somewhere safe, such as your password manager. It will not be
+              shown again.
             </span>
           </span>
         </Notice>
@@ -78,7 +78,7 @@ export function CreateTokenPanel() {
       <div className="grid gap-4 sm:grid-cols-[minmax(0,1fr)_12rem]">
         <Field label="Name" hint="Name it after the script or machine that will use it." error={errors.name}>
           {(control) => (
-            <Input {...control} name="name" autoComplete="off" placeholder="cluster-submit-script" />
+            <Input {...control} name="name" autoComplete="off" placeholder="nightly-submit-script" />
           )}
         </Field>
         <Field label="Expires after" error={errors.expiresInDays}>

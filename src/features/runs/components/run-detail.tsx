@@ -35,7 +35,7 @@ export function RunDetailView({ run }: { run: RunDetail }) {
             <RunStateBadge state={run.state} />
           </div>
           <div>
-            <div className="text-xs text-ink-500">Scheduler job</div>
+            <div className="text-xs text-ink-500">Scheduler's job id</div>
             <div className="font-mono">{run.schedulerJobId ?? "—"}</div>
           </div>
           <div>
@@ -121,18 +121,18 @@ export function RunDetailView({ run }: { run: RunDetail }) {
           <p className="text-sm text-ink-500">Nothing collected yet.</p>
         ) : (
           <ul className="flex flex-col gap-1 text-sm">
-            {run.artifacts.map((artifact) => (
-              <li key={artifact.id}>
+            {run.artifacts.map((file) => (
+              <li key={file.id}>
                 <a
                   className="font-mono text-flux-800 hover:underline"
                   href={apiUrl(
-                    `/api/runs/${encodeURIComponent(run.id)}/artifacts/${encodeURIComponent(artifact.id)}`,
+                    `/api/runs/${encodeURIComponent(run.id)}/artifacts/${encodeURIComponent(file.id)}`,
                   )}
                 >
-                  {artifact.stage}/{artifact.name}
+                  {file.stage}/{file.name}
                 </a>{" "}
                 <span className="text-xs text-ink-500">
-                  {artifact.sizeBytes} bytes, sha256 {artifact.sha256.slice(0, 12)}…
+                  {file.sizeBytes} bytes, sha256 {file.sha256.slice(0, 12)}…
                 </span>
               </li>
             ))}

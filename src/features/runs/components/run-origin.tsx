@@ -2,6 +2,7 @@ import type { RunDetail } from "@shared/schemas";
 import { useQuery } from "@tanstack/react-query";
 import { Link } from "react-router-dom";
 import { Notice } from "@/components/ui/notice";
+import { paths } from "@/lib/paths";
 import { runQueries } from "../api/run-queries";
 
 /** A link to another run of the group, by its name once known. */
@@ -9,7 +10,7 @@ function RunLink({ groupId, runId }: { groupId: string; runId: string }) {
   const run = useQuery(runQueries.detail(runId));
   return (
     <Link
-      to={`/groups/${encodeURIComponent(groupId)}/runs/${encodeURIComponent(runId)}`}
+      to={paths.run(groupId, runId)}
       className="font-medium text-flux-800 underline-offset-2 hover:underline"
     >
       {run.data?.name ?? `run ${runId.slice(0, 8)}`}

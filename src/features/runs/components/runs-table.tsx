@@ -6,6 +6,7 @@ import { ErrorState } from "@/components/ui/error-state";
 import { TableSkeleton } from "@/components/ui/skeleton";
 import { Table, TBody, TD, TH, THead, TR } from "@/components/ui/table";
 import { formatDateTime } from "@/lib/format";
+import { paths } from "@/lib/paths";
 import { runQueries } from "../api/run-queries";
 import { formatCoreHours as coreHours } from "../format-core-hours";
 import { RunActions } from "./run-actions";
@@ -48,10 +49,7 @@ export function RunsTable({
         {runs.data.runs.map((run) => (
           <TR key={run.id}>
             <TD>
-              <Link
-                to={`/groups/${encodeURIComponent(groupId)}/runs/${encodeURIComponent(run.id)}`}
-                className="font-medium text-flux-800 hover:underline"
-              >
+              <Link to={paths.run(groupId, run.id)} className="font-medium text-flux-800 hover:underline">
                 {run.name}
               </Link>
               <div className="text-xs text-ink-500">{run.submittedBy ?? "—"}</div>

@@ -1,7 +1,7 @@
 import type { RequestHandler } from "express";
 import type { Database } from "../db/client";
 import { AppError } from "../http/errors";
-import { authenticateApiToken } from "../services/api-tokens.service";
+import { authenticateApiToken } from "../services/tokens.service";
 
 /** `Authorization: Bearer sf_...` authenticates a script as the token's owner for this request only. */
 export function bearerAuth(db: Database): RequestHandler {

@@ -1,13 +1,6 @@
 import { Router } from "express";
 import { z } from "zod";
 import {
-  createHostAccountRequestSchema,
-  hostAccountListSchema,
-  hostAccountSchema,
-  patchHostAccountRequestSchema,
-  replaceHostAccountRequestSchema,
-} from "../../shared/schemas/host-accounts";
-import {
   confirmHostKeyRequestSchema,
   createHostRequestSchema,
   hostListSchema,
@@ -15,20 +8,15 @@ import {
   patchHostRequestSchema,
 } from "../../shared/schemas/hosts";
 import { requirePrincipal } from "../auth/principal";
+import { fetchHostKey } from "../hosts/host-key-probe";
 import { parseBody, parseParams, shape } from "../http/validate";
-import {
-  createHostAccount,
-  deleteHostAccount,
-  listHostAccounts,
-  replaceHostAccount,
-  setHostAccountDisabled,
-} from "../services/host-accounts.service";
 import {
   confirmHostKey,
   createHost,
   deleteHost,
   getHost,
-  type HostDeps,
+  HOST_KEY_TIMEOUT_MS,
+  type HostKeyFetcher,
   listHosts,
   refreshHostKey,
   updateHost,
@@ -37,10 +25,19 @@ import { clientIp, type RouteContext } from "./context";
 
 const groupParams = z.object({ groupId: z.uuid({ error: "groupId must be a UUID" }) });
 const hostParams = z.object({ hostId: z.uuid({ error: "hostId must be a UUID" }) });
-const accountParams = z.object({ accountId: z.uuid({ error: "accountId must be a UUID" }) });
 
-export function hostRoutes(ctx: RouteContext, hostDeps: HostDeps): Router {
-  const { db } = ctx;
+/**
+ * The host-key reader is injectable so these routes can be exercised without a network; by default it
+ * is the server's one-handshake SSH probe.
+ */
+export type HostRouteOptions = { fetchHostKey?: HostKeyFetcher; hostKeyTimeoutMs?: number };
+
+export function hostRoutes({ db }: RouteContext, options: HostRouteOptions = {}): Router {
+  const hostDeps = {
+    db,
+    fetchHostKey: options.fetchHostKey ?? fetchHostKey,
+    hostKeyTimeoutMs: options.hostKeyTimeoutMs ?? HOST_KEY_TIMEOUT_MS,
+  };
   const router = Router();
 
   router.get("/groups/:groupId/hosts", async (req, res) => {
@@ -89,55 +86,6 @@ export function hostRoutes(ctx: RouteContext, hostDeps: HostDeps): Router {
     const { hostId } = parseParams(hostParams, req);
     const { fingerprint } = parseBody(confirmHostKeyRequestSchema, req);
     res.json(shape(hostSchema, await confirmHostKey(db, principal, hostId, fingerprint, clientIp(req))));
-  });
-
-  router.get("/hosts/:hostId/accounts", async (req, res) => {
-    const principal = requirePrincipal(req);
-    const { hostId } = parseParams(hostParams, req);
-    res.json(shape(hostAccountListSchema, { accounts: await listHostAccounts(db, principal, hostId) }));
-  });
-
-  router.post("/hosts/:hostId/accounts", async (req, res) => {
-    const principal = requirePrincipal(req);
-    const { hostId } = parseParams(hostParams, req);
-    const input = parseBody(createHostAccountRequestSchema, req);
-    const account = await createHostAccount(
-      { db, config: ctx.config },
-      principal,
-      hostId,
-      input,
-      clientIp(req),
-    );
-    res.status(201).json(shape(hostAccountSchema, account));
-  });
-
-  router.patch("/host-accounts/:accountId", async (req, res) => {
-    const principal = requirePrincipal(req);
-    const { accountId } = parseParams(accountParams, req);
-    const { disabled } = parseBody(patchHostAccountRequestSchema, req);
-    const account = await setHostAccountDisabled(db, principal, accountId, disabled, clientIp(req));
-    res.json(shape(hostAccountSchema, account));
-  });
-
-  router.post("/host-accounts/:accountId/replacement", async (req, res) => {
-    const principal = requirePrincipal(req);
-    const { accountId } = parseParams(accountParams, req);
-    const input = parseBody(replaceHostAccountRequestSchema, req);
-    const account = await replaceHostAccount(
-      { db, config: ctx.config },
-      principal,
-      accountId,
-      input,
-      clientIp(req),
-    );
-    res.status(201).json(shape(hostAccountSchema, account));
-  });
-
-  router.delete("/host-accounts/:accountId", async (req, res) => {
-    const principal = requirePrincipal(req);
-    const { accountId } = parseParams(accountParams, req);
-    await deleteHostAccount(db, principal, accountId, clientIp(req));
-    res.status(204).end();
   });
 
   return router;

@@ -2,7 +2,7 @@
 import { randomBytes } from "node:crypto";
 import type { Database } from "../../../server/db/client";
 import { groups, memberships, users } from "../../../server/db/schema";
-import { createApiToken } from "../../../server/services/api-tokens.service";
+import { createApiToken } from "../../../server/services/tokens.service";
 import type { GroupRole } from "../../../shared/schemas/groups";
 
 export async function createUser(db: Database, label: string, options: { siteAdmin?: boolean } = {}) {

@@ -8,12 +8,12 @@ import {
 import { requirePrincipal } from "../auth/principal";
 import { forbidden } from "../http/errors";
 import { parseBody, parseParams, shape } from "../http/validate";
-import { createApiToken, listApiTokens, revokeApiToken } from "../services/api-tokens.service";
+import { createApiToken, listApiTokens, revokeApiToken } from "../services/tokens.service";
 import { clientIp, type RouteContext } from "./context";
 
 const tokenParams = z.object({ tokenId: z.uuid({ error: "tokenId must be a UUID" }) });
 
-export function apiTokenRoutes({ db }: RouteContext): Router {
+export function tokenRoutes({ db }: RouteContext): Router {
   const router = Router();
 
   router.get("/tokens", async (req, res) => {

@@ -5,7 +5,7 @@ import { shape } from "../http/validate";
 import { listUsersForAdmin } from "../services/users.service";
 import type { RouteContext } from "./context";
 
-export function adminRoutes({ db }: RouteContext): Router {
+export function userRoutes({ db }: RouteContext): Router {
   const router = Router();
   router.get("/admin/users", async (req, res) => {
     res.json(shape(adminUserListSchema, { users: await listUsersForAdmin(db, requirePrincipal(req)) }));

@@ -31,9 +31,23 @@ sf_ensure_node_modules() {
   cp "$SF_ROOT/package-lock.json" "$stamp"
 }
 
-# A free TCP port on 127.0.0.1.
+# A free TCP port on 127.0.0.1 for a service started later. Chosen below the kernel's ephemeral range
+# (ip_local_port_range, 32768-60999 on Debian), so a port another process later receives from listen(0) or
+# an outgoing connection can never take it between this choice and the service's bind; ports handed out
+# earlier by this script are never handed out again (the list is a file: callers use $(sf_free_port)).
+SF_HANDED_PORTS_FILE="$(mktemp /tmp/sigmaflow-ports.XXXXXX)"
 sf_free_port() {
-  node -e 'const s=require("net").createServer();s.listen(0,"127.0.0.1",()=>{console.log(s.address().port);s.close()})'
+  local low=20000 high=32767 p i
+  for ((i = 0; i < 200; i++)); do
+    p=$((low + (RANDOM * 32768 + RANDOM) % (high - low + 1)))
+    grep -qx "$p" "$SF_HANDED_PORTS_FILE" && continue
+    (exec 3<>"/dev/tcp/127.0.0.1/$p") 2>/dev/null && continue
+    node -e 'const s=require("net").createServer();s.on("error",()=>process.exit(1));s.listen(Number(process.argv[1]),"127.0.0.1",()=>s.close())' "$p" || continue
+    echo "$p" >>"$SF_HANDED_PORTS_FILE"
+    echo "$p"
+    return 0
+  done
+  sf_die "no free TCP port between $low and $high on 127.0.0.1"
 }
 
 sf_wait_for_port() { # port, name, seconds
@@ -140,6 +154,7 @@ sf_stop_all() {
   for pid in "${SF_PIDS[@]}"; do kill -TERM "$pid" 2>/dev/null || true; done
   for pid in "${SF_PIDS[@]}"; do wait "$pid" 2>/dev/null || true; done
   SF_PIDS=()
+  rm -f "$SF_HANDED_PORTS_FILE"
 }
 
 # A secret kept in a file (created once with 48 random bytes, base64url).

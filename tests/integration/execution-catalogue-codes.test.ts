@@ -394,5 +394,15 @@ describe("recipes", () => {
       own.body.id,
     ]);
     expect(audit.rows.map((r) => r.action)).toEqual(["code.create", "code.delete"]);
+    // The group's activity names the code although it is gone: from the name recorded with its entries.
+    const activity = await call("admin", "GET", `/api/groups/${groupId}/audit`);
+    expect(activity.status).toBe(200);
+    const entries = activity.body.entries.filter(
+      (entry: { targetId: string }) => entry.targetId === own.body.id,
+    );
+    expect(entries).toEqual([
+      expect.objectContaining({ action: "code.delete", targetName: "own 1.0", targetExists: false }),
+      expect.objectContaining({ action: "code.create", targetName: "own 1.0", targetExists: false }),
+    ]);
   });
 });

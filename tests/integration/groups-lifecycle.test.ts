@@ -129,6 +129,47 @@ describe("roles", () => {
     expect(demoteSelf.status).toBe(200);
   });
 
+  it("lists role changes and removals in the group's activity by name, not by id", async () => {
+    const group = await createGroup(database.db, "activity");
+    const admin = await createUser(database.db, "admin");
+    const promoted = await createUser(database.db, "promoted");
+    const removed = await createUser(database.db, "removed");
+    await addMember(database.db, admin.id, group.id, "admin");
+    await addMember(database.db, promoted.id, group.id, "member");
+    await addMember(database.db, removed.id, group.id, "member");
+    const token = await tokenFor(database.db, admin);
+    const promote = await call(token, "PATCH", `/api/groups/${group.id}/members/${promoted.id}`, {
+      role: "admin",
+    });
+    expect(promote.status).toBe(200);
+    const remove = await call(token, "DELETE", `/api/groups/${group.id}/members/${removed.id}`);
+    expect(remove.status).toBe(204);
+
+    const audit = await call(token, "GET", `/api/groups/${group.id}/audit`);
+    expect(audit.status).toBe(200);
+    // Contract (shared/schemas/audit.ts): the actor's display name and the target's name; a member who
+    // left the group keeps their name but no longer counts as an existing target.
+    expect(audit.body.entries).toEqual([
+      expect.objectContaining({
+        action: "member.remove",
+        actor: admin.displayName,
+        targetType: "user",
+        targetId: removed.id,
+        targetName: removed.displayName,
+        targetExists: false,
+      }),
+      expect.objectContaining({
+        action: "member.role_change",
+        actor: admin.displayName,
+        targetType: "user",
+        targetId: promoted.id,
+        targetName: promoted.displayName,
+        targetExists: true,
+        details: { from: "member", to: "admin" },
+      }),
+    ]);
+  });
+
   it("keeps one admin when two admins demote each other at the same moment", async () => {
     const group = await createGroup(database.db, "race");
     const a = await createUser(database.db, "a");

@@ -1,0 +1,203 @@
+/**
+ * Run creation: validation, plan, fingerprint, reservation and enqueueing in one transaction, or
+ * reusing the results of an identical finished run. The worker carries a run forward from `queued`.
+ */
+import { randomBytes } from "node:crypto";
+import { and, desc, eq, isNull } from "drizzle-orm";
+import type pg from "pg";
+import type PgBoss from "pg-boss";
+import type { OnDuplicate, RunSpec, RunSpecRequest, RunSummary } from "../../shared/schemas/runs";
+import { recordAudit } from "../audit/record-audit";
+import type { Principal } from "../auth/principal";
+import type { Database } from "../db/client";
+import { withClientTransaction } from "../db/client-transaction";
+import { hosts, runEvents, runs } from "../db/schema";
+import { buildRunPlan, runFingerprint } from "../execution/run-plan";
+import { resolveResources } from "../execution/run-spec";
+import { AppError, conflict } from "../http/errors";
+import { RUN_STEP_QUEUES } from "../queue/queues";
+import { requireGroupRole } from "./access";
+import { activeAllocation, reserveAgainstAllocation } from "./allocations.service";
+import { chooseAccount } from "./host-accounts.service";
+import { getRunSummary } from "./run-reads.service";
+import { loadStages } from "./run-stages.service";
+
+export type RunDeps = { db: Database; pool: pg.Pool; boss: PgBoss };
+
+const SECONDS_PER_HOUR = 3600;
+const hours = (coreSeconds: number) => Math.round((coreSeconds / SECONDS_PER_HOUR) * 1e4) / 1e4;
+
+/** Remote folder of a run below the host's base folder; only names we generate. */
+export const RUN_DIR_PREFIX = "sf-run-";
+export const remoteRunDir = (baseDir: string, runId: string) => `${baseDir}/${RUN_DIR_PREFIX}${runId}`;
+
+async function loadHost(db: Database, groupId: string, hostId: string) {
+  const [host] = await db
+    .select()
+    .from(hosts)
+    .where(and(eq(hosts.id, hostId), eq(hosts.groupId, groupId)));
+  if (!host)
+    throw new AppError(422, "validation_failed", "The host does not exist in this group.", [
+      { path: "spec.hostId", message: "Unknown host." },
+    ]);
+  if (!host.hostKeyConfirmedAt || !host.hostKey) {
+    throw new AppError(
+      422,
+      "host_not_confirmed",
+      `An admin must confirm the host key of ${host.name} before runs can use it.`,
+    );
+  }
+  if (host.status === "key_mismatch") {
+    throw new AppError(
+      422,
+      "host_key_mismatch",
+      `${host.name} presented a different host key; an admin must check it before runs can use it.`,
+    );
+  }
+  return host;
+}
+
+/** The latest finished run with these inputs that really ran (a reusing run holds no results of its own). */
+async function findReusable(db: Database, groupId: string, fingerprint: string) {
+  const [row] = await db
+    .select({ id: runs.id, name: runs.name, finishedAt: runs.finishedAt })
+    .from(runs)
+    .where(
+      and(
+        eq(runs.groupId, groupId),
+        eq(runs.fingerprint, fingerprint),
+        eq(runs.state, "done"),
+        isNull(runs.reusedFrom),
+      ),
+    )
+    .orderBy(desc(runs.finishedAt))
+    .limit(1);
+  return row ?? null;
+}
+
+export async function createRun(
+  deps: RunDeps,
+  principal: Principal,
+  groupId: string,
+  request: { spec: RunSpecRequest; onDuplicate: OnDuplicate },
+  extra: { resubmittedFrom?: string; ip?: string | null } = {},
+): Promise<RunSummary> {
+  const { db } = deps;
+  await requireGroupRole(db, principal, groupId, "member");
+  const host = await loadHost(db, groupId, request.spec.hostId);
+  const account = await chooseAccount(db, host.id, principal.userId);
+  if (!account) {
+    throw new AppError(
+      422,
+      "no_host_account",
+      `You have no account on ${host.name} and the group has none: add one under the host's accounts.`,
+    );
+  }
+  const inputs = await loadStages(db, groupId, request.spec);
+  // Stored with the resources it got, so a resubmission starts from exactly what this run asked for.
+  const spec: RunSpec = {
+    ...request.spec,
+    resources: resolveResources(
+      request.spec.resources,
+      inputs.map((input) => input.definition),
+    ),
+  };
+  const runId = crypto.randomUUID();
+  let plan: ReturnType<typeof buildRunPlan>;
+  try {
+    plan = buildRunPlan(runId, spec.name, inputs);
+  } catch (error) {
+    throw new AppError(422, "template_failed", (error as Error).message);
+  }
+  const fingerprint = runFingerprint(inputs, plan);
+  const reusable = await findReusable(db, groupId, fingerprint);
+  if (reusable && request.onDuplicate === "ask") {
+    throw conflict(
+      `A finished run with identical inputs exists: "${reusable.name}" (run ${reusable.id}). ` +
+        `Send again with onDuplicate "reuse" to take its results without running, or "run" to run anyway.`,
+      {
+        reason: "reusable_result",
+        runId: reusable.id,
+        runName: reusable.name,
+        onDuplicate: ["reuse", "run"],
+      },
+    );
+  }
+  const reuse = reusable && request.onDuplicate === "reuse" ? reusable : null;
+  const reserveCoreSeconds = reuse ? 0 : spec.resources.cores * spec.resources.wallTimeMinutes * 60;
+
+  await withClientTransaction(deps.pool, async ({ db: tx, executeSql }) => {
+    const allocation = await activeAllocation(tx, groupId, new Date());
+    if (!allocation)
+      throw new AppError(
+        422,
+        "no_allocation",
+        "Your group has no allocation for the current period: ask a group admin.",
+      );
+    await tx.insert(runs).values({
+      id: runId,
+      groupId,
+      recipeId: spec.recipeId,
+      hostId: host.id,
+      hostAccountId: account.id,
+      allocationId: allocation.id,
+      submittedBy: principal.userId,
+      name: spec.name,
+      spec,
+      plan,
+      fingerprint,
+      state: reuse ? "done" : "queued",
+      stateMessage: reuse ? `Results reused from run ${reuse.id}.` : null,
+      cores: spec.resources.cores,
+      wallTimeMinutes: spec.resources.wallTimeMinutes,
+      reservedCoreSeconds: reserveCoreSeconds,
+      chargedCoreSeconds: reuse ? 0 : null,
+      remoteDir: remoteRunDir(host.remoteBaseDir, runId),
+      submitToken: `sf-${runId.slice(0, 8)}-${randomBytes(4).toString("hex")}`,
+      resubmittedFrom: extra.resubmittedFrom ?? null,
+      reusedFrom: reuse?.id ?? null,
+      notifyByEmail: spec.notifyByEmail,
+      finishedAt: reuse ? new Date() : null,
+    });
+    await tx.insert(runEvents).values({
+      runId,
+      toState: reuse ? "done" : "queued",
+      actor: "user",
+      actorUserId: principal.userId,
+      message: reuse ? `Reused the results of run ${reuse.id}` : "Submitted",
+    });
+    if (!reuse)
+      await deps.boss.send(RUN_STEP_QUEUES.stage, { runId }, { db: { executeSql: executeSql as never } });
+    await recordAudit(tx, {
+      actorUserId: principal.userId,
+      groupId,
+      action: reuse ? "run.reuse" : "run.create",
+      targetType: "run",
+      targetId: runId,
+      details: {
+        name: spec.name,
+        fingerprint,
+        reserveCoreSeconds,
+        resubmittedFrom: extra.resubmittedFrom ?? null,
+      },
+      ip: extra.ip ?? null,
+    });
+    if (reuse) return;
+    // Last, so the allocation stays locked only for the check, the reservation and the commit.
+    const { reserved, availableCoreSeconds: available } = await reserveAgainstAllocation(
+      tx,
+      allocation.id,
+      runId,
+      reserveCoreSeconds,
+    );
+    if (!reserved) {
+      throw new AppError(
+        422,
+        "allocation_exceeded",
+        `This run needs ${hours(reserveCoreSeconds)} core-hours (cores × wall-time limit) but ${allocation.name} has ${hours(Math.max(available, 0))} left.`,
+        { neededCoreHours: hours(reserveCoreSeconds), availableCoreHours: hours(Math.max(available, 0)) },
+      );
+    }
+  });
+  return (await getRunSummary(db, runId))!;
+}

@@ -1,0 +1,200 @@
+/**
+ * Reading runs: lists, the detail page (events, collected files, timings in stage order), one
+ * collected file, and the log from a sequence number on. Every read checks the caller's role.
+ */
+import { and, desc, eq, gt } from "drizzle-orm";
+import { alias } from "drizzle-orm/pg-core";
+import {
+  type RunDetail,
+  type RunProgress,
+  type RunState,
+  type RunSummary,
+  runSpecSchema,
+  runStageProgressSchema,
+} from "../../shared/schemas/runs";
+import type { Principal } from "../auth/principal";
+import type { Database } from "../db/client";
+import { runArtifacts, runEvents, runLogChunks, runs, runTimings, users } from "../db/schema";
+import type { RunPlan } from "../execution/run-plan";
+import { AppError, notFound } from "../http/errors";
+import { requireGroupRole } from "./access";
+
+const SECONDS_PER_HOUR = 3600;
+const hours = (coreSeconds: number) => Math.round((coreSeconds / SECONDS_PER_HOUR) * 1e4) / 1e4;
+
+const canceller = alias(users, "canceller");
+const summaryColumns = {
+  run: runs,
+  submittedBy: users.displayName,
+  cancelRequestedBy: canceller.displayName,
+};
+
+/** Runs with the names of who submitted them and who asked to cancel them. */
+function selectSummaries(db: Database) {
+  return db
+    .select(summaryColumns)
+    .from(runs)
+    .leftJoin(users, eq(users.id, runs.submittedBy))
+    .leftJoin(canceller, eq(canceller.id, runs.cancelRequestedBy));
+}
+
+/** The stored progress with the stage's place in the run's plan. */
+function progressOf(run: typeof runs.$inferSelect): RunProgress | null {
+  const stored = runStageProgressSchema.safeParse(run.progress);
+  if (!stored.success) return null;
+  const stages = (run.plan as RunPlan).stages;
+  const index = stages.findIndex((stage) => stage.name === stored.data.stage);
+  if (index < 0) return null;
+  return { ...stored.data, stageIndex: index + 1, stageCount: stages.length };
+}
+
+function toSummary(row: {
+  run: typeof runs.$inferSelect;
+  submittedBy: string | null;
+  cancelRequestedBy: string | null;
+}): RunSummary {
+  const r = row.run;
+  return {
+    id: r.id,
+    groupId: r.groupId,
+    name: r.name,
+    recipeId: r.recipeId,
+    hostId: r.hostId,
+    state: r.state,
+    stateMessage: r.stateMessage,
+    fingerprint: r.fingerprint,
+    cores: r.cores,
+    wallTimeMinutes: r.wallTimeMinutes,
+    reservedCoreHours: hours(r.reservedCoreSeconds),
+    chargedCoreHours: r.chargedCoreSeconds === null ? null : hours(r.chargedCoreSeconds),
+    schedulerJobId: r.schedulerJobId,
+    exitCode: r.exitCode,
+    resubmittedFrom: r.resubmittedFrom,
+    reusedFrom: r.reusedFrom,
+    submittedBy: row.submittedBy,
+    cancelRequested: r.cancelRequestedAt !== null,
+    cancelRequestedBy: r.cancelRequestedAt === null ? null : row.cancelRequestedBy,
+    progress: progressOf(r),
+    createdAt: r.createdAt.toISOString(),
+    startedAt: r.startedAt?.toISOString() ?? null,
+    finishedAt: r.finishedAt?.toISOString() ?? null,
+  };
+}
+
+export async function getRunSummary(db: Database, runId: string): Promise<RunSummary | null> {
+  const [row] = await selectSummaries(db).where(eq(runs.id, runId));
+  return row ? toSummary(row) : null;
+}
+
+/** Loads a run the caller may see (any role in its group), or 404. */
+export async function visibleRun(
+  db: Database,
+  principal: Principal,
+  runId: string,
+  minimum: "collaborator" | "member",
+) {
+  const [run] = await db.select().from(runs).where(eq(runs.id, runId));
+  if (!run) throw notFound("Run");
+  await requireGroupRole(db, principal, run.groupId, minimum).catch((error: unknown) => {
+    if (error instanceof AppError && error.status === 404) throw notFound("Run");
+    throw error;
+  });
+  return run;
+}
+
+export async function listRuns(
+  db: Database,
+  principal: Principal,
+  groupId: string,
+  filters: { state?: RunState; limit: number },
+): Promise<RunSummary[]> {
+  await requireGroupRole(db, principal, groupId, "collaborator");
+  const where = filters.state
+    ? and(eq(runs.groupId, groupId), eq(runs.state, filters.state))
+    : eq(runs.groupId, groupId);
+  const rows = await selectSummaries(db).where(where).orderBy(desc(runs.createdAt)).limit(filters.limit);
+  return rows.map(toSummary);
+}
+
+export async function getRunDetail(db: Database, principal: Principal, runId: string): Promise<RunDetail> {
+  const run = await visibleRun(db, principal, runId, "collaborator");
+  const artifactRunId = run.reusedFrom ?? run.id;
+  const [summary, events, artifacts, timings] = await Promise.all([
+    getRunSummary(db, runId),
+    db
+      .select({ event: runEvents, actorName: users.displayName })
+      .from(runEvents)
+      .leftJoin(users, eq(users.id, runEvents.actorUserId))
+      .where(eq(runEvents.runId, runId))
+      .orderBy(runEvents.id),
+    db
+      .select({
+        id: runArtifacts.id,
+        stage: runArtifacts.stage,
+        name: runArtifacts.name,
+        sizeBytes: runArtifacts.sizeBytes,
+        sha256: runArtifacts.sha256,
+      })
+      .from(runArtifacts)
+      .where(eq(runArtifacts.runId, artifactRunId))
+      .orderBy(runArtifacts.stage, runArtifacts.name),
+    db
+      .select()
+      .from(runTimings)
+      .where(eq(runTimings.runId, artifactRunId))
+      .orderBy(runTimings.stage, runTimings.symmetry),
+  ]);
+  // Timings in the order the stages run, not alphabetically by stage name.
+  const stageOrder = (run.plan as RunPlan).stages.map((stage) => stage.name);
+  const byStage = (stage: string) => {
+    const index = stageOrder.indexOf(stage);
+    return index < 0 ? stageOrder.length : index;
+  };
+  return {
+    ...summary!,
+    spec: runSpecSchema.parse(run.spec),
+    events: events.map(({ event: e, actorName }) => ({
+      at: e.at.toISOString(),
+      fromState: e.fromState,
+      toState: e.toState,
+      actor: e.actor,
+      actorName,
+      message: e.message,
+    })),
+    artifacts,
+    timings: timings
+      .map((t) => ({ stage: t.stage, symmetry: t.symmetry, seconds: t.elapsedMs / 1000 }))
+      .sort((a, b) => byStage(a.stage) - byStage(b.stage)),
+  };
+}
+
+export async function readArtifact(db: Database, principal: Principal, runId: string, artifactId: string) {
+  const run = await visibleRun(db, principal, runId, "collaborator");
+  const [artifact] = await db
+    .select()
+    .from(runArtifacts)
+    .where(and(eq(runArtifacts.id, artifactId), eq(runArtifacts.runId, run.reusedFrom ?? run.id)));
+  if (!artifact) throw notFound("Artefact");
+  return artifact;
+}
+
+export async function readRunLog(
+  db: Database,
+  principal: Principal,
+  runId: string,
+  afterSeq: number,
+  limit = 500,
+) {
+  const run = await visibleRun(db, principal, runId, "collaborator");
+  // A run that reused results has no log of its own: it serves the log of the run that produced them.
+  const chunks = await db
+    .select({ seq: runLogChunks.seq, text: runLogChunks.text, at: runLogChunks.at })
+    .from(runLogChunks)
+    .where(and(eq(runLogChunks.runId, run.reusedFrom ?? run.id), gt(runLogChunks.seq, afterSeq)))
+    .orderBy(runLogChunks.seq)
+    .limit(limit);
+  return {
+    chunks: chunks.map((c) => ({ seq: c.seq, text: c.text, at: c.at.toISOString() })),
+    lastSeq: chunks.at(-1)?.seq ?? afterSeq,
+  };
+}

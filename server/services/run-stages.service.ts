@@ -1,0 +1,82 @@
+/**
+ * Checks a run spec against the group's recipe and codes: every named stage exists, each stage's code
+ * is still registered, and the parameters fit the code's declared schema (defaults filled in).
+ */
+import { and, eq, inArray } from "drizzle-orm";
+import { type CodeDefinition, codeDefinitionSchema } from "../../shared/schemas/codes";
+import type { RunSpecRequest } from "../../shared/schemas/runs";
+import type { Database } from "../db/client";
+import { codes, recipes } from "../db/schema";
+import { validateParameters } from "../execution/parameters";
+import type { StageInput } from "../execution/run-plan";
+import { AppError } from "../http/errors";
+
+export async function loadStages(
+  db: Database,
+  groupId: string,
+  spec: Pick<RunSpecRequest, "recipeId" | "parameters">,
+): Promise<StageInput[]> {
+  const [recipe] = await db
+    .select()
+    .from(recipes)
+    .where(and(eq(recipes.id, spec.recipeId), eq(recipes.groupId, groupId)));
+  if (!recipe)
+    throw new AppError(422, "validation_failed", "The recipe does not exist in this group.", [
+      { path: "spec.recipeId", message: "Unknown recipe." },
+    ]);
+  const stages = recipe.stages as { name: string; codeId: string }[];
+  const codeRows = await db
+    .select()
+    .from(codes)
+    .where(
+      and(
+        eq(codes.groupId, groupId),
+        inArray(
+          codes.id,
+          stages.map((s) => s.codeId),
+        ),
+      ),
+    );
+  const byId = new Map(
+    codeRows.map((row) => [row.id, codeDefinitionSchema.parse(row.definition) as CodeDefinition]),
+  );
+  const unknownStages = Object.keys(spec.parameters).filter((name) => !stages.some((s) => s.name === name));
+  if (unknownStages.length > 0) {
+    throw new AppError(
+      422,
+      "validation_failed",
+      `The recipe has no stage named ${unknownStages.join(", ")}.`,
+      unknownStages.map((name) => ({
+        path: `spec.parameters.${name}`,
+        message: "No such stage in the recipe.",
+      })),
+    );
+  }
+  const problems: { path: string; message: string }[] = [];
+  const inputs = stages.map((stage) => {
+    const definition = byId.get(stage.codeId);
+    if (!definition)
+      throw new AppError(422, "validation_failed", `The code of stage ${stage.name} was deleted.`);
+    const check = validateParameters(definition, spec.parameters[stage.name] ?? {});
+    if (!check.valid) {
+      for (const issue of check.errors) {
+        problems.push({
+          path: `spec.parameters.${stage.name}${issue.path ? `.${issue.path}` : ""}`,
+          message: issue.message,
+        });
+      }
+      return { name: stage.name, codeId: stage.codeId, definition, parameters: {} };
+    }
+    // Defaults from the schema are filled in, so equal runs get equal fingerprints however they are written.
+    return { name: stage.name, codeId: stage.codeId, definition, parameters: check.parameters };
+  });
+  if (problems.length > 0) {
+    throw new AppError(
+      422,
+      "validation_failed",
+      `The parameters do not fit the codes' declarations: ${problems[0]!.path}: ${problems[0]!.message}`,
+      problems,
+    );
+  }
+  return inputs;
+}

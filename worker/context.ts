@@ -5,6 +5,7 @@ import type { Logger } from "../server/logger";
 import type { Mailer } from "../server/mail/mailer";
 import type { WorkerConfig } from "./config";
 import type { SshPool } from "./ssh/pool";
+import type { StagingClaims } from "./staging-claims";
 
 /** What every worker step receives. */
 export type WorkerContext = {
@@ -15,4 +16,6 @@ export type WorkerContext = {
   config: WorkerConfig;
   log: Logger;
   mailer: Mailer;
+  /** Keeps two attempts from staging the same run at once (see staging-claims.ts). */
+  stagingClaims: StagingClaims;
 };

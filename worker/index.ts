@@ -11,6 +11,7 @@ import { loadWorkerConfig } from "./config";
 import type { WorkerContext } from "./context";
 import { every, pollAllHosts, reconcileRunsInFlight, resumeHeldRuns } from "./maintenance";
 import { SshPool } from "./ssh/pool";
+import { StagingClaims } from "./staging-claims";
 import { cancelRunOnHost } from "./steps/cancel";
 import { collectRun } from "./steps/collect";
 import { stageRun } from "./steps/stage";
@@ -27,7 +28,16 @@ export async function startWorker(config = loadWorkerConfig()) {
   await boss.start();
   await createRunQueues(boss);
   const ssh = new SshPool(config.ssh);
-  const ctx: WorkerContext = { db, pool, boss, ssh, config, log, mailer: createMailer(config.smtp) };
+  const ctx: WorkerContext = {
+    db,
+    pool,
+    boss,
+    ssh,
+    config,
+    log,
+    mailer: createMailer(config.smtp),
+    stagingClaims: new StagingClaims(config.databaseUrl),
+  };
 
   const handlers = {
     [RUN_STEP_QUEUES.stage]: stageRun,
@@ -74,6 +84,7 @@ export async function startWorker(config = loadWorkerConfig()) {
       await stopProbing();
       await boss.stop({ graceful: true, wait: true, timeout: 10_000 });
       ssh.close();
+      await ctx.stagingClaims.close();
       ctx.mailer.close();
       await pool.end();
     },

@@ -17,6 +17,18 @@ import { prepareRunDir, stageFiles } from "../ssh/remote-fs";
 const worker = { kind: "worker" } as const;
 
 export async function stageRun(ctx: WorkerContext, runId: string): Promise<void> {
+  // A duplicate item that finds the run being staged leaves it to that attempt, which submits it (or
+  // fails and is retried by the queue); the run is read only once the claim is held, so a later
+  // duplicate sees the files already staged.
+  if (!(await ctx.stagingClaims.tryClaim(runId))) return;
+  try {
+    await stageClaimedRun(ctx, runId);
+  } finally {
+    await ctx.stagingClaims.release(runId);
+  }
+}
+
+async function stageClaimedRun(ctx: WorkerContext, runId: string): Promise<void> {
   const run = await loadRun(ctx, runId);
   if (!run || (run.state !== "queued" && run.state !== "staging")) return;
   const rt = await runtimeFor(ctx, run).catch(() => null);

@@ -11,7 +11,7 @@
  */
 import { createHash } from "node:crypto";
 import type { CodeDefinition } from "../../shared/schemas/codes";
-import { renderCodeFiles } from "./templates";
+import { renderCodeFiles } from "./templates/render";
 
 export type PlanFile = { relativePath: string; contentBase64: string; sha256: string };
 export type PlanStage = {

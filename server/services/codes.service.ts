@@ -13,7 +13,7 @@ import type { Database } from "../db/client";
 import { codes, recipes } from "../db/schema";
 import { outputRuleProblems } from "../execution/output-rule-checks";
 import { compileParameterSchema, ParameterSchemaError } from "../execution/parameters";
-import { checkCodeTemplates } from "../execution/templates";
+import { checkCodeTemplates } from "../execution/templates/render";
 import { AppError, conflict, forbidden, notFound } from "../http/errors";
 import { requireGroupRole, requireRoleFor } from "./access";
 

@@ -9,7 +9,11 @@
  */
 import { execFileSync } from "node:child_process";
 import { describe, expect, it } from "vitest";
-import { checkCodeTemplates, renderCodeFiles, TemplateError } from "../../../server/execution/templates";
+import {
+  checkCodeTemplates,
+  renderCodeFiles,
+  TemplateError,
+} from "../../../server/execution/templates/render";
 import { type CodeDefinition, codeDefinitionSchema } from "../../../shared/schemas/codes";
 import { regExpSourcesRunDuring } from "./native-regexp";
 

@@ -446,5 +446,23 @@ describe("deleting a host", () => {
       free.body.id,
     ]);
     expect(audit.rows.map((r) => r.action)).toEqual(["host.create", "host.delete"]);
+    // The group's activity still names the deleted host, and its account as user@host.
+    const activity = await call("admin", "GET", `/api/groups/${groupId}/audit`);
+    expect(activity.status).toBe(200);
+    const named = activity.body.entries
+      .filter((entry: { action: string }) =>
+        ["host.create", "host_account.create", "host.delete"].includes(entry.action),
+      )
+      .slice(0, 3)
+      .map((entry: { action: string; targetName: string; targetExists: boolean }) => [
+        entry.action,
+        entry.targetName,
+        entry.targetExists,
+      ]);
+    expect(named).toEqual([
+      ["host.delete", "free", false],
+      ["host_account.create", "shared@free", false],
+      ["host.create", "free", false],
+    ]);
   });
 });

@@ -4,7 +4,7 @@ import type { OutgoingMail } from "./mailer";
 const ROLE_WORDS: Record<GroupRole, string> = {
   collaborator: "a collaborator (read-only access to results)",
   member: "a researcher (submit and manage runs)",
-  admin: "an admin (manage members, hosts and quotas)",
+  admin: "an admin (manage members, hosts and allocations)",
 };
 
 function escapeHtml(value: string): string {

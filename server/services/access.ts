@@ -4,16 +4,17 @@
  * (404, so group ids cannot be probed).
  */
 import { and, eq } from "drizzle-orm";
-import type { GroupRole } from "../../shared/schemas/groups";
+import { type GroupRole, groupRoleSchema } from "../../shared/schemas/groups";
 import type { Principal } from "../auth/principal";
 import type { DbExecutor } from "../db/client";
 import { memberships } from "../db/schema";
 import { AppError, forbidden, notFound } from "../http/errors";
 
-const RANK: Record<GroupRole, number> = { collaborator: 0, member: 1, admin: 2 };
+/** The schema lists the roles from least to most access. */
+const rank = (role: GroupRole): number => groupRoleSchema.options.indexOf(role);
 
 export function roleAtLeast(role: GroupRole, minimum: GroupRole): boolean {
-  return RANK[role] >= RANK[minimum];
+  return rank(role) >= rank(minimum);
 }
 
 export async function membershipRole(

@@ -1,6 +1,6 @@
 /**
  * Core-hour allocations of a group and their ledger. Amounts are whole core-seconds in the database;
- * the API speaks core-hours (seconds / 3600). Balances come from the ledger:
+ * the API speaks core-hours (shared/core-hours.ts). Balances come from the ledger:
  *   reserved  = Σreserve − Σrelease
  *   charged   = Σcharge
  *   available = granted − Σreserve + Σrelease − Σcharge
@@ -8,7 +8,13 @@
  * reservation released. Periods of one group do not overlap, so at any moment at most one is active.
  */
 import { and, asc, eq, gt, inArray, lt, lte, sql } from "drizzle-orm";
-import type { Allocation } from "../../shared/schemas/allocations";
+import type { z } from "zod";
+import { coreHoursFromSeconds, coreSecondsFromHours } from "../../shared/core-hours";
+import type {
+  Allocation,
+  createAllocationRequestSchema,
+  LedgerEntry,
+} from "../../shared/schemas/allocations";
 import { recordAudit } from "../audit/record-audit";
 import type { Principal } from "../auth/principal";
 import type { Database, DbExecutor } from "../db/client";
@@ -18,10 +24,8 @@ import { requireGroupRole, requireRoleFor } from "./access";
 
 export type AllocationRow = typeof allocations.$inferSelect;
 export type LedgerTotals = { reserveSeconds: number; releaseSeconds: number; chargeSeconds: number };
-export type CreateAllocationInput = { name: string; coreHours: number; startsAt: string; endsAt: string };
+export type CreateAllocationInput = z.output<typeof createAllocationRequestSchema>;
 
-const SECONDS_PER_HOUR = 3600;
-const hours = (seconds: number) => seconds / SECONDS_PER_HOUR;
 const ZERO: LedgerTotals = { reserveSeconds: 0, releaseSeconds: 0, chargeSeconds: 0 };
 
 export function balanceOf(grantedCoreSeconds: number, totals: LedgerTotals) {
@@ -67,10 +71,10 @@ function toAllocation(row: AllocationRow, totals: LedgerTotals): Allocation {
     id: row.id,
     groupId: row.groupId,
     name: row.name,
-    grantedCoreHours: hours(row.grantedCoreSeconds),
-    reservedCoreHours: hours(balance.reservedCoreSeconds),
-    chargedCoreHours: hours(balance.chargedCoreSeconds),
-    availableCoreHours: hours(balance.availableCoreSeconds),
+    grantedCoreHours: coreHoursFromSeconds(row.grantedCoreSeconds),
+    reservedCoreHours: coreHoursFromSeconds(balance.reservedCoreSeconds),
+    chargedCoreHours: coreHoursFromSeconds(balance.chargedCoreSeconds),
+    availableCoreHours: coreHoursFromSeconds(balance.availableCoreSeconds),
     startsAt: row.startsAt.toISOString(),
     endsAt: row.endsAt.toISOString(),
   };
@@ -102,7 +106,7 @@ export async function createAllocation(
   ip: string | null,
 ): Promise<Allocation> {
   await requireGroupRole(db, principal, groupId, "admin");
-  const grantedCoreSeconds = Math.round(input.coreHours * SECONDS_PER_HOUR);
+  const grantedCoreSeconds = coreSecondsFromHours(input.coreHours);
   if (grantedCoreSeconds < 1) {
     throw new AppError(422, "validation_failed", "coreHours: grant at least one core-second.", [
       { path: "coreHours", message: "grant at least one core-second" },
@@ -154,15 +158,6 @@ export async function createAllocation(
   });
 }
 
-export type LedgerEntry = {
-  id: number;
-  runId: string | null;
-  kind: "reserve" | "charge" | "release";
-  coreHours: number;
-  note: string | null;
-  at: string;
-};
-
 export async function allocationLedger(
   db: Database,
   principal: Principal,
@@ -183,7 +178,7 @@ export async function allocationLedger(
     id: row.id,
     runId: row.runId,
     kind: row.kind,
-    coreHours: hours(row.coreSeconds),
+    coreHours: coreHoursFromSeconds(row.coreSeconds),
     note: row.note,
     at: row.at.toISOString(),
   }));

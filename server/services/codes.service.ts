@@ -4,7 +4,7 @@
  * compiles, so a broken one is refused at registration rather than at the first run.
  */
 import { and, asc, eq, inArray, sql } from "drizzle-orm";
-import type { Code, CodeDefinition } from "../../shared/schemas/codes";
+import type { Code, CodeDefinition, CodeExport } from "../../shared/schemas/codes";
 import { codeDefinitionSchema } from "../../shared/schemas/codes";
 import { isReservedRunFileName } from "../../shared/schemas/run-folder";
 import { recordAudit } from "../audit/record-audit";
@@ -176,8 +176,6 @@ export async function deleteCode(db: Database, principal: Principal, codeId: str
     });
   });
 }
-
-export type CodeExport = { format: "sigmaflow-code-definitions"; version: 1; codes: CodeDefinition[] };
 
 export async function exportCodes(db: Database, principal: Principal, groupId: string): Promise<CodeExport> {
   const all = await listCodes(db, principal, groupId);

@@ -13,6 +13,7 @@ import { and, asc, eq, isNull, or, sql } from "drizzle-orm";
 import type {
   CreateHostAccountRequest,
   HostAccount,
+  HostAccountKind,
   ReplaceHostAccountRequest,
 } from "../../shared/schemas/host-accounts";
 import { recordAudit } from "../audit/record-audit";
@@ -59,7 +60,7 @@ function keyPairFor(input: { privateKey?: string }, comment: string): SshKeyPair
   }
 }
 
-const alreadyThere = (kind: "personal" | "group", mine: boolean) =>
+const alreadyThere = (kind: HostAccountKind, mine: boolean) =>
   conflict(
     kind === "group"
       ? "This host already has an enabled group account: disable or replace it before setting up another."
@@ -365,7 +366,7 @@ export async function replaceHostAccount(
   }
 }
 
-export type ChosenAccount = { id: string; username: string; kind: "personal" | "group" };
+export type ChosenAccount = { id: string; username: string; kind: HostAccountKind };
 
 /**
  * The account a run of this user goes out with: their enabled personal one, else the group's enabled

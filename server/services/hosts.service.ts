@@ -4,8 +4,9 @@
  * worker connects only after an admin has compared the fingerprint and confirmed it.
  */
 import { and, asc, eq, sql } from "drizzle-orm";
+import type { z } from "zod";
 import type { GroupRole } from "../../shared/schemas/groups";
-import type { Host, PatchHostRequest } from "../../shared/schemas/hosts";
+import type { createHostRequestSchema, Host, PatchHostRequest } from "../../shared/schemas/hosts";
 import { recordAudit } from "../audit/record-audit";
 import type { Principal } from "../auth/principal";
 import type { HostKey } from "../crypto/ssh-public-keys";
@@ -18,14 +19,7 @@ import { requireGroupRole, requireRoleFor } from "./access";
 export type HostKeyFetcher = (address: string, port: number, timeoutMs: number) => Promise<HostKey>;
 export type HostDeps = { db: Database; fetchHostKey: HostKeyFetcher; hostKeyTimeoutMs?: number };
 export type HostRow = typeof hosts.$inferSelect;
-export type CreateHostInput = {
-  name: string;
-  address: string;
-  port: number;
-  scheduler: "direct" | "slurm";
-  remoteBaseDir: string;
-  maxConcurrentRuns: number;
-};
+export type CreateHostInput = z.output<typeof createHostRequestSchema>;
 
 export const HOST_KEY_TIMEOUT_MS = 10_000;
 const UNCONFIRMED_MESSAGE = "Compare the host key fingerprint with the host's own and confirm it.";

@@ -3,7 +3,7 @@
  * admins, or the member who created one, delete them while no run refers to them.
  */
 import { and, asc, eq, inArray, sql } from "drizzle-orm";
-import type { CreateRecipeRequest, Recipe } from "../../shared/schemas/recipes";
+import type { CreateRecipeRequest, Recipe, RecipeStage } from "../../shared/schemas/recipes";
 import { recordAudit } from "../audit/record-audit";
 import type { Principal } from "../auth/principal";
 import type { Database, DbExecutor } from "../db/client";
@@ -13,11 +13,10 @@ import { AppError, conflict, forbidden, notFound } from "../http/errors";
 import { requireGroupRole, requireRoleFor } from "./access";
 
 type RecipeRow = typeof recipes.$inferSelect;
-type StoredStage = { name: string; codeId: string };
 type CodeLabel = { id: string; name: string; version: string };
 
 function toRecipe(row: RecipeRow, labels: Map<string, CodeLabel>): Recipe {
-  const stages = row.stages as StoredStage[];
+  const stages = row.stages as RecipeStage[];
   return {
     id: row.id,
     groupId: row.groupId,
@@ -34,7 +33,7 @@ function toRecipe(row: RecipeRow, labels: Map<string, CodeLabel>): Recipe {
 }
 
 async function codeLabels(db: DbExecutor, rows: RecipeRow[]): Promise<Map<string, CodeLabel>> {
-  const ids = [...new Set(rows.flatMap((row) => (row.stages as StoredStage[]).map((s) => s.codeId)))];
+  const ids = [...new Set(rows.flatMap((row) => (row.stages as RecipeStage[]).map((s) => s.codeId)))];
   if (ids.length === 0) return new Map();
   const found = await db
     .select({ id: codes.id, name: codes.name, version: codes.version })
@@ -91,7 +90,7 @@ export async function createRecipe(
         missing,
       );
     }
-    const stages: StoredStage[] = input.stages.map((stage) => ({ name: stage.name, codeId: stage.codeId }));
+    const stages: RecipeStage[] = input.stages.map((stage) => ({ name: stage.name, codeId: stage.codeId }));
     const [row] = await tx
       .insert(recipes)
       .values({

@@ -6,6 +6,7 @@ import { randomBytes } from "node:crypto";
 import { and, desc, eq, isNull } from "drizzle-orm";
 import type pg from "pg";
 import type PgBoss from "pg-boss";
+import { coreHoursFromSeconds } from "../../shared/core-hours";
 import type { OnDuplicate, RunSpec, RunSpecRequest, RunSummary } from "../../shared/schemas/runs";
 import { recordAudit } from "../audit/record-audit";
 import type { Principal } from "../auth/principal";
@@ -23,9 +24,6 @@ import { getRunSummary } from "./run-reads.service";
 import { loadStages } from "./run-stages.service";
 
 export type RunDeps = { db: Database; pool: pg.Pool; boss: PgBoss };
-
-const SECONDS_PER_HOUR = 3600;
-const hours = (coreSeconds: number) => Math.round((coreSeconds / SECONDS_PER_HOUR) * 1e4) / 1e4;
 
 /** Remote folder of a run below the host's base folder; only names we generate. */
 export const RUN_DIR_PREFIX = "sf-run-";
@@ -191,11 +189,13 @@ export async function createRun(
       reserveCoreSeconds,
     );
     if (!reserved) {
+      const neededCoreHours = coreHoursFromSeconds(reserveCoreSeconds);
+      const availableCoreHours = coreHoursFromSeconds(Math.max(available, 0));
       throw new AppError(
         422,
         "allocation_exceeded",
-        `This run needs ${hours(reserveCoreSeconds)} core-hours (cores × wall-time limit) but ${allocation.name} has ${hours(Math.max(available, 0))} left.`,
-        { neededCoreHours: hours(reserveCoreSeconds), availableCoreHours: hours(Math.max(available, 0)) },
+        `This run needs ${neededCoreHours} core-hours (cores × wall-time limit) but ${allocation.name} has ${availableCoreHours} left.`,
+        { neededCoreHours, availableCoreHours },
       );
     }
   });

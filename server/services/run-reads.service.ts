@@ -4,6 +4,7 @@
  */
 import { and, desc, eq, gt } from "drizzle-orm";
 import { alias } from "drizzle-orm/pg-core";
+import { coreHoursFromSeconds } from "../../shared/core-hours";
 import {
   type RunDetail,
   type RunProgress,
@@ -18,9 +19,6 @@ import { runArtifacts, runEvents, runLogChunks, runs, runTimings, users } from "
 import type { RunPlan } from "../execution/run-plan";
 import { AppError, notFound } from "../http/errors";
 import { requireGroupRole } from "./access";
-
-const SECONDS_PER_HOUR = 3600;
-const hours = (coreSeconds: number) => Math.round((coreSeconds / SECONDS_PER_HOUR) * 1e4) / 1e4;
 
 const canceller = alias(users, "canceller");
 const summaryColumns = {
@@ -65,8 +63,8 @@ function toSummary(row: {
     fingerprint: r.fingerprint,
     cores: r.cores,
     wallTimeMinutes: r.wallTimeMinutes,
-    reservedCoreHours: hours(r.reservedCoreSeconds),
-    chargedCoreHours: r.chargedCoreSeconds === null ? null : hours(r.chargedCoreSeconds),
+    reservedCoreHours: coreHoursFromSeconds(r.reservedCoreSeconds),
+    chargedCoreHours: r.chargedCoreSeconds === null ? null : coreHoursFromSeconds(r.chargedCoreSeconds),
     schedulerJobId: r.schedulerJobId,
     exitCode: r.exitCode,
     resubmittedFrom: r.resubmittedFrom,
@@ -174,7 +172,7 @@ export async function readArtifact(db: Database, principal: Principal, runId: st
     .select()
     .from(runArtifacts)
     .where(and(eq(runArtifacts.id, artifactId), eq(runArtifacts.runId, run.reusedFrom ?? run.id)));
-  if (!artifact) throw notFound("Artefact");
+  if (!artifact) throw notFound("Collected file");
   return artifact;
 }
 

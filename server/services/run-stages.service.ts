@@ -4,6 +4,7 @@
  */
 import { and, eq, inArray } from "drizzle-orm";
 import { type CodeDefinition, codeDefinitionSchema } from "../../shared/schemas/codes";
+import type { RecipeStage } from "../../shared/schemas/recipes";
 import type { RunSpecRequest } from "../../shared/schemas/runs";
 import type { Database } from "../db/client";
 import { codes, recipes } from "../db/schema";
@@ -24,7 +25,7 @@ export async function loadStages(
     throw new AppError(422, "validation_failed", "The recipe does not exist in this group.", [
       { path: "spec.recipeId", message: "Unknown recipe." },
     ]);
-  const stages = recipe.stages as { name: string; codeId: string }[];
+  const stages = recipe.stages as RecipeStage[];
   const codeRows = await db
     .select()
     .from(codes)

@@ -26,12 +26,17 @@ export const allocationSchema = z.object({
 export type Allocation = z.infer<typeof allocationSchema>;
 export const allocationListSchema = z.object({ allocations: z.array(allocationSchema) });
 
+/** What a ledger entry does to an allocation's balance (see server/services/allocations.service.ts). */
+export const ledgerKindSchema = z.enum(["reserve", "charge", "release"]);
+export type LedgerKind = z.infer<typeof ledgerKindSchema>;
+
 export const ledgerEntrySchema = z.object({
   id: z.number().int(),
   runId: uuidSchema.nullable(),
-  kind: z.enum(["reserve", "charge", "release"]),
+  kind: ledgerKindSchema,
   coreHours: z.number(),
   note: z.string().nullable(),
   at: isoDateTimeSchema,
 });
+export type LedgerEntry = z.infer<typeof ledgerEntrySchema>;
 export const ledgerSchema = z.object({ entries: z.array(ledgerEntrySchema) });

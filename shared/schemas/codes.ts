@@ -83,13 +83,14 @@ export const codeSchema = z.object({
 export type Code = z.infer<typeof codeSchema>;
 export const codeListSchema = z.object({ codes: z.array(codeSchema) });
 
-/** Export/import document: one or more code definitions. */
 /** A group's code definitions as exported (a group may have none). */
 export const codeExportSchema = z.strictObject({
   format: z.literal("sigmaflow-code-definitions"),
   version: z.literal(1),
   codes: z.array(codeDefinitionSchema),
 });
+
+export type CodeExport = z.infer<typeof codeExportSchema>;
 
 /** The same document on import: between 1 and 100 definitions per request. */
 export const codeImportSchema = codeExportSchema.extend({

@@ -2,8 +2,10 @@ import { z } from "zod";
 import { isoDateTimeSchema, uuidSchema } from "./common";
 
 /**
- * Roles inside a group. `collaborator` reads results only, `member` (a researcher) may submit work,
- * `admin` also manages members, invitations and quotas. Site administration is a flag on the user.
+ * Roles inside a group, from least to most access (access checks rank them by this order; the
+ * database enum is built from this list). `collaborator` reads results only, `member` (a researcher)
+ * may submit work, `admin` also manages members, invitations and quotas. Site administration is a flag
+ * on the user.
  */
 export const groupRoleSchema = z.enum(["collaborator", "member", "admin"]);
 export type GroupRole = z.infer<typeof groupRoleSchema>;

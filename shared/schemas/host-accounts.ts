@@ -1,10 +1,14 @@
 import { z } from "zod";
 import { isoDateTimeSchema, uuidSchema } from "./common";
 
+/** A researcher's own account on a host, or the group's (set up by an admin). */
+export const hostAccountKindSchema = z.enum(["personal", "group"]);
+export type HostAccountKind = z.infer<typeof hostAccountKindSchema>;
+
 export const hostAccountSchema = z.object({
   id: uuidSchema,
   hostId: uuidSchema,
-  kind: z.enum(["personal", "group"]),
+  kind: hostAccountKindSchema,
   ownerUserId: uuidSchema.nullable(),
   username: z.string(),
   /** Install this line in ~/.ssh/authorized_keys on the host. */
@@ -21,7 +25,7 @@ export const posixUsernameSchema = z.string().regex(/^[a-z_][a-z0-9_-]{0,31}$/, 
 });
 
 export const createHostAccountRequestSchema = z.strictObject({
-  kind: z.enum(["personal", "group"]),
+  kind: hostAccountKindSchema,
   username: posixUsernameSchema,
   /** Omit to let Sigmaflow generate an ed25519 key pair; or paste an unencrypted OpenSSH private key. */
   privateKey: z.string().max(20_000).optional(),

@@ -3,6 +3,8 @@ import { isoDateTimeSchema, uuidSchema } from "./common";
 import { identifierSchema } from "./names";
 
 export const recipeStageSchema = z.strictObject({ name: identifierSchema, codeId: uuidSchema });
+/** One stage as a recipe row stores it. */
+export type RecipeStage = z.infer<typeof recipeStageSchema>;
 
 export const createRecipeRequestSchema = z.strictObject({
   name: identifierSchema,

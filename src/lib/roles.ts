@@ -1,6 +1,7 @@
-import type { GroupRole } from "@shared/schemas";
+import { type GroupRole, groupRoleSchema } from "@shared/schemas";
 
-export const GROUP_ROLES: readonly GroupRole[] = ["collaborator", "member", "admin"];
+/** From least to most access, as the schema lists them. */
+export const GROUP_ROLES: readonly GroupRole[] = groupRoleSchema.options;
 
 export const ROLE_LABELS: Record<GroupRole, string> = {
   collaborator: "Collaborator",

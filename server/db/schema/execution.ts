@@ -22,26 +22,20 @@ import {
   uuid,
   varchar,
 } from "drizzle-orm/pg-core";
+import { ledgerKindSchema } from "../../../shared/schemas/allocations";
+import { hostStatusSchema, schedulerKindSchema } from "../../../shared/schemas/hosts";
+import { runStateSchema } from "../../../shared/schemas/runs";
+import { enumValues } from "./enum-values";
 import { groups, users } from "./identity";
 
 const bytea = customType<{ data: Buffer }>({ dataType: () => "bytea" });
 const createdAt = () => timestamp("created_at", { withTimezone: true }).notNull().defaultNow();
 const coreSeconds = (name: string) => bigint(name, { mode: "number" });
 
-export const schedulerKind = pgEnum("scheduler_kind", ["direct", "slurm"]);
-export const hostStatus = pgEnum("host_status", ["unverified", "ok", "unreachable", "key_mismatch"]);
-export const runState = pgEnum("run_state", [
-  "queued",
-  "staging",
-  "submitted",
-  "running",
-  "collecting",
-  "done",
-  "failed",
-  "cancelled",
-  "held",
-]);
-export const ledgerKind = pgEnum("ledger_kind", ["reserve", "charge", "release"]);
+export const schedulerKind = pgEnum("scheduler_kind", enumValues(schedulerKindSchema));
+export const hostStatus = pgEnum("host_status", enumValues(hostStatusSchema));
+export const runState = pgEnum("run_state", enumValues(runStateSchema));
+export const ledgerKind = pgEnum("ledger_kind", enumValues(ledgerKindSchema));
 
 export const hosts = pgTable(
   "hosts",

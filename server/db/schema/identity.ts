@@ -18,10 +18,12 @@ import {
   uuid,
   varchar,
 } from "drizzle-orm/pg-core";
+import { groupRoleSchema } from "../../../shared/schemas/groups";
+import { enumValues } from "./enum-values";
 
 const createdAt = () => timestamp("created_at", { withTimezone: true }).notNull().defaultNow();
 
-export const groupRole = pgEnum("group_role", ["collaborator", "member", "admin"]);
+export const groupRole = pgEnum("group_role", enumValues(groupRoleSchema));
 
 export const users = pgTable(
   "users",

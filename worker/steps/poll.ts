@@ -44,6 +44,10 @@ async function storeLog(
     );
     if (chunk.text.length === 0 && chunk.nextOffsetBytes === offset) break;
     const parsed = parseLogLines(chunk.text, rules, progress?.stage ?? null);
+    // Lines the output rules skipped (too long, over the time budget, a rule that no longer compiles):
+    // the log itself is stored whole, so only timings and progress from those lines are missing.
+    if (parsed.notes.length > 0)
+      ctx.log.warn({ runId: run.id, notes: parsed.notes }, "output rules skipped lines");
     progress = advanceProgress(progress, parsed);
     seq += 1;
     const chunkOffset = offset;

@@ -11,6 +11,7 @@
 import { createHash } from "node:crypto";
 import { Ajv2020, type ErrorObject, type Options, type ValidateFunction } from "ajv/dist/2020.js";
 import addFormatsModule from "ajv-formats";
+import { canonicalJson } from "../../shared/canonical-json";
 import { findExcessDepth } from "../../shared/json-depth";
 import type { CodeDefinition } from "../../shared/schemas/codes";
 import { compileUserPattern, PatternError } from "./user-patterns";
@@ -39,18 +40,7 @@ export class ParameterSchemaError extends Error {
 const CACHE_LIMIT = 500;
 const validators = new Map<string, ValidateFunction>();
 
-/** JSON with object keys sorted, so two spellings of one schema share a cache entry. */
-function canonicalJson(value: unknown): string {
-  if (Array.isArray(value)) return `[${value.map(canonicalJson).join(",")}]`;
-  if (value && typeof value === "object") {
-    const entries = Object.entries(value as Record<string, unknown>)
-      .filter(([, item]) => item !== undefined)
-      .sort(([a], [b]) => (a < b ? -1 : a > b ? 1 : 0));
-    return `{${entries.map(([key, item]) => `${JSON.stringify(key)}:${canonicalJson(item)}`).join(",")}}`;
-  }
-  return JSON.stringify(value);
-}
-
+/** Hash of the canonical schema text, so two spellings of one schema share a cache entry. */
 export function schemaHash(schema: unknown): string {
   return createHash("sha256").update(canonicalJson(schema)).digest("hex");
 }

@@ -10,6 +10,7 @@
  *   <run dir>/job.log                      stdout and stderr of the whole job
  */
 import { createHash } from "node:crypto";
+import { canonicalJson } from "../../shared/canonical-json";
 import type { CodeDefinition } from "../../shared/schemas/codes";
 import { renderCodeFiles } from "./templates/render";
 
@@ -123,17 +124,6 @@ export function buildRunPlan(runId: string, runName: string, inputs: StageInput[
   ].join("\n");
   files.push(planFile(JOB_SCRIPT, script));
   return { scriptName: JOB_SCRIPT, logName: JOB_LOG, stages, files };
-}
-
-function canonicalJson(value: unknown): string {
-  if (Array.isArray(value)) return `[${value.map(canonicalJson).join(",")}]`;
-  if (value && typeof value === "object") {
-    const entries = Object.entries(value as Record<string, unknown>)
-      .filter(([, v]) => v !== undefined)
-      .sort(([a], [b]) => (a < b ? -1 : a > b ? 1 : 0));
-    return `{${entries.map(([k, v]) => `${JSON.stringify(k)}:${canonicalJson(v)}`).join(",")}}`;
-  }
-  return JSON.stringify(value);
 }
 
 /**

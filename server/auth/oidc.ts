@@ -90,11 +90,3 @@ export function configureSignIn(
   );
   return { passport, ready };
 }
-
-/** Only same-site relative paths may be a destination after sign-in (no open redirects). */
-export function safeReturnTo(value: unknown): string {
-  if (typeof value !== "string" || !value.startsWith("/") || value.startsWith("//") || value.includes("\\")) {
-    return "/";
-  }
-  return value.slice(0, 500);
-}

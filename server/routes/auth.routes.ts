@@ -1,8 +1,9 @@
 import { Router } from "express";
 import { rateLimit } from "express-rate-limit";
+import { safeReturnTo } from "../../shared/return-to";
 import { meSchema } from "../../shared/schemas/auth";
 import { csrfTokenFor } from "../auth/csrf";
-import { OIDC_STRATEGY, type SignIn, safeReturnTo } from "../auth/oidc";
+import { OIDC_STRATEGY, type SignIn } from "../auth/oidc";
 import { requirePrincipal } from "../auth/principal";
 import { SESSION_COOKIE } from "../auth/session";
 import { sendSignInFailure, sendSignInRefusal } from "../auth/sign-in-failure";

@@ -1,3 +1,4 @@
+import { safeReturnTo } from "@shared/return-to";
 import type { Me } from "@shared/schemas";
 import type { QueryClient } from "@tanstack/react-query";
 import { data, type LoaderFunctionArgs, redirect } from "react-router-dom";
@@ -11,7 +12,7 @@ import { hasStatus } from "@/lib/api-error";
 import { readLastGroupId } from "@/lib/last-group";
 import { paths } from "@/lib/paths";
 import { canManageGroup } from "@/lib/permissions";
-import { safeReturnTo, signInPagePath } from "@/lib/return-to";
+import { signInPagePath } from "@/lib/return-to";
 
 function requestPath(request: Request): string {
   const url = new URL(request.url);

@@ -2,19 +2,7 @@
  * HTML helpers for the Halvorsen Institute sign-in pages. Every page is self-contained (inline CSS,
  * no scripts, no remote assets) so the development identity provider works offline.
  */
-
-const HTML_ENTITIES: Record<string, string> = {
-  "&": "&amp;",
-  "<": "&lt;",
-  ">": "&gt;",
-  '"': "&quot;",
-  "'": "&#39;",
-};
-
-/** Escapes text for element content and for quoted attribute values alike. */
-export function escapeHtml(value: string): string {
-  return value.replace(/[&<>"']/g, (ch) => HTML_ENTITIES[ch] ?? ch);
-}
+import { escapeHtml } from "../../shared/html";
 
 /**
  * Inline styles only; no script, no remote loads. Forms may post to ourselves; no form-action limit,

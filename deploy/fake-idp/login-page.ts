@@ -1,6 +1,8 @@
 /** The Halvorsen Institute sign-in form, with the demo accounts listed for people trying Sigmaflow. */
+
+import { escapeHtml } from "../../shared/html";
 import { DEMO_ACCOUNTS, DEMO_PASSWORD } from "../demo/accounts";
-import { escapeHtml, renderPage } from "./html";
+import { renderPage } from "./html";
 
 export type LoginPageInput = {
   /** Interaction id; the form posts back to /interaction/<uid>. */

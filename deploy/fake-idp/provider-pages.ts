@@ -3,7 +3,8 @@
  * carry the library's own look. Same frame as the sign-in page.
  */
 import type { Configuration, KoaContextWithOIDC } from "oidc-provider";
-import { escapeHtml, PAGE_CSP, renderNoticePage, renderPage } from "./html";
+import { escapeHtml } from "../../shared/html";
+import { PAGE_CSP, renderNoticePage, renderPage } from "./html";
 
 function sendHtml(ctx: KoaContextWithOIDC, html: string): void {
   ctx.type = "html";

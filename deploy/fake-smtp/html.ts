@@ -1,17 +1,5 @@
-/** HTML helpers for the development inbox: escaping, link detection and the shared page frame. */
-
-const HTML_ENTITIES: Record<string, string> = {
-  "&": "&amp;",
-  "<": "&lt;",
-  ">": "&gt;",
-  '"': "&quot;",
-  "'": "&#39;",
-};
-
-/** Escapes text for element content and for quoted attribute values alike. */
-export function escapeHtml(value: string): string {
-  return value.replace(/[&<>"']/g, (ch) => HTML_ENTITIES[ch] ?? ch);
-}
+/** HTML helpers for the development inbox: link detection and the shared page frame. */
+import { escapeHtml } from "../../shared/html";
 
 const URL_PATTERN = /https?:\/\/[^\s<>"']+/g;
 /** Sentence punctuation right after a URL belongs to the sentence, not the URL. */

@@ -1,5 +1,6 @@
 /** The development inbox's two pages: the message list and one message. */
-import { escapeHtml, formatReceivedAt, linkifyText, renderPage } from "./html";
+import { escapeHtml } from "../../shared/html";
+import { formatReceivedAt, linkifyText, renderPage } from "./html";
 import type { StoredMessage } from "./message-store";
 
 function messageHref(message: StoredMessage): string {

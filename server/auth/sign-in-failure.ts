@@ -3,6 +3,7 @@
  * (provider error codes, the refused step, the accounts involved) but never tokens, codes or secrets.
  */
 import type { Request, Response } from "express";
+import { escapeHtml } from "../../shared/html";
 import { AppError, errorBody } from "../http/errors";
 import { EmailInUseError } from "../services/users.service";
 import { OidcDiscoveryError } from "./oidc-discovery";
@@ -72,15 +73,6 @@ export function describeSignInError(error: unknown): SignInFailure {
     return { status: 502, code: "sign_in_failed", message: PROVIDER_FAILED, cause };
   }
   return { status: 500, code: "internal", message: SERVER_FAILED, cause };
-}
-
-function escapeHtml(value: string): string {
-  return value
-    .replaceAll("&", "&amp;")
-    .replaceAll("<", "&lt;")
-    .replaceAll(">", "&gt;")
-    .replaceAll('"', "&quot;")
-    .replaceAll("'", "&#39;");
 }
 
 function failurePage(message: string): string {

@@ -1,3 +1,4 @@
+import { escapeHtml } from "../../shared/html";
 import type { GroupRole } from "../../shared/schemas/groups";
 import type { OutgoingMail } from "./mailer";
 
@@ -6,10 +7,6 @@ const ROLE_WORDS: Record<GroupRole, string> = {
   member: "a researcher (submit and manage runs)",
   admin: "an admin (manage members, hosts and allocations)",
 };
-
-function escapeHtml(value: string): string {
-  return value.replace(/[&<>"']/g, (c) => `&#${c.charCodeAt(0)};`);
-}
 
 export function invitationMail(input: {
   to: string;

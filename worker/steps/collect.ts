@@ -7,6 +7,8 @@ import { createHash } from "node:crypto";
 import { and, eq } from "drizzle-orm";
 import { ledgerEntries, runArtifacts, runs, users } from "../../server/db/schema";
 import { transitionRun } from "../../server/execution/run-transitions";
+import { coreHoursFromSeconds } from "../../shared/core-hours";
+import { escapeHtml } from "../../shared/html";
 import type { RunState } from "../../shared/schemas/runs";
 import type { WorkerContext } from "../context";
 import { guardStep } from "../failures";
@@ -107,8 +109,8 @@ export function wallTimeLimitMessage(wallTimeMinutes: number): string {
   return `Stopped at its wall-time limit of ${wallTimeMinutes} min`;
 }
 
-const SECONDS_PER_HOUR = 3600;
-const coreHours = (coreSeconds: number) => (coreSeconds / SECONDS_PER_HOUR).toFixed(3);
+/** Core-hours in a sentence: three decimals. */
+const coreHours = (coreSeconds: number) => coreHoursFromSeconds(coreSeconds).toFixed(3);
 
 /**
  * What a run is charged. The reservation is the run's worst case (cores × wall-time limit), the amount
@@ -158,7 +160,8 @@ async function mailSubmitter(
       to: row.email,
       subject: `Sigmaflow: run "${row.name}" ${state}`,
       text: `${message}.\n\n${link}\n\nComputed data are model results: validate them before use in design work.`,
-      html: `<p>${message}.</p><p><a href="${link}">Open the run</a></p>`,
+      // The message can quote the scheduler or the host (an exit reason, a path): text, never markup.
+      html: `<p>${escapeHtml(message)}.</p><p><a href="${escapeHtml(link)}">Open the run</a></p>`,
     })
     .catch((error: unknown) => ctx.log.warn({ err: error, runId }, "could not mail run notice"));
 }

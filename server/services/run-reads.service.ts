@@ -23,8 +23,8 @@ import { requireGroupRole } from "./access";
 const canceller = alias(users, "canceller");
 const summaryColumns = {
   run: runs,
-  submittedBy: users.displayName,
-  cancelRequestedBy: canceller.displayName,
+  submittedByName: users.displayName,
+  cancelRequestedByName: canceller.displayName,
 };
 
 /** Runs with the names of who submitted them and who asked to cancel them. */
@@ -48,8 +48,8 @@ function progressOf(run: typeof runs.$inferSelect): RunProgress | null {
 
 function toSummary(row: {
   run: typeof runs.$inferSelect;
-  submittedBy: string | null;
-  cancelRequestedBy: string | null;
+  submittedByName: string | null;
+  cancelRequestedByName: string | null;
 }): RunSummary {
   const r = row.run;
   return {
@@ -69,9 +69,10 @@ function toSummary(row: {
     exitCode: r.exitCode,
     resubmittedFrom: r.resubmittedFrom,
     reusedFrom: r.reusedFrom,
-    submittedBy: row.submittedBy,
+    submittedById: r.submittedBy,
+    submittedByName: row.submittedByName,
     cancelRequested: r.cancelRequestedAt !== null,
-    cancelRequestedBy: r.cancelRequestedAt === null ? null : row.cancelRequestedBy,
+    cancelRequestedByName: r.cancelRequestedAt === null ? null : row.cancelRequestedByName,
     progress: progressOf(r),
     createdAt: r.createdAt.toISOString(),
     startedAt: r.startedAt?.toISOString() ?? null,
@@ -161,7 +162,7 @@ export async function getRunDetail(db: Database, principal: Principal, runId: st
     })),
     artifacts,
     timings: timings
-      .map((t) => ({ stage: t.stage, symmetry: t.symmetry, seconds: t.elapsedMs / 1000 }))
+      .map((t) => ({ stage: t.stage, symmetry: t.symmetry, durationSeconds: t.elapsedMs / 1000 }))
       .sort((a, b) => byStage(a.stage) - byStage(b.stage)),
   };
 }

@@ -97,7 +97,12 @@ export const runArtifactSchema = z.object({
   sha256: z.string(),
 });
 
-export const runTimingSchema = z.object({ stage: z.string(), symmetry: z.string(), seconds: z.number() });
+/** Wall time one symmetry of one stage took, as the code's output rules read it from the log. */
+export const runTimingSchema = z.object({
+  stage: z.string(),
+  symmetry: z.string(),
+  durationSeconds: z.number(),
+});
 
 /**
  * How far a run's log has got, as the poller stores it: the stage of the last stage marker, and the
@@ -136,10 +141,13 @@ export const runSummarySchema = z.object({
   resubmittedFrom: uuidSchema.nullable(),
   /** The run whose results (collected files, timings, log) this one reuses instead of running. */
   reusedFrom: uuidSchema.nullable(),
-  submittedBy: z.string().nullable(),
+  /** Who submitted the run; null once their account is deleted. */
+  submittedById: uuidSchema.nullable(),
+  /** Display name of who submitted the run. */
+  submittedByName: z.string().nullable(),
   cancelRequested: z.boolean(),
   /** Display name of the person who asked to cancel the run. */
-  cancelRequestedBy: z.string().nullable(),
+  cancelRequestedByName: z.string().nullable(),
   /** Null until the log reaches the first stage. */
   progress: runProgressSchema.nullable(),
   createdAt: isoDateTimeSchema,

@@ -108,10 +108,10 @@ describe("a run whose symmetries take seconds each", () => {
     // Each code prints the time it spent per symmetry; the table holds exactly those numbers, stage by
     // stage in the recipe's order.
     expect(run.timings).toEqual([
-      { stage: "orbitals", symmetry: "Ag", seconds: SECONDS_PER_SYMMETRY },
-      { stage: "orbitals", symmetry: "B1u", seconds: SECONDS_PER_SYMMETRY },
-      { stage: "inner", symmetry: "B2u", seconds: SECONDS_PER_SYMMETRY + 0.5 },
-      { stage: "inner", symmetry: "B3g", seconds: SECONDS_PER_SYMMETRY + 0.5 },
+      { stage: "orbitals", symmetry: "Ag", durationSeconds: SECONDS_PER_SYMMETRY },
+      { stage: "orbitals", symmetry: "B1u", durationSeconds: SECONDS_PER_SYMMETRY },
+      { stage: "inner", symmetry: "B2u", durationSeconds: SECONDS_PER_SYMMETRY + 0.5 },
+      { stage: "inner", symmetry: "B3g", durationSeconds: SECONDS_PER_SYMMETRY + 0.5 },
     ]);
     // The last progress line came from the last stage: " 100% complete".
     expect(run.progress).toEqual({ stage: "inner", stageIndex: 2, stageCount: 2, percent: 100 });

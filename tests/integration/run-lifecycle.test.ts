@@ -86,7 +86,7 @@ describe("a two-stage run on the development host", () => {
       "done",
     ]);
     expect(run.timings.map((t: { symmetry: string }) => t.symmetry).sort()).toEqual(["A1", "A2", "B1", "B2"]);
-    expect(run.timings[0].seconds).toBeCloseTo(0.25, 6);
+    expect(run.timings[0].durationSeconds).toBeCloseTo(0.25, 6);
     const names = run.artifacts.map((a: { stage: string; name: string }) => `${a.stage}/${a.name}`).sort();
     expect(names).toEqual(["prepare/orbitals.dat", "scatter/kmatrix.dat"]);
     const kmatrix = run.artifacts.find((a: { name: string }) => a.name === "kmatrix.dat");
@@ -185,7 +185,7 @@ describe("cancel, resubmit and reuse", () => {
     const run = await waitForState(sf, created.body.id, ["cancelled", "failed", "done"], 20_000);
     expect(run.state).toBe("cancelled");
     // Regression: the history said "worker" for the cancel and never who asked for it.
-    expect(run.cancelRequestedBy).toBe(sf.researcher.displayName);
+    expect(run.cancelRequestedByName).toBe(sf.researcher.displayName);
     expect(run.events.at(-1)).toMatchObject({
       toState: "cancelled",
       actor: "user",

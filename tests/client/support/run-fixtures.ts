@@ -1,5 +1,5 @@
 import type { RunDetail } from "@shared/schemas";
-import { KESTREL_ID } from "./fixtures";
+import { KESTREL_ID, USER_IDS } from "./fixtures";
 
 export const RUN_IDS = {
   running: "5a1e0000-0000-4000-8000-000000000001",
@@ -22,9 +22,10 @@ const base = {
   exitCode: null as number | null,
   resubmittedFrom: null as string | null,
   reusedFrom: null as string | null,
-  submittedBy: "Tomás Brandt",
+  submittedById: USER_IDS.tomas as string | null,
+  submittedByName: "Tomás Brandt" as string | null,
   cancelRequested: false,
-  cancelRequestedBy: null as string | null,
+  cancelRequestedByName: null as string | null,
   progress: null as RunDetail["progress"],
   createdAt: "2026-11-30T10:00:00.000Z",
   startedAt: null as string | null,
@@ -75,7 +76,7 @@ export function kestrelRuns(): RunDetail[] {
           message: "Started on the host",
         },
       ],
-      timings: [{ stage: "inner", symmetry: "A'", seconds: 41.5 }],
+      timings: [{ stage: "inner", symmetry: "A'", durationSeconds: 41.5 }],
     },
     {
       ...base,
@@ -153,7 +154,7 @@ export function kestrelRuns(): RunDetail[] {
       state: "cancelled",
       stateMessage: "Cancelled; the scheduler confirmed the job ended",
       cancelRequested: true,
-      cancelRequestedBy: "Noor Vasquez",
+      cancelRequestedByName: "Noor Vasquez",
       finishedAt: "2026-11-30T12:10:00.000Z",
       spec: { ...base.spec, name: "HNCO cc-pVTZ inner region" },
       events: [

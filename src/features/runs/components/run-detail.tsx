@@ -60,9 +60,9 @@ export function RunDetailView({ run }: { run: RunDetail }) {
           {run.stateMessage && !run.reusedFrom ? (
             <p className="text-ink-700 sm:col-span-4">{run.stateMessage}</p>
           ) : null}
-          {run.cancelRequestedBy && !isFinished(run) ? (
+          {run.cancelRequestedByName && !isFinished(run) ? (
             <p className="text-ink-700 sm:col-span-4">
-              {run.cancelRequestedBy} asked to cancel this run; it stops when the scheduler confirms.
+              {run.cancelRequestedByName} asked to cancel this run; it stops when the scheduler confirms.
             </p>
           ) : null}
         </CardBody>
@@ -108,7 +108,7 @@ export function RunDetailView({ run }: { run: RunDetail }) {
                 <TR key={`${timing.stage}-${timing.symmetry}`}>
                   <TD>{timing.stage}</TD>
                   <TD className="font-mono">{timing.symmetry}</TD>
-                  <TD className="font-mono">{timing.seconds.toFixed(2)}</TD>
+                  <TD className="font-mono">{timing.durationSeconds.toFixed(2)}</TD>
                 </TR>
               ))}
             </TBody>

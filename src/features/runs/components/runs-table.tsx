@@ -52,7 +52,7 @@ export function RunsTable({
               <Link to={paths.run(groupId, run.id)} className="font-medium text-flux-800 hover:underline">
                 {run.name}
               </Link>
-              <div className="text-xs text-ink-500">{run.submittedBy ?? "—"}</div>
+              <div className="text-xs text-ink-500">{run.submittedByName ?? "—"}</div>
             </TD>
             <TD>
               <RunStateBadge state={run.state} />

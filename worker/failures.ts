@@ -10,7 +10,8 @@ import { recordAudit } from "../server/audit/record-audit";
 import { hostAccounts, hosts, ledgerEntries, memberships, runs, users } from "../server/db/schema";
 import { transitionRun } from "../server/execution/run-transitions";
 import { RUN_STEP_QUEUES, type RunStepName } from "../server/queue/queues";
-import type { RunState } from "../shared/schemas/runs";
+import { escapeHtml } from "../shared/html";
+import { type RunState, UNFINISHED_RUN_STATES } from "../shared/schemas/runs";
 import type { WorkerContext } from "./context";
 import type { HostRow, RunRow } from "./run-runtime";
 import {
@@ -33,9 +34,7 @@ export function backoffMs(attempt: number, baseMs: number, maxMs: number, random
   return Math.round(ceiling / 2 + random() * (ceiling / 2));
 }
 
-/** Unfinished states; a step's copy of the run may be older than the row, so both helpers re-read it. */
-const UNFINISHED: RunState[] = ["queued", "staging", "submitted", "running", "collecting", "held"];
-
+/** A step's copy of the run may be older than the row, so both helpers re-read its state. */
 async function currentState(
   tx: Parameters<Parameters<WorkerContext["db"]["transaction"]>[0]>[0],
   runId: string,
@@ -56,7 +55,7 @@ export async function holdRun(
 ): Promise<void> {
   await ctx.db.transaction(async (tx) => {
     const now = await currentState(tx, run.id);
-    if (!now || now.state === "held" || !UNFINISHED.includes(now.state)) return;
+    if (!now || now.state === "held" || !UNFINISHED_RUN_STATES.includes(now.state)) return;
     await transitionRun(tx, run.id, [now.state], "held", {
       actor: worker,
       message,
@@ -68,7 +67,7 @@ export async function holdRun(
 export async function failRun(ctx: WorkerContext, run: RunRow, message: string): Promise<void> {
   await ctx.db.transaction(async (tx) => {
     const now = await currentState(tx, run.id);
-    if (!now || !UNFINISHED.includes(now.state)) return;
+    if (!now || !UNFINISHED_RUN_STATES.includes(now.state)) return;
     const changed = await transitionRun(tx, run.id, [now.state], "failed", {
       actor: worker,
       message,
@@ -117,7 +116,7 @@ async function tellAdminsAboutHostKey(
         to: admin.email,
         subject: `Sigmaflow: host key of ${host.name} changed`,
         text: message,
-        html: `<p>${message}</p>`,
+        html: `<p>${escapeHtml(message)}</p>`,
       })
       .catch((mailError: unknown) => ctx.log.warn({ err: mailError }, "could not mail host-key warning"));
   }

@@ -14,6 +14,10 @@ export const runStateSchema = z.enum([
 ]);
 export type RunState = z.infer<typeof runStateSchema>;
 export const FINAL_RUN_STATES: readonly RunState[] = ["done", "failed", "cancelled"];
+/** Every other state: the run still has work ahead of it (a held run too). */
+export const UNFINISHED_RUN_STATES: readonly RunState[] = runStateSchema.options.filter(
+  (state) => !FINAL_RUN_STATES.includes(state),
+);
 
 export const runResourcesSchema = z.strictObject({
   cores: z.number().int().min(1).max(4096),

@@ -57,7 +57,7 @@ export async function collectRun(ctx: WorkerContext, runId: string): Promise<voi
             : run.exitCode === null
               ? "The scheduler reports the job failed; see the log"
               : run.exitCode !== 0
-                ? `The job ended with exit code ${run.exitCode}; see the log`
+                ? `The scheduler's job ended with exit code ${run.exitCode}; see the log`
                 : `Declared results missing: ${missing.join(", ")}`;
     const message = charge.overCoreSeconds > 0 ? `${outcome}. ${charge.notice}` : outcome;
     const chargedCoreSeconds = charge.chargedCoreSeconds;

@@ -1,5 +1,5 @@
 /**
- * Helpers for the execution-catalogue tests: JSON calls with an API token, a development cluster host
+ * Helpers for the host, code, recipe and allocation tests: JSON calls with an API token, a development cluster host
  * (deploy/fake-cluster, a real SSH server on loopback) in a throwaway folder, and rows a run would leave
  * behind (for the "cannot delete while runs refer to it" rules).
  */

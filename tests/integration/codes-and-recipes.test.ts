@@ -4,7 +4,7 @@
  */
 import { randomBytes } from "node:crypto";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { callApi, insertRun, startTestCluster, type TestCluster } from "./support/catalogue-app";
+import { callApi, insertRun, startTestCluster, type TestCluster } from "./support/host-test-app";
 import { codeDefinition } from "./support/code-fixtures";
 import { addMember, createGroup, createUser, tokenFor } from "./support/people";
 import { startTestApp } from "./support/test-app";
@@ -28,7 +28,7 @@ async function counts() {
 }
 
 beforeAll(async () => {
-  database = await createTestDatabase("catalogue_codes");
+  database = await createTestDatabase("codes_recipes");
   app = await startTestApp(database);
   cluster = await startTestCluster();
   const db = database.db;

@@ -13,7 +13,7 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { loadAccountCredentials } from "../../server/credentials/account-credentials";
 import { hostAccounts, hosts } from "../../server/db/schema";
 import { chooseAccount } from "../../server/services/host-accounts.service";
-import { callApi, insertRun, startTestCluster, type TestCluster } from "./support/catalogue-app";
+import { callApi, insertRun, startTestCluster, type TestCluster } from "./support/host-test-app";
 import { freePort } from "./support/http-browser";
 import { addMember, createGroup, createUser, tokenFor } from "./support/people";
 import { startTestApp } from "./support/test-app";
@@ -73,7 +73,7 @@ function logIn(port: number, credentials: { username: string; privateKey: string
 }
 
 beforeAll(async () => {
-  database = await createTestDatabase("catalogue_hosts");
+  database = await createTestDatabase("hosts");
   app = await startTestApp(database);
   cluster = await startTestCluster();
   const db = database.db;

@@ -1,6 +1,6 @@
 /**
- * Every execution-catalogue route × every kind of caller gets exactly the status it should (the same six
- * callers as authorization-matrix.test.ts). Rule being checked (Sigmaflow's access policy): deny by
+ * Every host, account, code, recipe, allocation and run route × every kind of caller gets exactly the
+ * status it should (the same six callers as authorization-matrix.test.ts). Rule being checked (Sigmaflow's access policy): deny by
  * default; a group one does not belong to is a 404, also when reached through a host, code, recipe or
  * allocation id; a role too low is a 403; site admins may do everything.
  */
@@ -15,7 +15,7 @@ import {
   groupWrite,
   type MatrixCase,
 } from "./support/authorization-matrix";
-import { startTestCluster, type TestCluster } from "./support/catalogue-app";
+import { startTestCluster, type TestCluster } from "./support/host-test-app";
 import { codeDefinition } from "./support/code-fixtures";
 import { addMember, createGroup, createUser, tokenFor } from "./support/people";
 import { startTestApp } from "./support/test-app";
@@ -339,4 +339,4 @@ afterAll(async () => {
   await database?.drop();
 });
 
-describeMatrix("authorization matrix: execution catalogue", CASES, () => ({ baseUrl: app.baseUrl, tokens }));
+describeMatrix("authorization matrix: hosts, accounts, codes, recipes, allocations and runs", CASES, () => ({ baseUrl: app.baseUrl, tokens }));

@@ -7,7 +7,7 @@
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { ledgerEntries } from "../../server/db/schema";
 import { activeAllocation, reserveAgainstAllocation } from "../../server/services/allocations.service";
-import { callApi } from "./support/catalogue-app";
+import { callApi } from "./support/host-test-app";
 import { addMember, createGroup, createUser, tokenFor } from "./support/people";
 import { startTestApp } from "./support/test-app";
 import { createTestDatabase, type TestDatabase } from "./support/test-database";
@@ -25,7 +25,7 @@ const allocationCount = async () =>
   (await database.pool.query("select count(*)::int as n from allocations")).rows[0].n as number;
 
 beforeAll(async () => {
-  database = await createTestDatabase("catalogue_alloc");
+  database = await createTestDatabase("allocations");
   app = await startTestApp(database);
   const db = database.db;
   groupId = (await createGroup(db, "alloc")).id;

@@ -15,8 +15,8 @@ import {
   groupWrite,
   type MatrixCase,
 } from "./support/authorization-matrix";
-import { startTestCluster, type TestCluster } from "./support/host-test-app";
 import { codeDefinition } from "./support/code-fixtures";
+import { startTestCluster, type TestCluster } from "./support/host-test-app";
 import { addMember, createGroup, createUser, tokenFor } from "./support/people";
 import { startTestApp } from "./support/test-app";
 import { createTestDatabase, type TestDatabase } from "./support/test-database";
@@ -339,4 +339,7 @@ afterAll(async () => {
   await database?.drop();
 });
 
-describeMatrix("authorization matrix: hosts, accounts, codes, recipes, allocations and runs", CASES, () => ({ baseUrl: app.baseUrl, tokens }));
+describeMatrix("authorization matrix: hosts, accounts, codes, recipes, allocations and runs", CASES, () => ({
+  baseUrl: app.baseUrl,
+  tokens,
+}));

@@ -4,8 +4,8 @@
  */
 import { randomBytes } from "node:crypto";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { callApi, insertRun, startTestCluster, type TestCluster } from "./support/host-test-app";
 import { codeDefinition } from "./support/code-fixtures";
+import { callApi, insertRun, startTestCluster, type TestCluster } from "./support/host-test-app";
 import { addMember, createGroup, createUser, tokenFor } from "./support/people";
 import { startTestApp } from "./support/test-app";
 import { createTestDatabase, type TestDatabase } from "./support/test-database";

@@ -10,18 +10,18 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import {
   type Api,
   apiClient,
+  type EngineScenario,
   type FakeHost,
-  registerHost,
   registerShellRecipe,
   runSpec,
   type Sigmaflow,
-  startFakeHost,
-  startSigmaflow,
+  startEngineScenario,
   waitForState,
 } from "./support/lifecycle-harness";
 import { addMember, createUser, tokenFor } from "./support/people";
-import { createTestDatabase, type TestDatabase } from "./support/test-database";
+import type { TestDatabase } from "./support/test-database";
 
+let scenario: EngineScenario;
 let database: TestDatabase;
 let sf: Sigmaflow;
 let host: FakeHost;
@@ -30,14 +30,8 @@ let recipeId: string;
 let member: Api;
 
 beforeAll(async () => {
-  database = await createTestDatabase("host_accounts");
-  sf = await startSigmaflow(database);
-  host = await startFakeHost();
-  hostId = await registerHost(
-    sf,
-    { name: "dev-host", address: "127.0.0.1", port: host.port, scheduler: "direct", remoteBaseDir: "runs" },
-    { username: "sigmaflow", authorize: host.authorize },
-  );
+  scenario = await startEngineScenario("host_accounts");
+  ({ database, sf, host, hostId } = scenario);
   recipeId = await registerShellRecipe(sf);
   const user = await createUser(database.db, "member");
   await addMember(database.db, user.id, sf.groupId, "member");
@@ -45,9 +39,7 @@ beforeAll(async () => {
 }, 60_000);
 
 afterAll(async () => {
-  await sf?.close();
-  await host?.stop();
-  await database?.drop();
+  await scenario?.close();
 });
 
 async function submit(api: Api, label: string, sleepSeconds = 0): Promise<string> {

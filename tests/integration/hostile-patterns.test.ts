@@ -9,17 +9,15 @@
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { type ShellCodeOverrides, shellCode } from "./support/code-fixtures";
 import {
-  type FakeHost,
-  registerHost,
+  type EngineScenario,
   registerRecipe,
   runSpec,
   type Sigmaflow,
-  startFakeHost,
-  startSigmaflow,
+  startEngineScenario,
   waitForState,
 } from "./support/lifecycle-harness";
 import { tokenFor } from "./support/people";
-import { createTestDatabase, type TestDatabase } from "./support/test-database";
+import type { TestDatabase } from "./support/test-database";
 
 /** Longest gap between two health answers a person would not notice as the service hanging. */
 const HEALTH_GAP_LIMIT_MS = 200;
@@ -32,26 +30,18 @@ const CATASTROPHIC = "^(a+)+$";
 /** A backreference: fine for JavaScript's RegExp, impossible in linear time, so not RE2 syntax. */
 const BACKREFERENCE = "^(a+)\\1$";
 
+let scenario: EngineScenario;
 let database: TestDatabase;
 let sf: Sigmaflow;
-let host: FakeHost;
 let hostId: string;
 
 beforeAll(async () => {
-  database = await createTestDatabase("hostile_patterns");
-  sf = await startSigmaflow(database);
-  host = await startFakeHost();
-  hostId = await registerHost(
-    sf,
-    { name: "dev-host", address: "127.0.0.1", port: host.port, scheduler: "direct", remoteBaseDir: "runs" },
-    { username: "sigmaflow", authorize: host.authorize },
-  );
+  scenario = await startEngineScenario("hostile_patterns");
+  ({ database, sf, hostId } = scenario);
 }, 60_000);
 
 afterAll(async () => {
-  await sf?.close();
-  await host?.stop();
-  await database?.drop();
+  await scenario?.close();
 });
 
 /** Asks /api/health back to back until `work` settles; the longest time between two answers. */

@@ -5,7 +5,7 @@
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import {
   type FakeHost,
-  registerHost,
+  registerDevHost,
   registerShellRecipe,
   runSpec,
   type Sigmaflow,
@@ -33,17 +33,7 @@ afterAll(async () => {
 
 describe("allocation under concurrent submission", () => {
   it("accepts exactly as many runs as the allocation holds", async () => {
-    const hostId = await registerHost(
-      sf,
-      {
-        name: "race-host",
-        address: "127.0.0.1",
-        port: host.port,
-        scheduler: "direct",
-        remoteBaseDir: "runs",
-      },
-      { username: "sigmaflow", authorize: host.authorize },
-    );
+    const hostId = await registerDevHost(sf, host, { name: "race-host" });
     const recipeId = await registerShellRecipe(sf, "race");
     const results = await Promise.all(
       Array.from({ length: 50 }, (_, i) =>

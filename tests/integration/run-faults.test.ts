@@ -32,6 +32,7 @@ import {
 import { freePort } from "./support/http-browser";
 import {
   type FakeHost,
+  registerDevHost,
   registerHost,
   registerShellRecipe,
   runSpec,
@@ -69,11 +70,7 @@ beforeAll(async () => {
   // The worker process mails the group's admins through the development sink.
   Object.assign(sf.workerEnv, { SMTP_HOST: "127.0.0.1", SMTP_PORT: String(smtpPort) });
   host = await startRekeyableHost();
-  hostId = await registerHost(
-    sf,
-    { name: "fault-host", address: "127.0.0.1", port: host.port, scheduler: "direct", remoteBaseDir: "runs" },
-    { username: "sigmaflow", authorize: host.authorize },
-  );
+  hostId = await registerDevHost(sf, host, { name: "fault-host" });
   recipeId = await registerShellRecipe(sf, "counted", COUNTED);
   worker = sf.spawnWorker();
 }, 60_000);

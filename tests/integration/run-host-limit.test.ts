@@ -8,21 +8,21 @@ import { readFile } from "node:fs/promises";
 import path from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import {
+  type EngineScenario,
   type FakeHost,
-  registerHost,
   registerShellRecipe,
   runSpec,
   type Sigmaflow,
-  startFakeHost,
-  startSigmaflow,
+  startEngineScenario,
   waitForState,
 } from "./support/lifecycle-harness";
-import { createTestDatabase, type TestDatabase } from "./support/test-database";
+import type { TestDatabase } from "./support/test-database";
 import { waitFor } from "./support/wait-for";
 
 const LIMIT = 2;
 const RUNS = 6;
 
+let scenario: EngineScenario;
 let database: TestDatabase;
 let sf: Sigmaflow;
 let host: FakeHost;
@@ -30,28 +30,15 @@ let hostId: string;
 let recipeId: string;
 
 beforeAll(async () => {
-  database = await createTestDatabase("hostlimit");
-  sf = await startSigmaflow(database);
-  host = await startFakeHost();
-  hostId = await registerHost(
-    sf,
-    {
-      name: "narrow-host",
-      address: "127.0.0.1",
-      port: host.port,
-      scheduler: "direct",
-      remoteBaseDir: "runs",
-      maxConcurrentRuns: LIMIT,
-    },
-    { username: "sigmaflow", authorize: host.authorize },
-  );
+  scenario = await startEngineScenario("hostlimit", {
+    host: { name: "narrow-host", maxConcurrentRuns: LIMIT },
+  });
+  ({ database, sf, host, hostId } = scenario);
   recipeId = await registerShellRecipe(sf, "limited");
 }, 60_000);
 
 afterAll(async () => {
-  await sf?.close();
-  await host?.stop();
-  await database?.drop();
+  await scenario?.close();
 });
 
 /**

@@ -8,7 +8,7 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { shellCode } from "./support/code-fixtures";
 import {
   type FakeHost,
-  registerHost,
+  registerDevHost,
   registerRecipe,
   type Sigmaflow,
   startFakeHost,
@@ -34,11 +34,7 @@ beforeAll(async () => {
   sf.workerEnv.WORKER_POLL_INTERVAL_MS = String(POLL_INTERVAL_MS);
   sf.spawnWorker();
   host = await startFakeHost();
-  hostId = await registerHost(
-    sf,
-    { name: "dev-host", address: "127.0.0.1", port: host.port, scheduler: "direct", remoteBaseDir: "runs" },
-    { username: "sigmaflow", authorize: host.authorize },
-  );
+  hostId = await registerDevHost(sf, host);
   // Like a target-orbital code: "symmetry <irrep> done in <s> s" and "progress <done>/<total>".
   const orbitals = shellCode({
     name: "orbitals",

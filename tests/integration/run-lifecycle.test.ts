@@ -11,19 +11,19 @@ import path from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { shellCode } from "./support/code-fixtures";
 import {
+  type EngineScenario,
   type FakeHost,
-  registerHost,
   registerRecipe,
   registerShellRecipe,
   runSpec,
   type Sigmaflow,
-  startFakeHost,
-  startSigmaflow,
+  startEngineScenario,
   waitForState,
 } from "./support/lifecycle-harness";
-import { createTestDatabase, type TestDatabase } from "./support/test-database";
+import type { TestDatabase } from "./support/test-database";
 import { waitFor } from "./support/wait-for";
 
+let scenario: EngineScenario;
 let database: TestDatabase;
 let sf: Sigmaflow;
 let host: FakeHost;
@@ -31,21 +31,13 @@ let hostId: string;
 let recipeId: string;
 
 beforeAll(async () => {
-  database = await createTestDatabase("lifecycle");
-  sf = await startSigmaflow(database);
-  host = await startFakeHost();
-  hostId = await registerHost(
-    sf,
-    { name: "dev-host", address: "127.0.0.1", port: host.port, scheduler: "direct", remoteBaseDir: "runs" },
-    { username: "sigmaflow", authorize: host.authorize },
-  );
+  scenario = await startEngineScenario("lifecycle");
+  ({ database, sf, host, hostId } = scenario);
   recipeId = await registerShellRecipe(sf);
 }, 60_000);
 
 afterAll(async () => {
-  await sf?.close();
-  await host?.stop();
-  await database?.drop();
+  await scenario?.close();
 });
 
 /** States of the pg-boss items of one queue for a run (pg-boss keeps completed items for a while). */

@@ -7,7 +7,7 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { RUN_NOTIFY_CHANNEL } from "../../server/execution/run-transitions";
 import {
   type FakeHost,
-  registerHost,
+  registerDevHost,
   registerShellRecipe,
   runSpec,
   type Sigmaflow,
@@ -44,17 +44,7 @@ afterAll(async () => {
 
 describe("run notifications", () => {
   it("announces every state change in order and every stored log chunk", async () => {
-    const hostId = await registerHost(
-      sf,
-      {
-        name: "notify-host",
-        address: "127.0.0.1",
-        port: host.port,
-        scheduler: "direct",
-        remoteBaseDir: "runs",
-      },
-      { username: "sigmaflow", authorize: host.authorize },
-    );
+    const hostId = await registerDevHost(sf, host, { name: "notify-host" });
     const recipeId = await registerShellRecipe(sf, "notified");
     const created = await sf.api(
       "POST",

@@ -18,7 +18,7 @@ import { startWorker } from "../../worker/index";
 import { shellCode } from "./support/code-fixtures";
 import {
   type FakeHost,
-  registerHost,
+  registerDevHost,
   registerRecipe,
   type Sigmaflow,
   startFakeHost,
@@ -47,11 +47,7 @@ beforeAll(async () => {
     } as never),
   );
   host = await startFakeHost();
-  hostId = await registerHost(
-    sf,
-    { name: "dev-host", address: "127.0.0.1", port: host.port, scheduler: "direct", remoteBaseDir: "runs" },
-    { username: "sigmaflow", authorize: host.authorize },
-  );
+  hostId = await registerDevHost(sf, host);
   const stubborn = shellCode({
     name: "stubborn",
     // Ignores TERM (and so does its sleep, which inherits the ignored signal), records its pid.

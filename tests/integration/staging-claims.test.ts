@@ -13,7 +13,7 @@ import { createBoss, RUN_STEP_QUEUES } from "../../server/queue/queues";
 import { StagingClaims, stagingLockKey } from "../../worker/staging-claims";
 import {
   type FakeHost,
-  registerHost,
+  registerDevHost,
   registerShellRecipe,
   runSpec,
   type Sigmaflow,
@@ -100,11 +100,7 @@ describe("duplicate stage items for one run", () => {
   });
 
   it("stage and submit the run once, and it runs to done with its outputs", async () => {
-    const hostId = await registerHost(
-      sf,
-      { name: "dup-host", address: "127.0.0.1", port: host.port, scheduler: "direct", remoteBaseDir: "runs" },
-      { username: "sigmaflow", authorize: host.authorize },
-    );
+    const hostId = await registerDevHost(sf, host, { name: "dup-host" });
     const recipeId = await registerShellRecipe(sf, "duplicates");
     const created = await sf.api(
       "POST",

@@ -18,7 +18,7 @@ import { apiClient } from "./api-client";
 import { type TwoStageOptions, twoStageCodes } from "./code-fixtures";
 import { addMember, createGroup, createUser, tokenFor } from "./people";
 import { startTestApp } from "./test-app";
-import type { TestDatabase } from "./test-database";
+import { createTestDatabase, type TestDatabase } from "./test-database";
 import { waitFor } from "./wait-for";
 
 export { type Api, apiClient } from "./api-client";
@@ -156,6 +156,53 @@ export async function registerHost(
   await account.authorize?.(acc.body.publicKey);
   return hostId;
 }
+
+/** The development host as the engine tests register it: direct scheduler, runs in ~/runs, a group account. */
+export function registerDevHost(
+  sf: Sigmaflow,
+  host: FakeHost,
+  overrides: { name?: string; maxConcurrentRuns?: number } = {},
+) {
+  return registerHost(
+    sf,
+    {
+      name: "dev-host",
+      address: "127.0.0.1",
+      port: host.port,
+      scheduler: "direct",
+      remoteBaseDir: "runs",
+      ...overrides,
+    },
+    { username: "sigmaflow", authorize: host.authorize },
+  );
+}
+
+/**
+ * One test file's engine: a database of its own, Sigmaflow (API and an in-process worker) and the
+ * development host, registered with a group account. `close` stops them in reverse order.
+ */
+export async function startEngineScenario(
+  label: string,
+  options: { host?: Parameters<typeof registerDevHost>[2] } = {},
+) {
+  const database = await createTestDatabase(label);
+  const sf = await startSigmaflow(database);
+  const host = await startFakeHost();
+  const hostId = await registerDevHost(sf, host, options.host);
+  return {
+    database,
+    sf,
+    host,
+    hostId,
+    async close() {
+      await sf.close();
+      await host.stop();
+      await database.drop();
+    },
+  };
+}
+
+export type EngineScenario = Awaited<ReturnType<typeof startEngineScenario>>;
 
 /** Registers each stage's code through the API, then a recipe of those stages in order; returns its id. */
 export async function registerRecipe(

@@ -165,6 +165,22 @@ async function refusedAccountMessage(
 }
 
 /**
+ * Holds runs the host is polled for when it refuses their account: only that account's runs, with the
+ * reason naming the account. The host and its other accounts' runs carry on.
+ */
+export async function holdRefusedAccountRuns(
+  ctx: WorkerContext,
+  accountRuns: RunRow[],
+  host: HostRow,
+  error: AuthenticationError,
+): Promise<void> {
+  const first = accountRuns[0];
+  if (!first) return;
+  const message = await refusedAccountMessage(ctx, first, host, error);
+  for (const run of accountRuns) await holdRun(ctx, run, heldStepFor(run.state), message);
+}
+
+/**
  * Runs `fn` for a step of `run`; on failure decides between retry-later, hold and fail.
  * Returns normally in every handled case, so pg-boss marks the item complete.
  */

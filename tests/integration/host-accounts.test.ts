@@ -6,6 +6,8 @@
  * account they used, and the held reason names the refused account (user name @ host, personal or
  * group). The development host accepts only the user `sigmaflow` with an authorized key.
  */
+import { readFile, writeFile } from "node:fs/promises";
+import path from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import {
   type Api,
@@ -56,6 +58,8 @@ async function accountOfRun(runId: string): Promise<string> {
   const { rows } = await database.pool.query("select host_account_id from runs where id = $1", [runId]);
   return rows[0].host_account_id;
 }
+
+let replacementPublicKey: string;
 
 describe("a personal account the host refuses", () => {
   let personalId: string;
@@ -121,6 +125,7 @@ describe("a personal account the host refuses", () => {
     });
     expect(replaced.status, JSON.stringify(replaced.body)).toBe(201);
     expect(replaced.body).toMatchObject({ kind: "personal", username: "sigmaflow", disabledAt: null });
+    replacementPublicKey = replaced.body.publicKey;
     await host.authorize(replaced.body.publicKey);
     const accounts = (await member("GET", `/api/hosts/${hostId}/accounts`)).body.accounts;
     expect(accounts.find((a: { id: string }) => a.id === personalId).disabledAt).toEqual(expect.any(String));
@@ -148,6 +153,30 @@ describe("a personal account the host refuses", () => {
     const moves = refused.events.map((e: { toState: string }) => e.toState);
     expect(moves.filter((state: string) => state === "held")).toHaveLength(1);
   }, 60_000);
+});
+
+// Regression: an account the host refused while its runs were already running failed the whole poll
+// of the host, so no run there (any account's) was followed any more, and the refused runs stayed
+// "running" with nothing said.
+describe("a personal account refused while its run is running", () => {
+  it("holds that account's run with a reason naming it, while the group account's run finishes", async () => {
+    const memberRun = await submit(member, "revoked", 6);
+    const groupRun = await submit(sf.api, "group-carries-on", 6);
+    await waitForState(sf, memberRun, ["running"]);
+    await waitForState(sf, groupRun, ["running"]);
+    // The host stops accepting the member's key; its restart drops the open connections.
+    const keysPath = path.join(host.dir, "authorized_keys");
+    const keys = (await readFile(keysPath, "utf8")).split("\n");
+    await writeFile(keysPath, keys.filter((line) => line.trim() !== replacementPublicKey.trim()).join("\n"));
+    await host.stop();
+    await host.restart();
+
+    const held = await waitForState(sf, memberRun, ["held", "done", "failed"], 40_000);
+    expect(held.state, held.stateMessage).toBe("held");
+    expect(held.stateMessage).toMatch(/^Held: the host refused the personal account sigmaflow@dev-host \(/);
+    const finished = await waitForState(sf, groupRun, ["held", "done", "failed"], 40_000);
+    expect(finished.state, finished.stateMessage).toBe("done");
+  }, 90_000);
 });
 
 describe("a group account the host refuses", () => {

@@ -9,7 +9,7 @@ import { hosts, runLogChunks, runs, runTimings } from "../../server/db/schema";
 import { transitionRun } from "../../server/execution/run-transitions";
 import { RUN_STEP_QUEUES } from "../../server/queue/queues";
 import type { WorkerContext } from "../context";
-import { guardStep, holdHostRuns } from "../failures";
+import { guardStep, holdHostRuns, holdRefusedAccountRuns } from "../failures";
 import { groupBy } from "../group-by";
 import { compileOutputRules, parseLogLines } from "../logs/output-rules";
 import { advanceProgress, storedProgress } from "../logs/progress";
@@ -17,7 +17,12 @@ import { readLogFrom } from "../logs/tail";
 import { type HostRow, jobRefOf, loadHost, planOf, type RunRow, sessionFor } from "../run-runtime";
 import { schedulerFor } from "../schedulers";
 import type { JobStatus } from "../schedulers/types";
-import { HostKeyMismatchError, HostKeyUnconfirmedError, TransportError } from "../ssh/errors";
+import {
+  AuthenticationError,
+  HostKeyMismatchError,
+  HostKeyUnconfirmedError,
+  TransportError,
+} from "../ssh/errors";
 import type { RemoteSession } from "../ssh/pool";
 
 const worker = { kind: "worker" } as const;
@@ -140,7 +145,15 @@ export async function pollHost(ctx: WorkerContext, hostId: string): Promise<void
   try {
     for (const [accountId, accountRuns] of byAccount) {
       const session = await sessionFor(ctx, host, accountId);
-      const statuses = await scheduler.states(session, accountRuns.map(jobRefOf));
+      let statuses: Map<string, JobStatus>;
+      try {
+        statuses = await scheduler.states(session, accountRuns.map(jobRefOf));
+      } catch (error) {
+        // A refused account holds its own runs only; every other account on the host is still polled.
+        if (!(error instanceof AuthenticationError)) throw error;
+        await holdRefusedAccountRuns(ctx, accountRuns, host, error);
+        continue;
+      }
       await Promise.all(
         accountRuns.map(async (run) => {
           const status = statuses.get(run.schedulerJobId ?? "");

@@ -106,7 +106,7 @@ describe("runs page", () => {
     const cancelled = within(history).getByRole("row", { name: /Cancelled; the scheduler confirmed/ });
     expect(within(cancelled).getByText("Noor Vasquez")).toBeInTheDocument();
     const collecting = within(history).getByRole("row", { name: /reports the job cancelled/ });
-    expect(within(collecting).getByText("worker")).toBeInTheDocument();
+    expect(within(collecting).getByText("Sigmaflow")).toBeInTheDocument();
   });
 
   // Regression: a run that reused results showed an empty log and no word of where its results came from.

@@ -51,7 +51,7 @@ export function RunRoute() {
       <PageHeader
         eyebrow={group.name}
         title={run.data.name}
-        description={`${run.data.cores} cores × ${run.data.wallTimeMinutes} min, submitted by ${run.data.submittedByName ?? "—"}`}
+        description={`${run.data.cores} ${run.data.cores === 1 ? "core" : "cores"} × ${run.data.wallTimeMinutes} min, submitted by ${run.data.submittedByName ?? "—"}`}
       />
       {canAct ? (
         <div className="mb-4 flex justify-end">

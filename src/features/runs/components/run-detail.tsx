@@ -85,7 +85,7 @@ export function RunDetailView({ run }: { run: RunDetail }) {
                 <TD>
                   <RunStateBadge state={event.toState} />
                 </TD>
-                <TD className="text-xs">{event.actorName ?? event.actor}</TD>
+                <TD className="text-xs">{event.actorName ?? "Sigmaflow"}</TD>
                 <TD className="text-xs text-ink-600">{event.message ?? ""}</TD>
               </TR>
             ))}
@@ -118,7 +118,9 @@ export function RunDetailView({ run }: { run: RunDetail }) {
 
       <Section title="Collected files">
         {run.artifacts.length === 0 ? (
-          <p className="text-sm text-ink-500">Nothing collected yet.</p>
+          <p className="text-sm text-ink-500">
+            {isFinished(run) ? "No files were collected." : "Nothing collected yet."}
+          </p>
         ) : (
           <ul className="flex flex-col gap-1 text-sm">
             {run.artifacts.map((file) => (
@@ -145,7 +147,9 @@ export function RunDetailView({ run }: { run: RunDetail }) {
           data-testid="run-log"
           className="max-h-96 overflow-auto rounded-xl bg-ink-900 p-4 font-mono text-xs leading-relaxed text-ink-50"
         >
-          {log.data === undefined ? "Loading…" : log.data.text || "No output yet."}
+          {log.data === undefined
+            ? "Loading…"
+            : log.data.text || (isFinished(run) ? "The run printed nothing." : "No output yet.")}
         </pre>
       </Section>
     </>

@@ -16,7 +16,7 @@ const codesPath = `/groups/${KESTREL_ID}/codes`;
 
 /** Ten registered codes: five programs in two versions each, as the API lists them (by name). */
 function tenCodes() {
-  const names = ["inner-region", "outer-region", "scf-orbitals", "target-states", "ukrmol-scatci"];
+  const names = ["inner-region", "outer-region", "scf-orbitals", "target-states", "channel-coupling"];
   return names.flatMap((name, i) =>
     ["1.0", "2.1"].map((version, j) => ({
       id: `c0de0000-0000-4000-8000-0000000000${String(i * 2 + j).padStart(2, "0")}`,
@@ -25,7 +25,7 @@ function tenCodes() {
         name,
         version,
         description: name === "outer-region" ? "R-matrix propagation and K-matrices" : "",
-        executable: `/opt/ukrmol/bin/${name}`,
+        executable: `/opt/kestrel-codes/bin/${name}`,
         arguments: [],
         setupLines: [],
         inputTemplates: [{ fileName: `${name}.inp`, format: "namelist", template: "&input /\n" }],

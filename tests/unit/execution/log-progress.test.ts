@@ -87,6 +87,6 @@ describe("following a log across polls", () => {
   });
 
   it("has no progress before the first stage marker", () => {
-    expect(follow(["module load ukrmol\n"]).progress).toBeNull();
+    expect(follow(["module load kestrel-codes\n"]).progress).toBeNull();
   });
 });

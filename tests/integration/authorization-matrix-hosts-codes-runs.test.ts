@@ -9,6 +9,7 @@ import { afterAll, beforeAll } from "vitest";
 import { allocations, codes, hostAccounts, hosts, recipes } from "../../server/db/schema";
 import {
   type Caller,
+  createMatrixCallers,
   describeMatrix,
   groupAdminOnly,
   groupRead,
@@ -17,7 +18,6 @@ import {
 } from "./support/authorization-matrix";
 import { codeDefinition } from "./support/code-fixtures";
 import { startTestCluster, type TestCluster } from "./support/host-test-app";
-import { addMember, createGroup, createUser, tokenFor } from "./support/people";
 import { startTestApp } from "./support/test-app";
 import { createTestDatabase, type TestDatabase } from "./support/test-database";
 
@@ -298,25 +298,9 @@ beforeAll(async () => {
   app = await startTestApp(database);
   cluster = await startTestCluster();
   const db = database.db;
-  const group = await createGroup(db, "target");
-  const other = await createGroup(db, "other");
-  groupId = group.id;
-  const collaborator = await createUser(db, "collaborator");
-  const member = await createUser(db, "member");
-  const groupAdmin = await createUser(db, "group-admin");
-  const otherAdmin = await createUser(db, "other-admin");
-  const siteAdmin = await createUser(db, "site-admin", { siteAdmin: true });
-  groupAdminId = groupAdmin.id;
-  memberId = member.id;
-  await addMember(db, collaborator.id, group.id, "collaborator");
-  await addMember(db, member.id, group.id, "member");
-  await addMember(db, groupAdmin.id, group.id, "admin");
-  await addMember(db, otherAdmin.id, other.id, "admin");
-  tokens.set("collaborator", await tokenFor(db, collaborator));
-  tokens.set("member", await tokenFor(db, member));
-  tokens.set("groupAdmin", await tokenFor(db, groupAdmin));
-  tokens.set("otherGroupAdmin", await tokenFor(db, otherAdmin));
-  tokens.set("siteAdmin", await tokenFor(db, siteAdmin));
+  const callers = await createMatrixCallers(db);
+  ({ groupId, groupAdminId, memberId } = callers);
+  for (const [caller, token] of callers.tokens) tokens.set(caller, token);
   hostId = await freshHost();
   codeId = await freshCode();
   recipeId = await freshRecipe();

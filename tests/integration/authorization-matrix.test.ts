@@ -10,6 +10,7 @@ import { hashSecret } from "../../server/auth/tokens";
 import { invitations } from "../../server/db/schema";
 import {
   type Caller,
+  createMatrixCallers,
   describeMatrix,
   everyone,
   groupAdminOnly,
@@ -18,7 +19,7 @@ import {
   signedIn,
   siteAdminOnly,
 } from "./support/authorization-matrix";
-import { addMember, createGroup, createUser, tokenFor } from "./support/people";
+import { addMember, createUser, tokenFor } from "./support/people";
 import { startTestApp } from "./support/test-app";
 import { createTestDatabase, type TestDatabase } from "./support/test-database";
 
@@ -165,24 +166,9 @@ beforeAll(async () => {
   database = await createTestDatabase("authz");
   app = await startTestApp(database);
   const db = database.db;
-  const group = await createGroup(db, "target");
-  const other = await createGroup(db, "other");
-  groupId = group.id;
-  const collaborator = await createUser(db, "collaborator");
-  const member = await createUser(db, "member");
-  const groupAdmin = await createUser(db, "group-admin");
-  const otherAdmin = await createUser(db, "other-admin");
-  const siteAdmin = await createUser(db, "site-admin", { siteAdmin: true });
-  groupAdminId = groupAdmin.id;
-  await addMember(db, collaborator.id, group.id, "collaborator");
-  await addMember(db, member.id, group.id, "member");
-  await addMember(db, groupAdmin.id, group.id, "admin");
-  await addMember(db, otherAdmin.id, other.id, "admin");
-  tokens.set("collaborator", await tokenFor(db, collaborator));
-  tokens.set("member", await tokenFor(db, member));
-  tokens.set("groupAdmin", await tokenFor(db, groupAdmin));
-  tokens.set("otherGroupAdmin", await tokenFor(db, otherAdmin));
-  tokens.set("siteAdmin", await tokenFor(db, siteAdmin));
+  const callers = await createMatrixCallers(db);
+  ({ groupId, groupAdminId } = callers);
+  for (const [caller, token] of callers.tokens) tokens.set(caller, token);
 });
 
 afterAll(async () => {

@@ -4,6 +4,8 @@
  * a 404; a role too low is a 403; site admins may do everything.
  */
 import { describe, expect, it } from "vitest";
+import type { Database } from "../../../server/db/client";
+import { addMember, createGroup, createUser, tokenFor } from "./people";
 
 export const CALLERS = [
   "anonymous",
@@ -69,4 +71,30 @@ export function describeMatrix(
       }
     }
   });
+}
+
+/**
+ * The matrix's people: a target group with a collaborator, a member and an admin, an admin of another
+ * group, and a site admin; an API token for each caller but the anonymous one.
+ */
+export async function createMatrixCallers(db: Database) {
+  const group = await createGroup(db, "target");
+  const other = await createGroup(db, "other");
+  const collaborator = await createUser(db, "collaborator");
+  const member = await createUser(db, "member");
+  const groupAdmin = await createUser(db, "group-admin");
+  const otherAdmin = await createUser(db, "other-admin");
+  const siteAdmin = await createUser(db, "site-admin", { siteAdmin: true });
+  await addMember(db, collaborator.id, group.id, "collaborator");
+  await addMember(db, member.id, group.id, "member");
+  await addMember(db, groupAdmin.id, group.id, "admin");
+  await addMember(db, otherAdmin.id, other.id, "admin");
+  const tokens = new Map<Caller, string>([
+    ["collaborator", await tokenFor(db, collaborator)],
+    ["member", await tokenFor(db, member)],
+    ["groupAdmin", await tokenFor(db, groupAdmin)],
+    ["otherGroupAdmin", await tokenFor(db, otherAdmin)],
+    ["siteAdmin", await tokenFor(db, siteAdmin)],
+  ]);
+  return { groupId: group.id, groupAdminId: groupAdmin.id, memberId: member.id, tokens };
 }

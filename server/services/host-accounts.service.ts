@@ -119,6 +119,15 @@ function newAccount(
   };
 }
 
+/** What the audit log records of a new account's key (never the key itself). */
+function keyAuditDetails(account: NewAccount) {
+  return {
+    key: account.key,
+    keyType: account.keyType,
+    publicKeyFingerprint: fingerprintOf(account.publicKey),
+  };
+}
+
 export async function createHostAccount(
   deps: HostAccountDeps,
   principal: Principal,
@@ -155,9 +164,7 @@ export async function createHostAccount(
           hostId,
           kind: input.kind,
           username: input.username,
-          key: account.key,
-          keyType: account.keyType,
-          publicKeyFingerprint: fingerprintOf(account.publicKey),
+          ...keyAuditDetails(account),
         },
         ip,
       });
@@ -352,9 +359,7 @@ export async function replaceHostAccount(
           kind: kindOf(found.account),
           replaced: { id: accountId, username: found.account.username, disabledNow: disabled.length > 0 },
           username: input.username,
-          key: account.key,
-          keyType: account.keyType,
-          publicKeyFingerprint: fingerprintOf(account.publicKey),
+          ...keyAuditDetails(account),
         },
         ip,
       });

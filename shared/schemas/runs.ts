@@ -1,5 +1,6 @@
 import { z } from "zod";
 import { isoDateTimeSchema, uuidSchema } from "./common";
+import { resultsStateSchema, runAnalysisSchema } from "./results";
 
 export const runStateSchema = z.enum([
   "queued",
@@ -37,6 +38,13 @@ export const runSpecSchema = z.strictObject({
   name: z.string().trim().min(1).max(120),
   recipeId: uuidSchema,
   hostId: uuidSchema,
+  /**
+   * The target (or isotopologue) the run is about; its latest version is used and stored with the run.
+   * Left out for recipes whose templates do not read `target`.
+   */
+  targetId: uuidSchema.optional(),
+  /** Options of the postprocess step that turns collected files into results. */
+  analysis: runAnalysisSchema.optional(),
   /** Parameters per stage name, validated against each stage code's declared JSON schema. */
   parameters: z.record(z.string(), z.record(z.string(), z.unknown())).default({}),
   resources: runResourcesSchema,
@@ -70,6 +78,10 @@ export const runSpecChangesSchema = z.strictObject({
   name: z.string().trim().min(1).max(120).optional(),
   recipeId: uuidSchema.optional(),
   hostId: uuidSchema.optional(),
+  /** Another target (its latest version); left out: the original's target at its latest version. */
+  targetId: uuidSchema.optional(),
+  /** Postprocess options; merged per field like resources. */
+  analysis: runAnalysisSchema.partial().optional(),
   parameters: z.record(z.string(), z.record(z.string(), z.unknown())).optional(),
   resources: runResourcesRequestSchema.optional(),
   notifyByEmail: z.boolean().optional(),
@@ -133,6 +145,10 @@ export const runSummarySchema = z.object({
   name: z.string(),
   recipeId: uuidSchema,
   hostId: uuidSchema,
+  targetId: uuidSchema.nullable(),
+  /** The target version the run used, and the target's name. */
+  targetVersion: z.number().int().nullable(),
+  targetName: z.string().nullable(),
   state: runStateSchema,
   stateMessage: z.string().nullable(),
   fingerprint: z.string(),
@@ -154,6 +170,9 @@ export const runSummarySchema = z.object({
   cancelRequestedByName: z.string().nullable(),
   /** Null until the log reaches the first stage. */
   progress: runProgressSchema.nullable(),
+  /** Whether results were derived from the collected files (null until the run is done). */
+  resultsState: resultsStateSchema.nullable(),
+  resultsMessage: z.string().nullable(),
   createdAt: isoDateTimeSchema,
   startedAt: isoDateTimeSchema.nullable(),
   finishedAt: isoDateTimeSchema.nullable(),

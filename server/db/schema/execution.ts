@@ -24,9 +24,11 @@ import {
 } from "drizzle-orm/pg-core";
 import { ledgerKindSchema } from "../../../shared/schemas/allocations";
 import { hostStatusSchema, schedulerKindSchema } from "../../../shared/schemas/hosts";
+import { resultsStateSchema } from "../../../shared/schemas/results";
 import { runStateSchema } from "../../../shared/schemas/runs";
 import { enumValues } from "./enum-values";
 import { groups, users } from "./identity";
+import { targets, targetVersions } from "./targets";
 
 const bytea = customType<{ data: Buffer }>({ dataType: () => "bytea" });
 const createdAt = () => timestamp("created_at", { withTimezone: true }).notNull().defaultNow();
@@ -36,6 +38,7 @@ export const schedulerKind = pgEnum("scheduler_kind", enumValues(schedulerKindSc
 export const hostStatus = pgEnum("host_status", enumValues(hostStatusSchema));
 export const runState = pgEnum("run_state", enumValues(runStateSchema));
 export const ledgerKind = pgEnum("ledger_kind", enumValues(ledgerKindSchema));
+export const resultsState = pgEnum("results_state", enumValues(resultsStateSchema));
 
 export const hosts = pgTable(
   "hosts",
@@ -165,6 +168,9 @@ export const runs = pgTable(
       .notNull()
       .references(() => allocations.id),
     submittedBy: uuid("submitted_by").references(() => users.id, { onDelete: "set null" }),
+    /** The target the run is about and the version of it the run used (null for runs without a target). */
+    targetId: uuid("target_id").references(() => targets.id),
+    targetVersionId: uuid("target_version_id").references(() => targetVersions.id),
     name: varchar("name", { length: 120 }).notNull(),
     /** The validated run spec as submitted (target, recipe, parameters per stage, resources). */
     spec: jsonb("spec").notNull(),
@@ -207,6 +213,10 @@ export const runs = pgTable(
     resubmittedFrom: uuid("resubmitted_from"),
     reusedFrom: uuid("reused_from"),
     notifyByEmail: boolean("notify_by_email").notNull().default(false),
+    /** Set by `collect` for a done run (`pending`), then by `postprocess` (`derived`, `none` or `failed`). */
+    resultsState: resultsState("results_state"),
+    /** Why no results were derived, or why deriving them failed. */
+    resultsMessage: text("results_message"),
     createdAt: createdAt(),
     updatedAt: timestamp("updated_at", { withTimezone: true }).notNull().defaultNow(),
     startedAt: timestamp("started_at", { withTimezone: true }),
@@ -219,6 +229,7 @@ export const runs = pgTable(
       .on(t.hostId, t.waitingForSlotSince)
       .where(sql`${t.waitingForSlotSince} is not null`),
     index("runs_fingerprint_idx").on(t.groupId, t.fingerprint),
+    index("runs_target_idx").on(t.targetId),
     uniqueIndex("runs_submit_token_key").on(t.submitToken),
   ],
 );

@@ -1,2 +1,4 @@
 export * from "./execution";
 export * from "./identity";
+export * from "./results";
+export * from "./targets";

@@ -28,6 +28,16 @@ export const outputRulesSchema = z.strictObject({
   timings: z.array(regexSource).max(10).default([]),
 });
 
+/**
+ * Readers Sigmaflow has for collected files, used by the postprocess step to derive results:
+ * `orbital-table` (orbital energies, occupations and kinetic energies by irrep, as the demo psi4 templates
+ * write them) and `kmatrix-table` (K-matrices per irrep and energy, the text format of the demo solver).
+ */
+export const resultReaderSchema = z.enum(["orbital-table", "kmatrix-table"]);
+export type ResultReader = z.infer<typeof resultReaderSchema>;
+
+export const resultFileSchema = z.strictObject({ fileName: safeFileNameSchema, reader: resultReaderSchema });
+
 export const codeDefinitionSchema = z.strictObject({
   name: identifierSchema,
   version: z
@@ -64,6 +74,8 @@ export const codeDefinitionSchema = z.strictObject({
   /** Files the code writes that Sigmaflow collects and hands to the next stage. */
   outputFiles: z.array(safeFileNameSchema).max(50).default([]),
   outputRules: outputRulesSchema.default({ progress: [], timings: [] }),
+  /** Which of the output files Sigmaflow reads after the run to derive results, and with which reader. */
+  resultFiles: z.array(resultFileSchema).max(20).default([]),
   defaults: z
     .strictObject({
       cores: z.number().int().min(1).max(4096).default(1),

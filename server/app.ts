@@ -32,6 +32,7 @@ import { invitationRoutes } from "./routes/invitations.routes";
 import { memberRoutes } from "./routes/members.routes";
 import { recipeRoutes } from "./routes/recipes.routes";
 import { runRoutes } from "./routes/runs.routes";
+import { TARGET_WRITE_PATHS, targetRoutes } from "./routes/targets.routes";
 import { tokenRoutes } from "./routes/tokens.routes";
 import { userRoutes } from "./routes/users.routes";
 
@@ -46,6 +47,12 @@ export type AppDeps = {
 
 /** Request bodies are small JSON documents; anything bigger is refused before parsing. */
 export const JSON_BODY_LIMIT = "100kb";
+/**
+ * Target bodies may carry an XYZ file's text (at most MAX_XYZ_BYTES = 256 KiB, shared/schemas/targets.ts),
+ * which grows when escaped in JSON (a newline is two bytes); larger XYZ text within this limit gets a 422
+ * naming the limit, a larger body a 413.
+ */
+export const TARGET_JSON_BODY_LIMIT = "640kb";
 
 const utf8 = new TextDecoder("utf-8", { fatal: true });
 
@@ -93,6 +100,11 @@ export function createApp(deps: AppDeps) {
 
   const signIn = configureSignIn(deps.db, config.oidc, log);
   const api = express.Router();
+  // Parsed first: the general parser below skips a body that is already parsed.
+  api.use(
+    TARGET_WRITE_PATHS,
+    express.json({ limit: TARGET_JSON_BODY_LIMIT, strict: true, verify: requireUtf8 }),
+  );
   api.use(express.json({ limit: JSON_BODY_LIMIT, strict: true, verify: requireUtf8 }));
   api.use(sessionMiddleware(deps.pool, config));
   api.use(signIn.passport.session());
@@ -119,6 +131,7 @@ export function createApp(deps: AppDeps) {
   api.use(hostAccountRoutes(ctx));
   api.use(codeRoutes(ctx));
   api.use(recipeRoutes(ctx));
+  api.use(targetRoutes(ctx));
   api.use(allocationRoutes(ctx));
   api.use(runRoutes(ctx));
   api.use(notFoundRoute);

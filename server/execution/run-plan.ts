@@ -12,6 +12,8 @@
 import { createHash } from "node:crypto";
 import { canonicalJson } from "../../shared/canonical-json";
 import type { CodeDefinition } from "../../shared/schemas/codes";
+import type { TargetTemplateContext } from "../../shared/schemas/targets";
+import type { TargetFingerprint } from "./target-context";
 import { renderCodeFiles } from "./templates/render";
 
 export type PlanFile = { relativePath: string; contentBase64: string; sha256: string };
@@ -83,8 +85,16 @@ function stageBlock(
   return lines.join("\n");
 }
 
-/** Renders every stage's files and the batch script. Throws (with the file named) on template errors. */
-export function buildRunPlan(runId: string, runName: string, inputs: StageInput[]): RunPlan {
+/**
+ * Renders every stage's files and the batch script, each stage's templates seeing the run's `target`
+ * (null for a run without one). Throws (with the file named) on template errors.
+ */
+export function buildRunPlan(
+  runId: string,
+  runName: string,
+  inputs: StageInput[],
+  target: TargetTemplateContext | null = null,
+): RunPlan {
   const stages: PlanStage[] = inputs.map((input, i) => ({
     index: i + 1,
     name: input.name,
@@ -99,7 +109,7 @@ export function buildRunPlan(runId: string, runName: string, inputs: StageInput[
   const blocks: string[] = [];
   inputs.forEach((input, i) => {
     const stage = stages[i]!;
-    const rendered = renderCodeFiles(input.definition, input.parameters);
+    const rendered = renderCodeFiles(input.definition, input.parameters, target);
     for (const file of rendered.files) files.push(planFile(`${stage.dir}/${file.fileName}`, file.content));
     for (const arg of rendered.argv) {
       if (/[\n\r\0]/.test(arg))
@@ -128,11 +138,19 @@ export function buildRunPlan(runId: string, runName: string, inputs: StageInput[
 
 /**
  * The fingerprint: sha256 of everything that determines a run's outputs — each stage's code (name,
- * version, full definition), its canonical parameters and the exact bytes of every rendered file.
- * Resources (cores, wall time), host and name are left out: they change cost, not results.
+ * version, full definition), its canonical parameters, the exact bytes of every rendered file and, for a
+ * run about a target, the target version (its id and a hash of its atoms, charge and multiplicity), so a
+ * new version of the target never reuses the results of the old one even when no template prints it.
+ * Resources (cores, wall time), host and name are left out: they change cost, not results. A run without
+ * a target has no `target` key, so its fingerprint is the one it had before runs named targets.
  */
-export function runFingerprint(inputs: StageInput[], plan: RunPlan): string {
+export function runFingerprint(
+  inputs: StageInput[],
+  plan: RunPlan,
+  target: TargetFingerprint | null = null,
+): string {
   const document = {
+    ...(target ? { target } : {}),
     stages: inputs.map((input) => ({
       name: input.name,
       code: {

@@ -3,6 +3,7 @@
  * resubmission's changes applied to the spec of the run it copies.
  */
 import type { CodeDefinition } from "../../shared/schemas/codes";
+import { runAnalysisSchema } from "../../shared/schemas/results";
 import type { RunResources, RunSpec, RunSpecChanges, RunSpecRequest } from "../../shared/schemas/runs";
 
 /** The longest wall time a run may ask for, and the longest run name (runSpecSchema). */
@@ -32,7 +33,10 @@ export function resolveResources(
 
 /**
  * The spec of a resubmission: the original's, with only what `changes` names replaced. Parameters merge
- * per stage and per parameter, a null value removing the parameter (RFC 7396); resources merge per field.
+ * per stage and per parameter, a null value removing the parameter (RFC 7396); resources and analysis
+ * options merge per field. The target stays the original's unless `changes.targetId` names another;
+ * either way the spec names the target, not a version, so the new run uses the target's latest version
+ * (a resubmission after the target was changed runs on the changed target).
  */
 export function applySpecChanges(original: RunSpec, changes: RunSpecChanges): RunSpecRequest {
   const parameters: RunSpec["parameters"] = { ...original.parameters };
@@ -48,6 +52,11 @@ export function applySpecChanges(original: RunSpec, changes: RunSpecChanges): Ru
     name: changes.name ?? `${original.name.slice(0, MAX_NAME_LENGTH - AGAIN.length)}${AGAIN}`,
     recipeId: changes.recipeId ?? original.recipeId,
     hostId: changes.hostId ?? original.hostId,
+    targetId: changes.targetId ?? original.targetId,
+    analysis:
+      original.analysis === undefined && changes.analysis === undefined
+        ? undefined
+        : runAnalysisSchema.parse({ ...original.analysis, ...changes.analysis }),
     parameters,
     resources: { ...original.resources, ...changes.resources },
     notifyByEmail: changes.notifyByEmail ?? original.notifyByEmail,

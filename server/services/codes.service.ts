@@ -29,6 +29,21 @@ export function toCode(row: CodeRow): Code {
   };
 }
 
+/** Templates read the run's target as `target`, so no parameter may take that name. */
+function reservedParameterProblems(schema: Record<string, unknown>): Problem[] {
+  const message =
+    'Templates read the run\'s target as "target", so a parameter cannot have that name; rename it.';
+  const problems: Problem[] = [];
+  const properties = schema.properties;
+  if (properties && typeof properties === "object" && Object.hasOwn(properties, "target")) {
+    problems.push({ path: "parameters.properties.target", message });
+  }
+  if (Array.isArray(schema.required) && schema.required.includes("target")) {
+    problems.push({ path: "parameters.required", message });
+  }
+  return problems;
+}
+
 /**
  * Everything wrong with a definition beyond its shape: schema, templates, clashing file names, names
  * Sigmaflow reserves for its own files. Checked here rather than in the contract, which also reads
@@ -42,6 +57,7 @@ export function definitionProblems(definition: CodeDefinition): Problem[] {
     if (!(error instanceof ParameterSchemaError)) throw error;
     problems.push({ path: "parameters", message: error.message });
   }
+  problems.push(...reservedParameterProblems(definition.parameters));
   problems.push(...checkCodeTemplates(definition));
   problems.push(...outputRuleProblems(definition.outputRules));
   const reserved = (name: string) =>

@@ -15,6 +15,7 @@ import { withClientTransaction } from "../db/client-transaction";
 import { hosts, runEvents, runs } from "../db/schema";
 import { buildRunPlan, runFingerprint } from "../execution/run-plan";
 import { resolveResources } from "../execution/run-spec";
+import { targetFingerprintPart, targetTemplateContext } from "../execution/target-context";
 import { AppError, conflict } from "../http/errors";
 import { RUN_STEP_QUEUES } from "../queue/queues";
 import { requireGroupRole } from "./access";
@@ -22,6 +23,7 @@ import { activeAllocation, reserveAgainstAllocation } from "./allocations.servic
 import { chooseAccount } from "./host-accounts.service";
 import { getRunSummary } from "./run-reads.service";
 import { loadStages } from "./run-stages.service";
+import { loadRunTarget } from "./targets.service";
 
 export type RunDeps = { db: Database; pool: pg.Pool; boss: PgBoss };
 
@@ -92,6 +94,8 @@ export async function createRun(
     );
   }
   const inputs = await loadStages(db, groupId, request.spec);
+  // The latest version of the target now; the run keeps this version whatever is saved later.
+  const target = request.spec.targetId ? await loadRunTarget(db, groupId, request.spec.targetId) : null;
   // Stored with the resources it got, so a resubmission starts from exactly what this run asked for.
   const spec: RunSpec = {
     ...request.spec,
@@ -103,11 +107,11 @@ export async function createRun(
   const runId = crypto.randomUUID();
   let plan: ReturnType<typeof buildRunPlan>;
   try {
-    plan = buildRunPlan(runId, spec.name, inputs);
+    plan = buildRunPlan(runId, spec.name, inputs, target ? targetTemplateContext(target) : null);
   } catch (error) {
     throw new AppError(422, "template_failed", (error as Error).message);
   }
-  const fingerprint = runFingerprint(inputs, plan);
+  const fingerprint = runFingerprint(inputs, plan, target ? targetFingerprintPart(target) : null);
   const reusable = await findReusable(db, groupId, fingerprint);
   if (reusable && request.onDuplicate === "ask") {
     throw conflict(
@@ -138,6 +142,8 @@ export async function createRun(
       recipeId: spec.recipeId,
       hostId: host.id,
       hostAccountId: account.id,
+      targetId: target?.target.id ?? null,
+      targetVersionId: target?.version.id ?? null,
       allocationId: allocation.id,
       submittedBy: principal.userId,
       name: spec.name,
@@ -175,6 +181,7 @@ export async function createRun(
       details: {
         name: spec.name,
         fingerprint,
+        target: target ? { id: target.target.id, version: target.version.version } : null,
         reserveCoreSeconds,
         resubmittedFrom: extra.resubmittedFrom ?? null,
       },

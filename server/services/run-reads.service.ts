@@ -15,7 +15,16 @@ import {
 } from "../../shared/schemas/runs";
 import type { Principal } from "../auth/principal";
 import type { Database } from "../db/client";
-import { runArtifacts, runEvents, runLogChunks, runs, runTimings, users } from "../db/schema";
+import {
+  runArtifacts,
+  runEvents,
+  runLogChunks,
+  runs,
+  runTimings,
+  targets,
+  targetVersions,
+  users,
+} from "../db/schema";
 import type { RunPlan } from "../execution/run-plan";
 import { AppError, notFound } from "../http/errors";
 import { requireGroupRole } from "./access";
@@ -25,15 +34,19 @@ const summaryColumns = {
   run: runs,
   submittedByName: users.displayName,
   cancelRequestedByName: canceller.displayName,
+  targetName: targets.name,
+  targetVersion: targetVersions.version,
 };
 
-/** Runs with the names of who submitted them and who asked to cancel them. */
+/** Runs with the names of who submitted them and who asked to cancel them, and their target's. */
 function selectSummaries(db: Database) {
   return db
     .select(summaryColumns)
     .from(runs)
     .leftJoin(users, eq(users.id, runs.submittedBy))
-    .leftJoin(canceller, eq(canceller.id, runs.cancelRequestedBy));
+    .leftJoin(canceller, eq(canceller.id, runs.cancelRequestedBy))
+    .leftJoin(targets, eq(targets.id, runs.targetId))
+    .leftJoin(targetVersions, eq(targetVersions.id, runs.targetVersionId));
 }
 
 /** The stored progress with the stage's place in the run's plan. */
@@ -50,6 +63,8 @@ function toSummary(row: {
   run: typeof runs.$inferSelect;
   submittedByName: string | null;
   cancelRequestedByName: string | null;
+  targetName: string | null;
+  targetVersion: number | null;
 }): RunSummary {
   const r = row.run;
   return {
@@ -58,6 +73,9 @@ function toSummary(row: {
     name: r.name,
     recipeId: r.recipeId,
     hostId: r.hostId,
+    targetId: r.targetId,
+    targetVersion: row.targetVersion,
+    targetName: row.targetName,
     state: r.state,
     stateMessage: r.stateMessage,
     fingerprint: r.fingerprint,
@@ -74,6 +92,8 @@ function toSummary(row: {
     cancelRequested: r.cancelRequestedAt !== null,
     cancelRequestedByName: r.cancelRequestedAt === null ? null : row.cancelRequestedByName,
     progress: progressOf(r),
+    resultsState: r.resultsState,
+    resultsMessage: r.resultsMessage,
     createdAt: r.createdAt.toISOString(),
     startedAt: r.startedAt?.toISOString() ?? null,
     finishedAt: r.finishedAt?.toISOString() ?? null,

@@ -12,6 +12,7 @@ export const auditTargetTypeSchema = z.enum([
   "recipe",
   "allocation",
   "run",
+  "target",
 ]);
 export type AuditTargetType = z.infer<typeof auditTargetTypeSchema>;
 
@@ -47,6 +48,14 @@ export const AUDIT_ACTIONS = {
   "code.delete": { target: "code", sentence: "deleted the code {target}" },
   "recipe.create": { target: "recipe", sentence: "created the recipe {target}" },
   "recipe.delete": { target: "recipe", sentence: "deleted the recipe {target}" },
+  "target.create": { target: "target", sentence: "entered the target {target}" },
+  "target.update": { target: "target", sentence: "saved version {version} of the target {target}" },
+  "target.rename": { target: "target", sentence: "renamed the target {from} to {target}" },
+  "target.isotopologue_create": {
+    target: "target",
+    sentence: "created the isotopologue {target} of {parent}",
+  },
+  "target.delete": { target: "target", sentence: "deleted the target {target}" },
   "allocation.create": { target: "allocation", sentence: "created the allocation {target}" },
   "run.create": { target: "run", sentence: "submitted the run {target}" },
   "run.reuse": { target: "run", sentence: "reused earlier results for the run {target}" },

@@ -80,8 +80,18 @@ export const runSpecChangesSchema = z.strictObject({
   hostId: uuidSchema.optional(),
   /** Another target (its latest version); left out: the original's target at its latest version. */
   targetId: uuidSchema.optional(),
-  /** Postprocess options; merged per field like resources. */
-  analysis: runAnalysisSchema.partial().optional(),
+  /**
+   * Postprocess options; merged per field like resources. Without the defaults of runAnalysisSchema
+   * (`.partial()` keeps them), which would silently replace the original's values.
+   */
+  analysis: z
+    .strictObject({
+      firstIonizationEnergyEv: runAnalysisSchema.shape.firstIonizationEnergyEv,
+      ionizationEnergyMaxEv: runAnalysisSchema.shape.ionizationEnergyMaxEv.removeDefault().optional(),
+      temperatureMinK: runAnalysisSchema.shape.temperatureMinK.removeDefault().optional(),
+      temperatureMaxK: runAnalysisSchema.shape.temperatureMaxK.removeDefault().optional(),
+    })
+    .optional(),
   parameters: z.record(z.string(), z.record(z.string(), z.unknown())).optional(),
   resources: runResourcesRequestSchema.optional(),
   notifyByEmail: z.boolean().optional(),

@@ -5,6 +5,7 @@
  */
 import { createHash } from "node:crypto";
 import type { CodeDefinition, TemplateFormat } from "../../../shared/schemas/codes";
+import type { TargetTemplateContext } from "../../../shared/schemas/targets";
 import { compileUserPattern, PatternError } from "../user-patterns";
 import { type Escaped, escapeValue, LONE_SURROGATE } from "./escaping";
 import {
@@ -35,6 +36,8 @@ const MAX_RENDERED_CHARS = 10 * 1024 * 1024;
 
 const COMPILED_CACHE_LIMIT = 500;
 const compiledCache = new Map<string, TemplateProps>();
+/** The first line of each compiled template that names `target` (the run's target), or null. */
+const targetLines = new WeakMap<TemplateProps, number | null>();
 
 function cleanReason(error: unknown): string {
   const message = error instanceof Error ? error.message : String(error);
@@ -118,6 +121,7 @@ function compileTemplate(source: string, fileName: string): TemplateProps {
   const cached = compiledCache.get(cacheKey);
   if (cached) return cached;
   let props: TemplateProps;
+  let targetLine: number | null = null;
   try {
     checkRawBlocks(source, fileName);
     const ast = internals.parser.parse(source, [], ENV_OPTIONS);
@@ -138,6 +142,9 @@ function compileTemplate(source: string, fileName: string): TemplateProps {
       }
     }
     routeRegexLiterals(ast, fileName);
+    const symbolNode = (internals.nodes as Record<string, unknown>).Symbol;
+    const targetSymbol = ast.findAll(symbolNode).find((node) => node.value === "target");
+    targetLine = targetSymbol ? targetSymbol.lineno + 1 : null;
     const compiler = new internals.compiler.Compiler(fileName, ENV_OPTIONS.throwOnUndefined);
     compiler.compile(transformer.transform(ast, []));
     props = new Function(compiler.getCode())() as TemplateProps;
@@ -154,6 +161,7 @@ function compileTemplate(source: string, fileName: string): TemplateProps {
   }
   if (compiledCache.size >= COMPILED_CACHE_LIMIT) compiledCache.clear();
   compiledCache.set(cacheKey, props);
+  targetLines.set(props, targetLine);
   return props;
 }
 
@@ -164,6 +172,15 @@ function renderTemplate(
   context: Record<string, Escaped>,
 ): string {
   const props = compileTemplate(source, fileName);
+  const targetLine = targetLines.get(props) ?? null;
+  // Without this check a template would loop over no atoms and write an input with no molecule in it.
+  if (targetLine !== null && context.target === undefined) {
+    throw new TemplateError(
+      fileName,
+      targetLine,
+      "the template reads `target`, but the run names no target; choose a target for the run",
+    );
+  }
   const runtime = RUNTIMES[format];
   let failure: Located | null = null;
   const root: RootFn = (e, ctx, frame, _runtime, cb) =>
@@ -193,28 +210,50 @@ function renderTemplate(
   return output;
 }
 
+/**
+ * The stage's parameters and the run's target (when it has one) escaped for the file's format. The target
+ * goes through the same escaping as parameters: its name and labels are text a member entered.
+ */
 function escapedContext(
   parameters: Record<string, unknown>,
+  target: TargetTemplateContext | null,
   format: TemplateFormat,
   fileName: string,
 ): Record<string, Escaped> {
+  if (Object.hasOwn(parameters, "target")) {
+    throw new TemplateError(
+      fileName,
+      null,
+      'a parameter may not be named "target": templates read the run\'s target under that name',
+    );
+  }
+  let escaped: Record<string, Escaped>;
   try {
-    const escaped = escapeValue(parameters, format, "parameters");
-    return escaped as Record<string, Escaped>;
+    escaped = escapeValue(parameters, format, "parameters") as Record<string, Escaped>;
   } catch (error) {
     throw new TemplateError(fileName, null, (error as Error).message.replace(/^parameters\./, "parameter "));
   }
+  if (target) {
+    try {
+      escaped.target = escapeValue(target, format, "target");
+    } catch (error) {
+      throw new TemplateError(fileName, null, (error as Error).message);
+    }
+  }
+  return escaped;
 }
 
 export const argumentLabel = (index: number) => `argument ${index + 1}`;
 
 /**
- * Renders every input file and every argument. An argument that renders to an empty string is left
- * out, so `{% if verbose %}--verbose{% endif %}` adds a flag only when asked for.
+ * Renders every input file and every argument, with the stage's parameters and the run's `target` (null
+ * for a run without one). An argument that renders to an empty string is left out, so
+ * `{% if verbose %}--verbose{% endif %}` adds a flag only when asked for.
  */
 export function renderCodeFiles(
   definition: CodeDefinition,
   parameters: Record<string, unknown>,
+  target: TargetTemplateContext | null = null,
 ): RenderedCode {
   const files = definition.inputTemplates.map((input) => ({
     fileName: input.fileName,
@@ -222,13 +261,13 @@ export function renderCodeFiles(
       input.template,
       input.fileName,
       input.format,
-      escapedContext(parameters, input.format, input.fileName),
+      escapedContext(parameters, target, input.format, input.fileName),
     ),
   }));
   const argv: string[] = [];
   definition.arguments.forEach((template, index) => {
     const label = argumentLabel(index);
-    const value = renderTemplate(template, label, "text", escapedContext(parameters, "text", label));
+    const value = renderTemplate(template, label, "text", escapedContext(parameters, target, "text", label));
     if (value !== "") argv.push(value);
   });
   return { files, argv };

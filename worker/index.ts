@@ -14,6 +14,7 @@ import { SshPool } from "./ssh/pool";
 import { StagingClaims } from "./staging-claims";
 import { cancelRunOnHost } from "./steps/cancel";
 import { collectRun } from "./steps/collect";
+import { postprocessRun, reconcilePendingResults } from "./steps/postprocess";
 import { stageRun } from "./steps/stage";
 
 /** Step items one handler loop takes per fetch. */
@@ -43,6 +44,7 @@ export async function startWorker(config = loadWorkerConfig()) {
     [RUN_STEP_QUEUES.stage]: stageRun,
     [RUN_STEP_QUEUES.collect]: collectRun,
     [RUN_STEP_QUEUES.cancel]: cancelRunOnHost,
+    [RUN_STEP_QUEUES.postprocess]: postprocessRun,
   } as const;
   for (const [queue, handler] of Object.entries(handlers)) {
     for (let i = 0; i < config.concurrency; i += 1) {
@@ -72,7 +74,8 @@ export async function startWorker(config = loadWorkerConfig()) {
   }
 
   const reattached = await reconcileRunsInFlight(ctx);
-  log.info({ reattached }, "worker started");
+  const resultsPending = await reconcilePendingResults(ctx);
+  log.info({ reattached, resultsPending }, "worker started");
   const onError = (error: unknown) => log.error({ err: error }, "worker timer failed");
   const stopPolling = every(config.pollIntervalMs, () => pollAllHosts(ctx), onError);
   const stopProbing = every(config.holdProbeIntervalMs, () => resumeHeldRuns(ctx), onError);

@@ -11,6 +11,8 @@ export const RUN_STEP_QUEUES = {
   stage: "run-stage",
   collect: "run-collect",
   cancel: "run-cancel",
+  /** Turns a done run's collected files into results (worker/steps/postprocess.ts). */
+  postprocess: "run-postprocess",
 } as const;
 export type RunStepName = keyof typeof RUN_STEP_QUEUES;
 

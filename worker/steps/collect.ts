@@ -1,12 +1,15 @@
 /**
  * `collect`: fetch each stage's declared result files into run_artefacts (sha256 recorded), read the
  * scheduler's accounting, charge the ledger the actual core-hours and release the reservation, and
- * settle the run as done, failed or cancelled — all of it once, in one transaction.
+ * settle the run as done, failed or cancelled — all of it once, in one transaction. A done run's results
+ * are `pending` from then on, and its postprocess item is sent in the same transaction.
  */
 import { createHash } from "node:crypto";
 import { and, eq } from "drizzle-orm";
+import { withClientTransaction } from "../../server/db/client-transaction";
 import { ledgerEntries, runArtifacts, runs, users } from "../../server/db/schema";
 import { transitionRun } from "../../server/execution/run-transitions";
+import { RUN_STEP_QUEUES } from "../../server/queue/queues";
 import { coreHoursFromSeconds } from "../../shared/core-hours";
 import { escapeHtml } from "../../shared/html";
 import type { RunState } from "../../shared/schemas/runs";
@@ -62,7 +65,8 @@ export async function collectRun(ctx: WorkerContext, runId: string): Promise<voi
     const message = charge.overCoreSeconds > 0 ? `${outcome}. ${charge.notice}` : outcome;
     const chargedCoreSeconds = charge.chargedCoreSeconds;
     const source = usage ? "scheduler accounting" : "measured by Sigmaflow";
-    const settled = await ctx.db.transaction(async (tx) => {
+    // On the transaction's own connection, so the postprocess item commits (or not) with the settlement.
+    const settled = await withClientTransaction(ctx.pool, async ({ db: tx, executeSql }) => {
       for (const file of collected) {
         await tx
           .insert(runArtifacts)
@@ -79,7 +83,12 @@ export async function collectRun(ctx: WorkerContext, runId: string): Promise<voi
       const moved = await transitionRun(tx, run.id, ["collecting"], finalState, {
         actor: worker,
         message,
-        set: { chargedCoreSeconds, finishedAt: new Date() },
+        set: {
+          chargedCoreSeconds,
+          finishedAt: new Date(),
+          // A done run's collected files go on to the postprocess step, which settles its results.
+          resultsState: finalState === "done" ? "pending" : null,
+        },
       });
       if (!moved) return false;
       await tx.insert(ledgerEntries).values([
@@ -98,6 +107,13 @@ export async function collectRun(ctx: WorkerContext, runId: string): Promise<voi
           note: "reservation released",
         },
       ]);
+      if (finalState === "done") {
+        await ctx.boss.send(
+          RUN_STEP_QUEUES.postprocess,
+          { runId: run.id },
+          { db: { executeSql: executeSql as never } },
+        );
+      }
       return true;
     });
     if (settled && run.notifyByEmail) await mailSubmitter(ctx, run.id, finalState, message);

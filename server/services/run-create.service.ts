@@ -162,6 +162,8 @@ export async function createRun(
       reusedFrom: reuse?.id ?? null,
       notifyByEmail: spec.notifyByEmail,
       finishedAt: reuse ? new Date() : null,
+      // A reusing run derives its own results (its analysis options may differ) from the reused files.
+      resultsState: reuse ? "pending" : null,
     });
     await tx.insert(runEvents).values({
       runId,
@@ -170,8 +172,11 @@ export async function createRun(
       actorUserId: principal.userId,
       message: reuse ? `Reused the results of run ${reuse.id}` : "Submitted",
     });
-    if (!reuse)
-      await deps.boss.send(RUN_STEP_QUEUES.stage, { runId }, { db: { executeSql: executeSql as never } });
+    await deps.boss.send(
+      reuse ? RUN_STEP_QUEUES.postprocess : RUN_STEP_QUEUES.stage,
+      { runId },
+      { db: { executeSql: executeSql as never } },
+    );
     await recordAudit(tx, {
       actorUserId: principal.userId,
       groupId,

@@ -1,12 +1,21 @@
 /**
- * Every host, account, code, recipe, allocation and run route × every kind of caller gets exactly the
+ * Every host, account, code, recipe, target, allocation and run route × every kind of caller gets exactly the
  * status it should (the same six callers as authorization-matrix.test.ts). Rule being checked (Sigmaflow's access policy): deny by
  * default; a group one does not belong to is a 404, also when reached through a host, code, recipe or
  * allocation id; a role too low is a 403; site admins may do everything.
  */
 import { randomBytes } from "node:crypto";
 import { afterAll, beforeAll } from "vitest";
-import { allocations, codes, hostAccounts, hosts, recipes } from "../../server/db/schema";
+import {
+  allocations,
+  codes,
+  hostAccounts,
+  hosts,
+  recipes,
+  targets,
+  targetVersions,
+} from "../../server/db/schema";
+import { inspectTarget } from "../../shared/science/geometry";
 import {
   type Caller,
   createMatrixCallers,
@@ -32,6 +41,7 @@ let hostId = "";
 let codeId = "";
 let recipeId = "";
 let allocationId = "";
+let targetId = "";
 let yearOffset = 0;
 
 const suffix = () => randomBytes(3).toString("hex");
@@ -90,6 +100,39 @@ async function freshRecipe(): Promise<string> {
       createdBy: groupAdminId,
     })
     .returning();
+  return row!.id;
+}
+
+/** Hydrogen fluoride, r = 0.917 Å (NIST CCCBDB experimental geometry; from memory): a target to point at. */
+const HF_ATOMS = [
+  { symbol: "H", massNumber: null, xAngstrom: 0, yAngstrom: 0, zAngstrom: 0, partialChargeE: null },
+  { symbol: "F", massNumber: null, xAngstrom: 0, yAngstrom: 0, zAngstrom: 0.917, partialChargeE: null },
+];
+
+/** A target entered by `createdBy` (the group admin unless said), written straight into the database. */
+async function freshTarget(createdBy: string | null = groupAdminId): Promise<string> {
+  const derived = inspectTarget({
+    atoms: HF_ATOMS.map((a) => ({
+      symbol: a.symbol,
+      positionAngstrom: [a.xAngstrom, a.yAngstrom, a.zAngstrom],
+    })),
+  });
+  const [row] = await database.db
+    .insert(targets)
+    .values({ groupId, name: `target-${suffix()}`, createdBy })
+    .returning();
+  await database.db.insert(targetVersions).values({
+    targetId: row!.id,
+    version: 1,
+    atoms: HF_ATOMS,
+    charge: 0,
+    multiplicity: 1,
+    derived,
+    formula: derived.formula,
+    pointGroup: derived.pointGroup,
+    abelianSubgroup: derived.abelianSubgroup,
+    createdBy,
+  });
   return row!.id;
 }
 
@@ -273,6 +316,53 @@ const CASES: MatrixCase[] = [
     expected: groupAdminOnly(204),
   },
   {
+    name: "list targets",
+    method: "GET",
+    path: () => `/api/groups/${groupId}/targets`,
+    expected: groupRead(200),
+  },
+  {
+    name: "enter a target",
+    method: "POST",
+    path: () => `/api/groups/${groupId}/targets`,
+    body: () => ({ name: `target-${suffix()}`, xyz: "2\nhydrogen fluoride\nH 0 0 0\nF 0 0 0.917\n" }),
+    expected: groupWrite(201),
+  },
+  { name: "read a target", method: "GET", path: () => `/api/targets/${targetId}`, expected: groupRead(200) },
+  {
+    name: "read a target version",
+    method: "GET",
+    path: () => `/api/targets/${targetId}/versions/1`,
+    expected: groupRead(200),
+  },
+  {
+    name: "change a target (a new version)",
+    method: "PATCH",
+    path: () => `/api/targets/${targetId}`,
+    body: () => ({ notes: `checked ${suffix()}` }),
+    expected: groupWrite(200),
+  },
+  {
+    name: "derive an isotopologue",
+    method: "POST",
+    path: async () => `/api/targets/${await freshTarget()}/isotopologues`,
+    body: () => ({ name: `isotopologue-${suffix()}`, isotopes: [{ atom: 1, massNumber: 2 }] }),
+    expected: groupWrite(201),
+  },
+  {
+    name: "delete a target someone else entered",
+    method: "DELETE",
+    path: async () => `/api/targets/${await freshTarget(groupAdminId)}`,
+    expected: groupAdminOnly(204),
+  },
+  {
+    // As with codes and recipes, the member who entered a target may delete it.
+    name: "delete a target one entered (the member's)",
+    method: "DELETE",
+    path: async () => `/api/targets/${await freshTarget(memberId)}`,
+    expected: groupWrite(204),
+  },
+  {
     name: "list allocations",
     method: "GET",
     path: () => `/api/groups/${groupId}/allocations`,
@@ -304,6 +394,7 @@ beforeAll(async () => {
   hostId = await freshHost();
   codeId = await freshCode();
   recipeId = await freshRecipe();
+  targetId = await freshTarget();
   const [allocation] = await db
     .insert(allocations)
     .values({

@@ -159,6 +159,51 @@ const CASES: MatrixCase[] = [
     body: () => ({}),
     expected: signedIn(422),
   },
+  {
+    name: "read a target that does not exist",
+    method: "GET",
+    path: () => `/api/targets/${randomUUID()}`,
+    expected: signedIn(404),
+  },
+  {
+    name: "change a target that does not exist",
+    method: "PATCH",
+    path: () => `/api/targets/${randomUUID()}`,
+    body: () => ({ notes: "nothing" }),
+    expected: signedIn(404),
+  },
+  {
+    name: "delete a target that does not exist",
+    method: "DELETE",
+    path: () => `/api/targets/${randomUUID()}`,
+    expected: signedIn(404),
+  },
+  {
+    name: "derive an isotopologue of a target that does not exist",
+    method: "POST",
+    path: () => `/api/targets/${randomUUID()}/isotopologues`,
+    body: () => ({ name: "nothing", isotopes: [{ atom: 1, massNumber: 2 }] }),
+    expected: signedIn(404),
+  },
+  {
+    name: "read a version of a target that does not exist",
+    method: "GET",
+    path: () => `/api/targets/${randomUUID()}/versions/1`,
+    expected: signedIn(404),
+  },
+  {
+    name: "list targets",
+    method: "GET",
+    path: () => `/api/groups/${groupId}/targets`,
+    expected: groupRead(200),
+  },
+  {
+    name: "enter a target without atoms",
+    method: "POST",
+    path: () => `/api/groups/${groupId}/targets`,
+    body: () => ({ name: "nothing" }),
+    expected: signedIn(422),
+  },
   { name: "unknown API route", method: "GET", path: () => "/api/nothing-here", expected: everyone(404) },
 ];
 

@@ -267,9 +267,9 @@ describe("target versions, fingerprints and resubmission", () => {
     const original = await sf.api("GET", `/api/runs/${first.id}`);
     expect(original.body).toMatchObject({ targetVersion: 1, fingerprint: first.fingerprint });
 
-    // A new geometry changes the rendered coordinates too.
+    // A new geometry (one O–H bond 0.1 Å longer, so no longer C2v) changes the rendered coordinates too.
     const moved = await sf.api("PATCH", `/api/targets/${water.id}`, {
-      xyz: WATER_XYZ.replace(`H ${WATER_H_X} 0`, `H ${WATER_H_X + 0.01} 0`),
+      xyz: WATER_XYZ.replace(`H ${WATER_H_X} 0 ${WATER_H_Z}`, `H ${WATER_H_X * 1.1} 0 ${WATER_H_Z * 1.1}`),
     });
     expect(moved.status, JSON.stringify(moved.body)).toBe(200);
     const again = await sf.api("POST", `/api/runs/${first.id}/resubmit`, { changes: {} });

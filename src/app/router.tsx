@@ -13,7 +13,8 @@ import { RouteErrorBoundary } from "./routes/route-error-boundary";
 const pages = {
   signIn: async () => (await import("./routes/signin")).SignInRoute,
   landing: async () => (await import("./routes/landing")).LandingRoute,
-  targets: async () => (await import("./routes/groups/areas")).TargetsRoute,
+  targets: async () => (await import("./routes/groups/targets")).TargetsRoute,
+  target: async () => (await import("./routes/groups/targets")).TargetRoute,
   codes: async () => (await import("./routes/groups/codes")).CodesRoute,
   runs: async () => (await import("./routes/groups/runs")).RunsRoute,
   run: async () => (await import("./routes/groups/runs")).RunRoute,
@@ -61,6 +62,7 @@ export function createAppRoutes(queryClient: QueryClient): RouteObject[] {
                       children: [
                         { index: true, loader: ({ params }) => redirect(paths.group(params.groupId ?? "")) },
                         { path: "targets", lazy: { Component: pages.targets } },
+                        { path: "targets/:targetId", lazy: { Component: pages.target } },
                         { path: "codes", lazy: { Component: pages.codes } },
                         { path: "runs", lazy: { Component: pages.runs } },
                         { path: "runs/:runId", lazy: { Component: pages.run } },

@@ -25,6 +25,8 @@ export const paths = {
   signIn: () => "/signin",
   group: (groupId: string, section: GroupSection = DEFAULT_GROUP_SECTION) =>
     `/groups/${encodeURIComponent(groupId)}/${section}`,
+  target: (groupId: string, targetId: string) =>
+    `/groups/${encodeURIComponent(groupId)}/targets/${encodeURIComponent(targetId)}`,
   run: (groupId: string, runId: string) =>
     `/groups/${encodeURIComponent(groupId)}/runs/${encodeURIComponent(runId)}`,
   invitation: (token: string) => `/invitations/${encodeURIComponent(token)}`,

@@ -3,6 +3,7 @@ import { Link, useNavigate, useParams } from "react-router-dom";
 import { ErrorState } from "@/components/ui/error-state";
 import { PageHeader } from "@/components/ui/page-header";
 import { TableSkeleton } from "@/components/ui/skeleton";
+import { RunResults } from "@/features/results/components/run-results";
 import { runQueries } from "@/features/runs/api/run-queries";
 import { RunActions } from "@/features/runs/components/run-actions";
 import { RunDetailView } from "@/features/runs/components/run-detail";
@@ -58,7 +59,7 @@ export function RunRoute() {
           <RunActions run={run.data} onResubmitted={(id) => navigate(paths.run(groupId, id))} />
         </div>
       ) : null}
-      <RunDetailView run={run.data} />
+      <RunDetailView run={run.data} results={<RunResults runId={run.data.id} />} />
     </>
   );
 }

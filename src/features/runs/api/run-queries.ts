@@ -1,6 +1,8 @@
 import {
+  codeSchema,
   FINAL_RUN_STATES,
   type RunSummary,
+  recipeSchema,
   runDetailSchema,
   runListSchema,
   runLogSchema,
@@ -32,6 +34,33 @@ export const runQueries = {
       queryFn: ({ signal }) => api.get(`/api/runs/${encodeURIComponent(runId)}`, runDetailSchema, { signal }),
       refetchInterval: (query) =>
         query.state.data && !isFinished(query.state.data) ? REFRESH_WHILE_ACTIVE_MS : false,
+    }),
+  /**
+   * The declared parameters (JSON Schema) of each stage's code in a recipe, for editing a run's
+   * parameters before resubmitting it. Codes are immutable per version, so this is fetched once.
+   */
+  stageParameters: (recipeId: string) =>
+    queryOptions({
+      queryKey: [...runQueries.all, "stage-parameters", recipeId] as const,
+      queryFn: async ({ signal }) => {
+        const recipe = await api.get(`/api/recipes/${encodeURIComponent(recipeId)}`, recipeSchema, {
+          signal,
+        });
+        return Promise.all(
+          recipe.stages.map(async (stage) => {
+            const code = await api.get(`/api/codes/${encodeURIComponent(stage.codeId)}`, codeSchema, {
+              signal,
+            });
+            return {
+              stage: stage.name,
+              codeName: stage.codeName,
+              codeVersion: stage.codeVersion,
+              parameters: code.definition.parameters,
+            };
+          }),
+        );
+      },
+      staleTime: Number.POSITIVE_INFINITY,
     }),
   /**
    * The stored log, read page by page by sequence number. A refresh asks only for chunks after the last

@@ -1,20 +1,26 @@
-import type { RunSummary } from "@shared/schemas";
+import type { RunSpec, RunSummary } from "@shared/schemas";
 import { useMutation, useQueryClient } from "@tanstack/react-query";
+import { useState } from "react";
 import { Button } from "@/components/ui/button";
 import { Notice } from "@/components/ui/notice";
 import { describeError } from "@/lib/describe-error";
 import { cancelRun, resubmitRun } from "../api/run-commands";
 import { isFinished, runQueries } from "../api/run-queries";
+import { ResubmitDialog } from "./resubmit-dialog";
 
-/** Cancel while a run is unfinished, resubmit once it is; errors (allocation, host key) are shown as sent. */
+/**
+ * Cancel while a run is unfinished, resubmit once it is — as it was, or (where the run's spec is at hand,
+ * on its page) with changed parameters; errors (allocation, host key) are shown as sent.
+ */
 export function RunActions({
   run,
   onResubmitted,
 }: {
-  run: RunSummary;
+  run: RunSummary & { spec?: RunSpec };
   onResubmitted?: (id: string) => void;
 }) {
   const queryClient = useQueryClient();
+  const [editing, setEditing] = useState(false);
   const refresh = () => queryClient.invalidateQueries({ queryKey: runQueries.all });
   const cancel = useMutation({ mutationFn: () => cancelRun(run.id), onSuccess: refresh });
   const resubmit = useMutation({
@@ -25,18 +31,26 @@ export function RunActions({
     },
   });
   const failure = cancel.error ?? resubmit.error;
+  const spec = run.spec;
   return (
     <div className="flex flex-col items-end gap-2">
       <div className="flex gap-2">
         {isFinished(run) ? (
-          <Button
-            size="sm"
-            variant="secondary"
-            onClick={() => resubmit.mutate()}
-            disabled={resubmit.isPending}
-          >
-            Resubmit
-          </Button>
+          <>
+            <Button
+              size="sm"
+              variant="secondary"
+              onClick={() => resubmit.mutate()}
+              disabled={resubmit.isPending}
+            >
+              Resubmit
+            </Button>
+            {spec ? (
+              <Button size="sm" variant="secondary" onClick={() => setEditing(true)} aria-haspopup="dialog">
+                Resubmit with changes…
+              </Button>
+            ) : null}
+          </>
         ) : (
           <Button
             size="sm"
@@ -52,6 +66,13 @@ export function RunActions({
         <Notice tone="error" className="max-w-sm text-left">
           {describeError(failure).message}
         </Notice>
+      ) : null}
+      {editing && spec ? (
+        <ResubmitDialog
+          run={{ id: run.id, name: run.name, recipeId: run.recipeId, spec }}
+          onClose={() => setEditing(false)}
+          onResubmitted={onResubmitted}
+        />
       ) : null}
     </div>
   );

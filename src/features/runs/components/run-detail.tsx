@@ -1,5 +1,6 @@
 import type { RunDetail } from "@shared/schemas";
 import { useQuery } from "@tanstack/react-query";
+import type { ReactNode } from "react";
 import { Card, CardBody } from "@/components/ui/card";
 import { Table, TBody, TD, TH, THead, TR } from "@/components/ui/table";
 import { apiUrl } from "@/lib/api-client";
@@ -9,6 +10,7 @@ import { formatCoreHours } from "../format-core-hours";
 import { RunOrigin } from "./run-origin";
 import { RunProgress } from "./run-progress";
 import { RunStateBadge } from "./run-state-badge";
+import { RunTarget } from "./run-target";
 
 function Section({ title, children }: { title: string; children: React.ReactNode }) {
   return (
@@ -20,10 +22,11 @@ function Section({ title, children }: { title: string; children: React.ReactNode
 }
 
 /**
- * A run's progress, history, per-symmetry timings, collected files and log, refreshed while it is
- * unfinished. A run that reused results shows the files, timings and log of the run that produced them.
+ * A run's progress, history, per-symmetry timings, results, collected files and log, refreshed while it
+ * is unfinished. A run that reused results shows the files, timings and log of the run that produced them.
+ * `results` (the results feature's view, composed by the page) is shown once the run is done.
  */
-export function RunDetailView({ run }: { run: RunDetail }) {
+export function RunDetailView({ run, results }: { run: RunDetail; results?: ReactNode }) {
   const log = useQuery(runQueries.log(run.id, isFinished(run)));
   return (
     <>
@@ -49,6 +52,10 @@ export function RunDetailView({ run }: { run: RunDetail }) {
             <div className="truncate font-mono text-xs" title={run.fingerprint}>
               {run.fingerprint.slice(0, 16)}…
             </div>
+          </div>
+          <div className="sm:col-span-4">
+            <div className="text-xs text-ink-500">Target</div>
+            <RunTarget run={run} />
           </div>
           {run.progress ? (
             <div className="sm:col-span-4">
@@ -115,6 +122,8 @@ export function RunDetailView({ run }: { run: RunDetail }) {
           </Table>
         </Section>
       ) : null}
+
+      {run.state === "done" && results ? <Section title="Results">{results}</Section> : null}
 
       <Section title="Collected files">
         {run.artifacts.length === 0 ? (

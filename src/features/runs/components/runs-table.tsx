@@ -11,6 +11,7 @@ import { runQueries } from "../api/run-queries";
 import { formatCoreHours as coreHours } from "../format-core-hours";
 import { RunActions } from "./run-actions";
 import { RunStateBadge } from "./run-state-badge";
+import { RunTarget } from "./run-target";
 
 export function RunsTable({
   groupId,
@@ -52,7 +53,15 @@ export function RunsTable({
               <Link to={paths.run(groupId, run.id)} className="font-medium text-flux-800 hover:underline">
                 {run.name}
               </Link>
-              <div className="text-xs text-ink-500">{run.submittedByName ?? "—"}</div>
+              <div className="text-xs text-ink-500">
+                {run.targetId ? (
+                  <>
+                    <RunTarget run={run} />
+                    {" · "}
+                  </>
+                ) : null}
+                {run.submittedByName ?? "—"}
+              </div>
             </TD>
             <TD>
               <RunStateBadge state={run.state} />

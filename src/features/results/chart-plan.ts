@@ -1,0 +1,124 @@
+import type { ArrheniusFitResult, Result, ResultKind, ResultProcess } from "@shared/schemas";
+import { columnLabel, resultTitle } from "./result-labels";
+
+/** The results of one kind for one process: drawn on one chart, the whole (sum, total) in bold. */
+export type ResultGroup = {
+  key: string;
+  kind: ResultKind;
+  process: ResultProcess;
+  title: string;
+  /** The whole first (a sum over irreps, a total over orbitals), then its parts in the API's order. */
+  rows: Result[];
+};
+
+const KIND_ORDER: readonly ResultKind[] = [
+  "cross-section",
+  "eigenphase-sum",
+  "rate-coefficient",
+  "orbital-table",
+];
+
+const isWhole = (result: Result) => result.irrep === null && result.label === "";
+
+/** Results grouped by kind and process, cross sections first, rates after eigenphase sums. */
+export function groupResults(results: readonly Result[]): ResultGroup[] {
+  const groups = new Map<string, ResultGroup>();
+  for (const result of results) {
+    const key = `${result.kind}/${result.process}`;
+    let group = groups.get(key);
+    if (!group) {
+      group = {
+        key,
+        kind: result.kind,
+        process: result.process,
+        title: resultTitle(result.kind, result.process),
+        rows: [],
+      };
+      groups.set(key, group);
+    }
+    group.rows.push(result);
+  }
+  return [...groups.values()]
+    .map((group) => ({
+      ...group,
+      rows: [...group.rows.filter(isWhole), ...group.rows.filter((r) => !isWhole(r))],
+    }))
+    .sort((a, b) => KIND_ORDER.indexOf(a.kind) - KIND_ORDER.indexOf(b.kind));
+}
+
+/** How one result row is named in a legend or table caption. */
+export function partName(result: Result, group: ResultGroup): string {
+  if (!isWhole(result)) return [result.irrep, result.label].filter(Boolean).join(" ");
+  if (group.rows.length === 1) return columnLabel(result.columnOrder[1] ?? "").quantity || group.title;
+  return group.rows.some((row) => row.irrep !== null) ? "Sum over irreps" : "Total";
+}
+
+export type ChartSeries = {
+  name: string;
+  /** The whole (sum or total) is drawn bold over its parts. */
+  bold: boolean;
+  x: number[];
+  y: number[];
+  fit: ArrheniusFitResult | null;
+};
+
+export type ChartPlan = {
+  title: string;
+  xLabel: string;
+  yLabel: string;
+  logX: boolean;
+  logY: boolean;
+  series: ChartSeries[];
+  /** Points not drawn: not finite, or at or below zero on a logarithmic axis. The table keeps them. */
+  leftOut: number;
+};
+
+/** Axes per kind: σ(E) and k(T) span decades (log–log); eigenphase sums are angles (linear). */
+const AXES: Record<ResultKind, { logX: boolean; logY: boolean } | null> = {
+  "cross-section": { logX: true, logY: true },
+  "eigenphase-sum": { logX: false, logY: false },
+  "rate-coefficient": { logX: true, logY: true },
+  "orbital-table": null,
+};
+
+/**
+ * What a group's chart draws: the first column against the second of each row. Points a logarithmic
+ * axis cannot show (zero, negative) and non-finite values are left out and counted, so the chart never
+ * receives a value it cannot place and the page can say how many are missing. Null when the group is
+ * not drawn (orbital tables) or has no row with two columns.
+ */
+export function chartPlan(group: ResultGroup): ChartPlan | null {
+  const axes = AXES[group.kind];
+  const drawable = group.rows.filter((row) => row.columnOrder.length >= 2);
+  const first = drawable[0];
+  if (!axes || !first) return null;
+  let leftOut = 0;
+  const series = drawable.map((row): ChartSeries => {
+    const xs = row.columns[row.columnOrder[0]!] ?? [];
+    const ys = row.columns[row.columnOrder[1]!] ?? [];
+    const x: number[] = [];
+    const y: number[] = [];
+    const count = Math.min(xs.length, ys.length);
+    for (let i = 0; i < count; i++) {
+      const xi = xs[i]!;
+      const yi = ys[i]!;
+      const placeable =
+        Number.isFinite(xi) && Number.isFinite(yi) && (!axes.logX || xi > 0) && (!axes.logY || yi > 0);
+      if (placeable) {
+        x.push(xi);
+        y.push(yi);
+      } else {
+        leftOut++;
+      }
+    }
+    return { name: partName(row, group), bold: isWhole(row) && drawable.length > 1, x, y, fit: row.fit };
+  });
+  return {
+    title: group.title,
+    xLabel: columnLabel(first.columnOrder[0]!).text,
+    yLabel: columnLabel(first.columnOrder[1]!).text,
+    ...axes,
+    series,
+    leftOut,
+  };
+}

@@ -1,0 +1,97 @@
+import { useMemo } from "react";
+import { Card, CardBody } from "@/components/ui/card";
+import { chartPlan, partName, type ResultGroup } from "../chart-plan";
+import { formatSignificant } from "../format-number";
+import { LazyResultChart } from "./lazy-result-chart";
+import { ResultTable } from "./result-table";
+
+/** The modified-Arrhenius parameters of a rate, as reaction networks take them. */
+function FitParameters({
+  name,
+  fit,
+}: {
+  name: string;
+  fit: NonNullable<ResultGroup["rows"][number]["fit"]>;
+}) {
+  return (
+    <div className="text-sm">
+      <p className="text-xs text-ink-500">
+        {name}: k(T) = α (T/300 K)<sup>β</sup> exp(−γ/T), fitted over {formatSignificant(fit.minTemperatureK)}
+        –{formatSignificant(fit.maxTemperatureK)} K
+      </p>
+      <dl className="mt-1 flex flex-wrap gap-x-6 gap-y-1 font-mono text-xs">
+        <div>
+          <dt className="inline">α = </dt>
+          <dd className="inline">{formatSignificant(fit.alpha_cm3_per_s)} cm³ s⁻¹</dd>
+        </div>
+        <div>
+          <dt className="inline">β = </dt>
+          <dd className="inline">{formatSignificant(fit.beta)}</dd>
+        </div>
+        <div>
+          <dt className="inline">γ = </dt>
+          <dd className="inline">{formatSignificant(fit.gamma_K)} K</dd>
+        </div>
+        <div>
+          <dt className="inline">largest deviation from the computed rates: </dt>
+          <dd className="inline">{formatSignificant(fit.maxRelativeDeviation * 100, 2)} %</dd>
+        </div>
+      </dl>
+    </div>
+  );
+}
+
+/** One kind of result for one process: how it was derived, its chart, fit parameters and numbers. */
+export function ResultGroupCard({ group }: { group: ResultGroup }) {
+  const plan = useMemo(() => chartPlan(group), [group]);
+  const methods = [...new Set(group.rows.map((row) => row.method))];
+  const fits = group.rows.flatMap((row) => (row.fit ? [{ row, fit: row.fit }] : []));
+  const headingId = `result-${group.key.replace(/[^a-z0-9]+/gi, "-")}`;
+  return (
+    <Card>
+      <CardBody className="flex flex-col gap-4">
+        <div>
+          <h3 id={headingId} className="text-sm font-semibold text-ink-900">
+            {group.title}
+          </h3>
+          {methods.map((method) => (
+            <p key={method} className="mt-1 text-xs text-ink-600">
+              {method}
+            </p>
+          ))}
+        </div>
+        {plan ? <LazyResultChart plan={plan} /> : null}
+        {plan && plan.leftOut > 0 ? (
+          <p className="text-xs text-ink-600">
+            {plan.leftOut} {plan.leftOut === 1 ? "value is" : "values are"} not drawn:{" "}
+            {plan.logX || plan.logY
+              ? "zero, negative or not finite, which a logarithmic axis cannot show"
+              : "not finite"}
+            . The table lists every value.
+          </p>
+        ) : null}
+        {fits.map(({ row, fit }) => (
+          <FitParameters key={row.id} name={partName(row, group)} fit={fit} />
+        ))}
+        <details className="group">
+          <summary className="cursor-pointer text-sm font-medium text-flux-800">
+            Numbers ({group.rows.length === 1 ? "1 table" : `${group.rows.length} tables`})
+          </summary>
+          <div className="mt-3 flex flex-col gap-4">
+            {group.rows.map((row) => {
+              const caption = `${group.title}: ${partName(row, group)}`;
+              return (
+                <div key={row.id}>
+                  {group.rows.length > 1 ? (
+                    <p className="mb-1 text-xs font-medium text-ink-700">{partName(row, group)}</p>
+                  ) : null}
+                  <ResultTable result={row} caption={caption} />
+                </div>
+              );
+            })}
+          </div>
+        </details>
+      </CardBody>
+    </Card>
+  );
+}

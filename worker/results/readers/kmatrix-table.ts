@@ -114,11 +114,14 @@ export function readKMatrixTable(text: string, fileName = KMATRIX_FILE_NAME): KM
   let current: (KMatrixIrrep & { expectedChannels: number }) | null = null;
 
   const lines = text.split(/\r?\n/);
+  /** The last line with content: where a file cut short is reported. */
+  let lastLine = 0;
   for (let index = 0; index < lines.length; index++) {
     const lineNumber = index + 1;
     const raw = lines[index]!;
     const trimmed = raw.trim();
     if (trimmed === "" || trimmed.startsWith("#")) continue;
+    lastLine = lineNumber;
     const tokens = trimmed.split(/\s+/);
     const head = tokens[0]!;
 
@@ -312,7 +315,6 @@ export function readKMatrixTable(text: string, fileName = KMATRIX_FILE_NAME): KM
     );
   }
 
-  const lastLine = lines.length;
   if (!formatSeen)
     throw new ResultReadError(fileName, null, 'the file is empty (no "format sigmaflow-kmatrix 1" line)');
   if (model === null) throw new ResultReadError(fileName, null, "the model line is missing");

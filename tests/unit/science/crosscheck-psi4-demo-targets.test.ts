@@ -1,5 +1,8 @@
 import { electronCount } from "@shared/science/geometry";
 import { describe, expect, it } from "vitest";
+import { outputRuleProblems } from "../../../server/execution/output-rule-checks";
+import { validateParameters } from "../../../server/execution/parameters";
+import { checkCodeTemplates } from "../../../server/execution/templates/render";
 import { compileUserPattern } from "../../../server/execution/user-patterns";
 import { readOrbitalTable } from "../../../worker/results/readers/orbital-table";
 import { type DemoTargetCase, demoTargetCases } from "./support/demo-targets";
@@ -62,6 +65,26 @@ describe("cross-check: demo targets through hf-orbitals and psi4", () => {
       "Heavy water",
       "Monodeuteromethane",
     ]);
+  });
+
+  it("hf-orbitals registers cleanly and its parameters schema keeps values out of the input's syntax", () => {
+    expect(checkCodeTemplates(hfOrbitalsDefinition)).toEqual([]);
+    expect(outputRuleProblems(hfOrbitalsDefinition.outputRules)).toEqual([]);
+    const defaults = validateParameters(hfOrbitalsDefinition, {});
+    expect(defaults).toEqual({
+      valid: true,
+      parameters: { basis: "cc-pvdz", frequencies: false, scfConvergence: 1e-8 },
+    });
+    // Strings reach psi4's input unquoted, so only the schema's enums may be strings.
+    for (const hostile of [
+      { basis: "sto-3g\nimport os" },
+      { basis: "sto-3g }" },
+      { reference: "rhf; x" },
+      { scfConvergence: "1e-8" },
+      { target: {} },
+    ]) {
+      expect(validateParameters(hfOrbitalsDefinition, hostile).valid, JSON.stringify(hostile)).toBe(false);
+    }
   });
 
   it.each(cases.map((c) => [c.name, c] as const))(

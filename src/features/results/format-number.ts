@@ -14,8 +14,8 @@ const SUPERSCRIPT: Record<string, string> = {
 };
 
 /**
- * A number with `digits` significant digits, trailing zeros dropped: plain between 10⁻³ and 10⁵
- * ("0.1234", "1234"), otherwise in powers of ten ("1.234 × 10⁻¹²"), as tables of cross sections and
+ * A number with `digits` significant digits, trailing zeros dropped: plain between 10⁻³ and 10⁶
+ * ("0.1234", "1234", "100000"), otherwise in powers of ten ("1.234 × 10⁻¹²"), as tables of cross sections and
  * rates are printed.
  */
 export function formatSignificant(value: number, digits = 4): string {
@@ -24,7 +24,7 @@ export function formatSignificant(value: number, digits = 4): string {
   if (value === 0) return "0";
   const magnitude = Math.abs(value);
   const sign = value < 0 ? "−" : "";
-  if (magnitude >= 1e-3 && magnitude < 1e5) {
+  if (magnitude >= 1e-3 && magnitude < 1e6) {
     return `${sign}${String(Number(magnitude.toPrecision(digits)))}`;
   }
   const [mantissa = "", exponent = ""] = magnitude.toExponential(digits - 1).split("e");

@@ -12,6 +12,7 @@ import {
   hostAccounts,
   hosts,
   recipes,
+  runs,
   targets,
   targetVersions,
 } from "../../server/db/schema";
@@ -141,6 +142,32 @@ function freshPeriod() {
   yearOffset += 1;
   const year = 2100 + yearOffset;
   return { startsAt: `${year}-01-01T00:00:00Z`, endsAt: `${year}-01-02T00:00:00Z` };
+}
+
+/** A done run of the group, written straight into the database (its results are read, never derived here). */
+async function freshRun(): Promise<string> {
+  const [row] = await database.db
+    .insert(runs)
+    .values({
+      groupId,
+      recipeId,
+      hostId,
+      hostAccountId: await freshGroupAccount(),
+      allocationId,
+      name: `run-${suffix()}`,
+      spec: {},
+      plan: { scriptName: "job.sh", logName: "job.log", stages: [], files: [] },
+      fingerprint: "0".repeat(64),
+      state: "done",
+      cores: 1,
+      wallTimeMinutes: 1,
+      reservedCoreSeconds: 0,
+      remoteDir: "/scratch/run",
+      submitToken: `sf-${suffix()}${suffix()}`,
+      resultsState: "none",
+    })
+    .returning();
+  return row!.id;
 }
 
 const CASES: MatrixCase[] = [
@@ -374,6 +401,12 @@ const CASES: MatrixCase[] = [
     path: () => `/api/groups/${groupId}/allocations`,
     body: () => ({ name: `grant ${suffix()}`, coreHours: 10, ...freshPeriod() }),
     expected: groupAdminOnly(201),
+  },
+  {
+    name: "read a run's results",
+    method: "GET",
+    path: async () => `/api/runs/${await freshRun()}/results`,
+    expected: groupRead(200),
   },
   {
     name: "read an allocation's ledger",

@@ -418,6 +418,17 @@ describe("radial-scatter, Sigmaflow's demo scattering code", () => {
       "at most 100000",
     ],
     [
+      "a kmatrices.txt larger than Sigmaflow reads (50 MiB)",
+      {
+        model: "hard-sphere",
+        target: closedShell("C1"),
+        lmax: 30,
+        energiesEv: Array.from({ length: 100 }, (_, i) => 1 + i),
+        radiusBohr: 1,
+      },
+      "Sigmaflow reads at most 50 MiB",
+    ],
+    [
       "irreps out of Cotton order",
       {
         model: "hard-sphere",

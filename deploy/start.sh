@@ -1,7 +1,8 @@
 #!/usr/bin/env bash
 # Starts Sigmaflow for development on this machine: installs what is missing, starts a project-local
 # PostgreSQL, applies migrations, seeds the demo scenario, starts the fake identity provider, the fake
-# mail sink, the development cluster host (registered for the Kestrel group), the server and the worker.
+# mail sink, the development cluster host (registered for the Kestrel group), the server and the worker,
+# then the demo targets, codes and recipes, and queues the demo runs (see deploy/demo/seed-science.ts).
 # A service that exits is started again after a back-off (1 s doubling to 30 s; see sf_supervise in lib.sh),
 # with a line here and in its log. Ctrl-C or SIGTERM stops everything it started; a second start reuses
 # the data in .data/ (or SIGMAFLOW_DATA_DIR).
@@ -55,6 +56,8 @@ node --import tsx deploy/demo/seed-cluster.ts
 sf_supervise server "$LOG_DIR/server.log" node --import tsx server/index.ts
 sf_supervise worker "$LOG_DIR/worker.log" node --import tsx worker/index.ts
 sf_wait_for_port "$APP_PORT" server 60
+# Demo targets, codes, recipes and a few runs of both demo recipes, computed by the worker right away.
+node --import tsx deploy/demo/seed-science.ts
 
 node --import tsx deploy/demo/banner.ts
 sf_log "running; logs in $LOG_DIR. Ctrl-C stops everything."

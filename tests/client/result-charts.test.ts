@@ -5,10 +5,18 @@
  */
 import { describe, expect, it } from "vitest";
 import { alignSeries } from "@/features/results/chart-data";
-import { chartPlan, groupResults } from "@/features/results/chart-plan";
+import { chartPlan, groupMethods, groupResults } from "@/features/results/chart-plan";
 import { formatSignificant } from "@/features/results/format-number";
 import { columnLabel } from "@/features/results/result-labels";
-import { elasticA1, elasticB2, elasticRate, elasticSum } from "./support/result-fixtures";
+import {
+  elasticA1,
+  elasticB2,
+  elasticRate,
+  elasticSum,
+  ionization1b1,
+  ionization3a1,
+  ionizationTotal,
+} from "./support/result-fixtures";
 
 describe("column labels", () => {
   it.each([
@@ -53,6 +61,18 @@ describe("chart plans", () => {
     ]);
     expect(plan.leftOut).toBe(1);
     expect(plan.logX && plan.logY).toBe(true);
+  });
+
+  it("draws BEB's orbitals with their total in bold, named by orbital, and shows the total's method", () => {
+    const [group] = groupResults([ionization1b1, ionizationTotal, ionization3a1]);
+    const plan = chartPlan(group!)!;
+    expect(plan.series.map((s) => [s.name, s.bold])).toEqual([
+      ["Total", true],
+      ["1b1", false],
+      ["3a1", false],
+    ]);
+    expect(plan.leftOut).toBe(1);
+    expect(groupMethods(group!)).toEqual([ionizationTotal.method]);
   });
 
   it("keeps zero and negative values on a linear axis (eigenphase sums)", () => {

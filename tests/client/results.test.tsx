@@ -11,7 +11,7 @@ import type { ChartPlan } from "@/features/results/chart-plan";
 import { installFakeApi } from "./support/fake-api";
 import { KESTREL_ID, kestrel, people } from "./support/fixtures";
 import { renderApp } from "./support/render-app";
-import { derivedResults } from "./support/result-fixtures";
+import { derivedResults, ionizationResults } from "./support/result-fixtures";
 import { kestrelRuns, RUN_IDS } from "./support/run-fixtures";
 import { server } from "./support/server";
 
@@ -114,6 +114,35 @@ describe("results of a finished run", () => {
     expect(fit).toHaveTextContent("β = 0.5");
     expect(fit).toHaveTextContent("γ = 120 K");
     expect(fit).toHaveTextContent("largest deviation from the computed rates: 3.1 %");
+  });
+
+  it("shows BEB per orbital with its total and the orbital table as one table", async () => {
+    install();
+    serveResults([ionizationResults()]);
+    const { user } = renderApp(runPath);
+    const heading = await screen.findByRole("heading", { name: "Ionization cross section" });
+    const card = heading.closest("section") as HTMLElement;
+    // The total's method once; each orbital's B, U, N only with its own numbers.
+    expect(within(card).getByText(/sum over 2 occupied orbitals/)).toBeVisible();
+    expect(
+      within(card)
+        .getByText(/orbital 1b1: B = 13.85 eV/)
+        .closest("details"),
+    ).not.toHaveAttribute("open");
+    await user.click(within(card).getByText("Numbers (3 tables)"));
+    expect(within(card).getByRole("table", { name: "Ionization cross section: 1b1" })).toBeInTheDocument();
+    expect(within(card).getByRole("table", { name: "Ionization cross section: Total" })).toBeInTheDocument();
+
+    const table = screen.getByRole("table", { name: "Orbitals used by the ionization model" });
+    expect(
+      within(table)
+        .getAllByRole("row")
+        .map((row) => row.textContent),
+    ).toEqual([
+      "OrbitalIrrepOrbital energy (eV)Binding energy (eV)Kinetic energy (eV)Occupation (electrons)",
+      "1b1B1−13.8513.8559.522",
+      "3a1A1−15.8715.8761.912",
+    ]);
   });
 
   it("says results are being derived and asks again until they are", async () => {

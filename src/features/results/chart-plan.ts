@@ -48,9 +48,19 @@ export function groupResults(results: readonly Result[]): ResultGroup[] {
 
 /** How one result row is named in a legend or table caption. */
 export function partName(result: Result, group: ResultGroup): string {
-  if (!isWhole(result)) return [result.irrep, result.label].filter(Boolean).join(" ");
+  // An orbital's label ("1b1") already names its irrep.
+  if (!isWhole(result)) return result.label || result.irrep || "";
   if (group.rows.length === 1) return columnLabel(result.columnOrder[1] ?? "").quantity || group.title;
-  return group.rows.some((row) => row.irrep !== null) ? "Sum over irreps" : "Total";
+  return group.rows.some((row) => row.label === "" && row.irrep !== null) ? "Sum over irreps" : "Total";
+}
+
+/**
+ * The method lines shown once for a group: those of its whole (sum, total) when it has one, else every
+ * distinct one. Parts whose method says more (BEB per orbital: its B, U, N) show theirs with their table.
+ */
+export function groupMethods(group: ResultGroup): string[] {
+  const wholes = group.rows.filter(isWhole);
+  return [...new Set((wholes.length > 0 ? wholes : group.rows).map((row) => row.method))];
 }
 
 export type ChartSeries = {

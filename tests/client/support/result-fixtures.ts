@@ -79,3 +79,61 @@ export function derivedResults(): RunResults {
     results: [elasticRate, elasticA1, elasticB2, elasticSum],
   };
 }
+
+const BEB_MODEL = "Binary-Encounter-Bethe model, from the run's orbital table";
+
+/** BEB ionization: the total over orbitals and each orbital's part, with its own B, U, N in its method. */
+export const ionizationTotal = result({
+  id: "7e50c000-0000-4000-8000-000000000011",
+  kind: "cross-section",
+  process: "ionization",
+  columns: { energy_eV: [15, 100, 1000], cross_section_A2: [0.05, 2.1, 0.9] },
+  columnOrder: ["energy_eV", "cross_section_A2"],
+  method: `${BEB_MODEL}; sum over 2 occupied orbitals.`,
+});
+export const ionization1b1 = result({
+  id: "7e50c000-0000-4000-8000-000000000012",
+  kind: "cross-section",
+  process: "ionization",
+  irrep: "B1",
+  label: "1b1",
+  columns: { energy_eV: [15, 100, 1000], cross_section_A2: [0.05, 1.2, 0.5] },
+  columnOrder: ["energy_eV", "cross_section_A2"],
+  method: `${BEB_MODEL}; orbital 1b1: B = 13.85 eV, U = 59.52 eV, N = 2.`,
+});
+export const ionization3a1 = result({
+  id: "7e50c000-0000-4000-8000-000000000013",
+  kind: "cross-section",
+  process: "ionization",
+  irrep: "A1",
+  label: "3a1",
+  columns: { energy_eV: [15, 100, 1000], cross_section_A2: [0, 0.9, 0.4] },
+  columnOrder: ["energy_eV", "cross_section_A2"],
+  method: `${BEB_MODEL}; orbital 3a1: B = 15.87 eV, U = 61.91 eV, N = 2.`,
+});
+
+function orbital(id: string, irrep: string, label: string, values: [number, number, number, number]) {
+  return result({
+    id,
+    kind: "orbital-table",
+    process: "orbitals",
+    irrep,
+    label,
+    columns: {
+      orbital_energy_eV: [values[0]],
+      binding_energy_eV: [values[1]],
+      kinetic_energy_eV: [values[2]],
+      occupation_electrons: [values[3]],
+    },
+    columnOrder: ["orbital_energy_eV", "binding_energy_eV", "kinetic_energy_eV", "occupation_electrons"],
+    method: "Orbital energies from the run's orbital table; B = −ε (Koopmans' theorem, common practice).",
+  });
+}
+export const orbitals = [
+  orbital("7e50c000-0000-4000-8000-000000000021", "B1", "1b1", [-13.85, 13.85, 59.52, 2]),
+  orbital("7e50c000-0000-4000-8000-000000000022", "A1", "3a1", [-15.87, 15.87, 61.91, 2]),
+];
+
+export function ionizationResults(): RunResults {
+  return { ...derivedResults(), results: [...orbitals, ionization1b1, ionizationTotal, ionization3a1] };
+}

@@ -1,9 +1,9 @@
 import { useMemo } from "react";
 import { Card, CardBody } from "@/components/ui/card";
-import { chartPlan, partName, type ResultGroup } from "../chart-plan";
+import { chartPlan, groupMethods, partName, type ResultGroup } from "../chart-plan";
 import { formatSignificant } from "../format-number";
 import { LazyResultChart } from "./lazy-result-chart";
-import { ResultTable } from "./result-table";
+import { ResultRowsTable, ResultTable } from "./result-table";
 
 /** The modified-Arrhenius parameters of a rate, as reaction networks take them. */
 function FitParameters({
@@ -44,7 +44,7 @@ function FitParameters({
 /** One kind of result for one process: how it was derived, its chart, fit parameters and numbers. */
 export function ResultGroupCard({ group }: { group: ResultGroup }) {
   const plan = useMemo(() => chartPlan(group), [group]);
-  const methods = [...new Set(group.rows.map((row) => row.method))];
+  const methods = groupMethods(group);
   const fits = group.rows.flatMap((row) => (row.fit ? [{ row, fit: row.fit }] : []));
   const headingId = `result-${group.key.replace(/[^a-z0-9]+/gi, "-")}`;
   return (
@@ -73,24 +73,28 @@ export function ResultGroupCard({ group }: { group: ResultGroup }) {
         {fits.map(({ row, fit }) => (
           <FitParameters key={row.id} name={partName(row, group)} fit={fit} />
         ))}
-        <details className="group">
-          <summary className="cursor-pointer text-sm font-medium text-flux-800">
-            Numbers ({group.rows.length === 1 ? "1 table" : `${group.rows.length} tables`})
-          </summary>
-          <div className="mt-3 flex flex-col gap-4">
-            {group.rows.map((row) => {
-              const caption = `${group.title}: ${partName(row, group)}`;
-              return (
+        {group.kind === "orbital-table" ? (
+          <ResultRowsTable results={group.rows} caption={group.title} />
+        ) : (
+          <details className="group">
+            <summary className="cursor-pointer text-sm font-medium text-flux-800">
+              Numbers ({group.rows.length === 1 ? "1 table" : `${group.rows.length} tables`})
+            </summary>
+            <div className="mt-3 flex flex-col gap-4">
+              {group.rows.map((row) => (
                 <div key={row.id}>
                   {group.rows.length > 1 ? (
                     <p className="mb-1 text-xs font-medium text-ink-700">{partName(row, group)}</p>
                   ) : null}
-                  <ResultTable result={row} caption={caption} />
+                  {methods.includes(row.method) ? null : (
+                    <p className="mb-1 text-xs text-ink-600">{row.method}</p>
+                  )}
+                  <ResultTable result={row} caption={`${group.title}: ${partName(row, group)}`} />
                 </div>
-              );
-            })}
-          </div>
-        </details>
+              ))}
+            </div>
+          </details>
+        )}
       </CardBody>
     </Card>
   );

@@ -33,3 +33,39 @@ export function ResultTable({ result, caption }: { result: Result; caption: stri
     </Table>
   );
 }
+
+/**
+ * Results of one value per column (an orbital table: one result per orbital) as one table, a row per
+ * result named by its label and irrep.
+ */
+export function ResultRowsTable({ results, caption }: { results: readonly Result[]; caption: string }) {
+  const names = results[0]?.columnOrder ?? [];
+  return (
+    <Table caption={caption}>
+      <THead>
+        <TR>
+          <TH className="px-3 normal-case tracking-normal">Orbital</TH>
+          <TH className="px-3 normal-case tracking-normal">Irrep</TH>
+          {names.map((name) => (
+            <TH key={name} className="px-3 normal-case tracking-normal" title={name}>
+              {columnLabel(name).text}
+            </TH>
+          ))}
+        </TR>
+      </THead>
+      <TBody>
+        {results.map((result) => (
+          <TR key={result.id}>
+            <TD className="px-3 py-1 font-mono text-xs">{result.label || "—"}</TD>
+            <TD className="px-3 py-1 font-mono text-xs">{result.irrep ?? "—"}</TD>
+            {names.map((name) => (
+              <TD key={name} className="px-3 py-1 font-mono text-xs tabular-nums">
+                {(result.columns[name] ?? []).map((value) => formatSignificant(value)).join(", ")}
+              </TD>
+            ))}
+          </TR>
+        ))}
+      </TBody>
+    </Table>
+  );
+}

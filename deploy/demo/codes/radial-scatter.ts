@@ -3,6 +3,13 @@
  * teaching-grade spherical model-potential solver (see its README). Its template writes the solver's
  * input JSON from the run's target and parameters; it writes kmatrices.txt, which Sigmaflow reads to
  * derive cross sections, eigenphase sums and rates.
+ *
+ * With `useStageDensity` (the default) the input names `density.txt`, the spherically averaged
+ * Hartree–Fock electron density that the demo code hf-orbitals writes (deploy/demo/codes/psi4-orbitals.ts):
+ * a recipe copies a stage's declared outputs into the next stage's folder, so radial-scatter then needs an
+ * hf-orbitals stage before it (the recipe "orbitals-to-elastic"), and the static potential is that of the
+ * Hartree–Fock density. Run on its own, set `useStageDensity` to false: the solver then builds the density
+ * from Slater-rule atomic densities.
  */
 import { fileURLToPath } from "node:url";
 import type { CodeDefinitionInput } from "../../../shared/schemas/codes";
@@ -23,7 +30,8 @@ const INPUT_TEMPLATE = `{
   "lmax": {{ lmax }},
   "energiesEv": {{ energiesEv }},
   "polarizabilityBohr3": {{ polarizabilityBohr3 }},
-  "cutoffRadiusBohr": {{ cutoffRadiusBohr }}
+  "cutoffRadiusBohr": {{ cutoffRadiusBohr }}{% if useStageDensity %},
+  "densityFile": "density.txt"{% endif %}
 }
 `;
 
@@ -33,8 +41,10 @@ export function radialScatterDefinition(executable: string = RADIAL_SCATTER_PATH
     version: "1.0",
     description:
       "Sigmaflow's demo scattering code: an electron in a spherically averaged model potential of the target " +
-      "(static term from the nuclei and an electron density, plus polarization with a short-range cut-off); " +
-      "K-matrices per irreducible representation and energy. A teaching-grade model, not a production " +
+      "(static term from the nuclei and the electron density, plus polarization with a short-range cut-off); " +
+      "K-matrices per irreducible representation and energy. By default the density is the Hartree–Fock one " +
+      "in density.txt from an hf-orbitals stage before it (recipe orbitals-to-elastic); run alone, turn " +
+      "useStageDensity off for Slater-rule atomic densities. A teaching-grade model, not a production " +
       "scattering method: no exchange, no anisotropy; results for ions are qualitative only.",
     executable,
     arguments: ["scatter.json"],
@@ -71,6 +81,13 @@ export function radialScatterDefinition(executable: string = RADIAL_SCATTER_PATH
           maximum: 20,
           default: 2,
           description: "Cut-off radius r_c of the polarization term, bohr.",
+        },
+        useStageDensity: {
+          type: "boolean",
+          default: true,
+          description:
+            "Use density.txt, the Hartree–Fock density written by an hf-orbitals stage before this one; " +
+            "off: Slater-rule atomic densities (for radial-scatter run on its own).",
         },
       },
     },

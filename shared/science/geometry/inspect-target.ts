@@ -4,6 +4,7 @@
  * the standard orientation.
  */
 import { inspectTargetRequestSchema, parseTargetInput } from "../../schemas/science-target";
+import { getElement } from "../elements/isotopes";
 import { analyzeSymmetry, type SymmetryAnalysis } from "../symmetry/point-group";
 import {
   centreOfMass,
@@ -84,8 +85,10 @@ export interface TargetInspection {
 }
 
 /**
- * Hill-order formula (C, H, then alphabetical; without carbon all alphabetical). An isotope other than the
- * most common one in this target is written with its mass number, e.g. CH3[2H].
+ * Hill-order formula (C, H, then alphabetical; without carbon all alphabetical). An atom whose isotope is
+ * not its element's most abundant natural one is written with its mass number in brackets after the
+ * common isotope of the same element: CH3[2H] (CH3D), [2H]2O (D2O), [13C]H4 (common practice of
+ * isotopologue notation, e.g. IUPAC Green Book §2.10.1 — from memory).
  */
 export function hillFormula(atoms: readonly Pick<TargetAtom, "symbol" | "massNumber">[]): string {
   const counts = new Map<string, Map<number, number>>();
@@ -99,11 +102,15 @@ export function hillFormula(atoms: readonly Pick<TargetAtom, "symbol" | "massNum
   const symbols = [...counts.keys()].sort((p, q) => rank(p) - rank(q) || p.localeCompare(q));
   const parts: string[] = [];
   for (const symbol of symbols) {
-    const byMass = [...counts.get(symbol)!.entries()].sort((p, q) => q[1] - p[1] || p[0] - q[0]);
-    byMass.forEach(([mass, n], i) => {
-      const label = i === 0 ? symbol : `[${mass}${symbol}]`;
+    const common = getElement(symbol).defaultIsotope?.massNumber ?? null;
+    // The common isotope first, then the others by mass number.
+    const byMass = [...counts.get(symbol)!.entries()].sort(
+      (p, q) => Number(q[0] === common) - Number(p[0] === common) || p[0] - q[0],
+    );
+    for (const [mass, n] of byMass) {
+      const label = mass === common ? symbol : `[${mass}${symbol}]`;
       parts.push(n === 1 ? label : `${label}${n}`);
-    });
+    }
   }
   return parts.join("");
 }

@@ -6,6 +6,7 @@ import {
   classifyRotor,
   dipoleFromPartialCharges,
   electronCount,
+  hillFormula,
   inertiaTensor,
   inspectTarget,
   jacobiEigenSymmetric,
@@ -214,5 +215,22 @@ describe("dipole of a charged target", () => {
       /add up to 1.000000 e, not the target charge 0/,
     );
     expect(() => dipoleFromPartialCharges(atoms, [1, 0])).toThrow(/2 partial charges for 3 atoms/);
+  });
+});
+
+describe("hillFormula", () => {
+  // Hill order (carbon, hydrogen, then alphabetical; without carbon all alphabetical) is common practice
+  // (E. A. Hill, J. Am. Chem. Soc. 22, 478 (1900)); isotopes other than the most abundant natural one are
+  // written with their mass number in brackets, as in IUPAC's isotopologue notation (from memory).
+  const atom = (symbol: string, massNumber: number) => ({ symbol, massNumber });
+  it.each([
+    ["water", [atom("O", 16), atom("H", 1), atom("H", 1)], "H2O"],
+    ["heavy water", [atom("O", 16), atom("H", 2), atom("H", 2)], "[2H]2O"],
+    ["semiheavy water", [atom("O", 16), atom("H", 1), atom("H", 2)], "H[2H]O"],
+    ["CH3D", [atom("C", 12), atom("H", 1), atom("H", 1), atom("H", 1), atom("H", 2)], "CH3[2H]"],
+    ["13CH4", [atom("C", 13), atom("H", 1), atom("H", 1), atom("H", 1), atom("H", 1)], "[13C]H4"],
+    ["NF3", [atom("N", 14), atom("F", 19), atom("F", 19), atom("F", 19)], "F3N"],
+  ])("%s is %s", (_name, atoms, formula) => {
+    expect(hillFormula(atoms)).toBe(formula);
   });
 });

@@ -241,6 +241,20 @@ describe("demo recipe orbitals-to-elastic: hf-orbitals then radial-scatter, wate
     }
   });
 
+  it("radial-scatter without an hf-orbitals stage before it refuses the missing density.txt, naming it", () => {
+    const dir = join(runFolder, "missing-density");
+    mkdirSync(dir);
+    const check = validateParameters(radialScatter, { polarizabilityBohr3: WATER_POLARIZABILITY_BOHR3 });
+    if (!check.valid) throw new Error(JSON.stringify(check.errors));
+    const rendered = renderCodeFiles(radialScatter, check.parameters, water);
+    for (const file of rendered.files) writeFileSync(join(dir, file.fileName), file.content);
+    const child = spawnSync(radialScatter.executable, rendered.argv, { cwd: dir, encoding: "utf8" });
+    expect(child.status).toBe(2);
+    expect(child.stderr).toContain("radial-scatter: error: cannot read densityFile 'density.txt'");
+    expect(child.stderr).toContain("written by an hf-orbitals stage before this one");
+    expect(existsSync(join(dir, "kmatrices.txt"))).toBe(false);
+  });
+
   it("elastic cross sections: finite, positive, and per irrep summing to the partial-wave formula", () => {
     const table = readKMatrixTable(readFileSync(join(stage2.dir, "kmatrices.txt"), "utf8"));
     expect(table.irreps.map((irrep) => irrep.irrep)).toEqual(water.irreps);

@@ -62,6 +62,12 @@ export const DEMO_RUNS: readonly DemoRun[] = [
     parameters: { orbitals: { basis: "cc-pvdz" } },
   },
   {
+    name: "Formyl cation — ionization, cc-pVDZ",
+    recipe: "orbitals-to-ionization",
+    target: "Formyl cation",
+    parameters: { orbitals: { basis: "cc-pvdz" } },
+  },
+  {
     name: "Water — elastic, cc-pVDZ",
     recipe: "orbitals-to-elastic",
     target: "Water",

@@ -31,6 +31,12 @@ const envSchema = z.object({
     .int()
     .min(1)
     .default(64 * 1024 * 1024),
+  /** Child processes that read and derive results at once (a fresh one per postprocess; others wait). */
+  WORKER_POSTPROCESS_CONCURRENCY: z.coerce.number().int().min(1).max(16).default(2),
+  /** Wall-clock limit of one derivation of results; past it the child is stopped and results fail. */
+  WORKER_POSTPROCESS_TIMEOUT_MS: z.coerce.number().int().min(100).default(60_000),
+  /** V8 heap limit of a derivation child process; past it the child ends and results fail. */
+  WORKER_POSTPROCESS_MAX_HEAP_MB: z.coerce.number().int().min(32).max(16_384).default(512),
   SMTP_HOST: z.string().default("127.0.0.1"),
   SMTP_PORT: z.coerce.number().int().default(5182),
   MAIL_FROM: z.string().default("Sigmaflow <no-reply@sigmaflow.local>"),
@@ -65,6 +71,11 @@ export function loadWorkerConfig(env: NodeJS.ProcessEnv = process.env) {
     },
     maxArtifactBytes: e.WORKER_MAX_ARTIFACT_BYTES,
     wallTimeGraceSeconds: e.WORKER_WALL_TIME_GRACE_SECONDS,
+    postprocess: {
+      concurrency: e.WORKER_POSTPROCESS_CONCURRENCY,
+      timeoutMs: e.WORKER_POSTPROCESS_TIMEOUT_MS,
+      maxHeapMb: e.WORKER_POSTPROCESS_MAX_HEAP_MB,
+    },
     smtp: { host: e.SMTP_HOST, port: e.SMTP_PORT, secure: false, auth: undefined, from: e.MAIL_FROM },
     logLevel: e.LOG_LEVEL,
   };

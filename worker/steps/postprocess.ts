@@ -8,19 +8,39 @@
  * (conditional on `pending`, so two attempts never both store). A file that cannot be read or a value the
  * science core refuses settles `failed` with the reason; the run stays `done` and its collected files are
  * untouched. Database trouble is thrown, and the queue retries.
+ *
+ * The reading and deriving run in a child process (`worker/results/derive-isolated.ts`), bounded in time
+ * (WORKER_POSTPROCESS_TIMEOUT_MS) and heap (WORKER_POSTPROCESS_MAX_HEAP_MB): past either, the child is
+ * stopped and results settle `failed` with what was exceeded. A child that cannot start is thrown (not
+ * the files' fault), and the queue retries. Loading the files and storing stay here, in one transaction.
  */
 import { and, eq, inArray, sql } from "drizzle-orm";
 import { codes, runArtifacts, runResults, runs, targetVersions } from "../../server/db/schema";
 import { RUN_STEP_QUEUES } from "../../server/queue/queues";
 import type { CodeDefinition } from "../../shared/schemas/codes";
 import { type RunAnalysis, runAnalysisSchema } from "../../shared/schemas/results";
+import type { WorkerConfig } from "../config";
 import type { WorkerContext } from "../context";
 import type { DerivedResult } from "../results/derive-common";
-import { deriveRunResults, type ResultFile } from "../results/derive-run-results";
+import { DerivationPool, DerivationProcessError } from "../results/derive-isolated";
+import type { ResultFile } from "../results/derive-run-results";
 import { loadRun, planOf, type RunRow } from "../run-runtime";
 
 /** Prefix of results_message when deriving failed. */
 export const RESULTS_FAILED_PREFIX = "results could not be derived: ";
+
+/** One pool of derivation processes per worker (keyed by its settings: tests start several in one process). */
+const derivationPools = new WeakMap<WorkerConfig, DerivationPool>();
+
+function derivationPool(config: WorkerConfig): DerivationPool {
+  let pool = derivationPools.get(config);
+  if (!pool) {
+    const { concurrency, timeoutMs, maxHeapMb } = config.postprocess;
+    pool = new DerivationPool(concurrency, { timeoutMs, maxHeapMb });
+    derivationPools.set(config, pool);
+  }
+  return pool;
+}
 
 type Settlement =
   | { state: "derived"; message: string | null; results: DerivedResult[] }
@@ -99,12 +119,15 @@ async function deriveFor(ctx: WorkerContext, run: RunRow): Promise<Settlement> {
   const analysis: RunAnalysis = parsedAnalysis.data;
   const charge = await targetCharge(ctx, run);
   try {
-    const { results, notes } = deriveRunResults(files, analysis, { charge });
+    const { results, notes } = await derivationPool(ctx.config).derive(files, analysis, { charge });
     const skipped = missing.length > 0 ? [`Not collected, so not read: ${missing.join(", ")}.`] : [];
     const message = [...skipped, ...notes].join(" ");
     return { state: "derived", message: message === "" ? null : message, results };
   } catch (error) {
-    // The derivation is pure: whatever it throws, repeating it would throw again.
+    // A child that could not start or died by itself: not the files' fault, so the queue retries.
+    if (error instanceof DerivationProcessError) throw error;
+    // Otherwise the derivation is pure and bounded: repeating it would end the same way (refused, too slow,
+    // too large).
     ctx.log.warn({ err: error, runId: run.id }, "results could not be derived");
     const reason = error instanceof Error ? error.message : String(error);
     return { state: "failed", message: `${RESULTS_FAILED_PREFIX}${reason}` };

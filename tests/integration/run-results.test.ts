@@ -11,11 +11,15 @@
 import { readFileSync } from "node:fs";
 import { fileURLToPath } from "node:url";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { createLogger } from "../../server/logger";
 import { createBoss, RUN_STEP_QUEUES } from "../../server/queue/queues";
 import { RESULTS_CAUTION } from "../../shared/schemas/results";
 import { HARTREE_EV } from "../../shared/science/constants";
 import { bebCrossSections } from "../../shared/science/ionization";
+import { loadWorkerConfig } from "../../worker/config";
+import type { WorkerContext } from "../../worker/context";
 import { readOrbitalTable } from "../../worker/results/readers/orbital-table";
+import { postprocessRun } from "../../worker/steps/postprocess";
 import { shellCode, uniqueCodeName } from "./support/code-fixtures";
 import {
   type EngineScenario,
@@ -311,5 +315,50 @@ describe("a run whose result file is malformed", () => {
   it("answers 404 for a run that does not exist", async () => {
     const response = await sf.api("GET", "/api/runs/00000000-0000-4000-8000-000000000000/results");
     expect(response.status).toBe(404);
+  });
+});
+
+describe("a derivation past the worker's time limit", () => {
+  it("is stopped: results failed saying so, the run done, its files kept; within the limit it derives", async () => {
+    const recipeId = await resultsRecipe(sf, ORBITALS);
+    const created = await sf.api(
+      "POST",
+      `/api/groups/${sf.groupId}/runs`,
+      runSpec(recipeId, hostId, { solve: {} }, "slow results"),
+    );
+    expect(created.status, JSON.stringify(created.body)).toBe(201);
+    const runId = created.body.id as string;
+    const run = await waitForState(sf, runId, ["done", "failed"]);
+    expect(run.state, run.stateMessage).toBe("done");
+    const derived = await settledResults(runId);
+    expect(derived.state).toBe("derived");
+
+    // The step itself, run with a 1 ms limit (no item is sent, so the test's worker leaves the run alone).
+    const settings = loadWorkerConfig(sf.workerEnv as never);
+    const ctx = (timeoutMs: number) =>
+      ({
+        db: scenario.database.db,
+        config: { ...settings, postprocess: { ...settings.postprocess, timeoutMs } },
+        log: createLogger("silent"),
+      }) as unknown as WorkerContext;
+    await scenario.database.pool.query("update runs set results_state = 'pending' where id = $1", [runId]);
+    await postprocessRun(ctx(1), runId);
+    const failed = await settledResults(runId);
+    expect(failed.state).toBe("failed");
+    expect(failed.message).toBe("results could not be derived: deriving took longer than 0.001 s");
+    expect(failed.results).toEqual([]);
+    const detail = await sf.api("GET", `/api/runs/${runId}`);
+    expect(detail.body.state).toBe("done");
+    expect(detail.body.artifacts.map((a: { name: string }) => a.name)).toEqual(
+      expect.arrayContaining(["orbitals.txt", "kmatrices.txt"]),
+    );
+
+    await scenario.database.pool.query("update runs set results_state = 'pending' where id = $1", [runId]);
+    await postprocessRun(ctx(60_000), runId);
+    const again = await settledResults(runId);
+    expect(again.state).toBe("derived");
+    expect(again.results.map((r) => `${r.kind}/${r.process}/${r.irrep}/${r.label}`)).toEqual(
+      derived.results.map((r) => `${r.kind}/${r.process}/${r.irrep}/${r.label}`),
+    );
   });
 });

@@ -29,6 +29,8 @@ export const deriveReplySchema = z.discriminatedUnion("kind", [
   z.object({
     kind: z.literal("derived"),
     derivation: z.object({ results: z.array(derivedRowSchema), notes: z.array(z.string()) }),
+    /** What the derivation cost in the child: for logs and benchmarks. */
+    usage: z.object({ derivationMs: z.number(), peakRssMb: z.number() }),
   }),
   /** The readers or the science core refused the files: `message` is the reason for the run's results. */
   z.object({ kind: z.literal("refused"), name: z.string(), message: z.string() }),

@@ -24,7 +24,12 @@ process.once("message", async (request: DeriveRequest) => {
       reader: file.reader,
       content: Buffer.from(file.content.buffer, file.content.byteOffset, file.content.byteLength),
     }));
-    reply = { kind: "derived", derivation: deriveRunResults(files, request.analysis, request.context) };
+    const start = performance.now();
+    const derivation = deriveRunResults(files, request.analysis, request.context);
+    const derivationMs = performance.now() - start;
+    // maxRSS is in kilobytes: the child's peak resident memory since it started.
+    const peakRssMb = process.resourceUsage().maxRSS / 1024;
+    reply = { kind: "derived", derivation, usage: { derivationMs, peakRssMb } };
   } catch (error) {
     reply = {
       kind: "refused",

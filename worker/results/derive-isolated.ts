@@ -34,6 +34,19 @@ export interface DerivationLimits {
   maxHeapMb: number;
 }
 
+/** What a derivation cost in its child process. */
+export interface DerivationUsage {
+  /** Reading and deriving, in the child, ms. */
+  derivationMs: number;
+  /** The child's peak resident memory (start-up included), MB. */
+  peakRssMb: number;
+}
+
+export interface IsolatedDerivation {
+  derivation: Derivation;
+  usage: DerivationUsage;
+}
+
 /** The derivation took too long or needed too much memory; `message` completes "results could not be derived: ". */
 export class DerivationLimitError extends Error {
   override name = "DerivationLimitError";
@@ -95,7 +108,7 @@ export class DerivationPool {
     files: readonly ResultFile[],
     analysis: RunAnalysis,
     context: { charge: number | null },
-  ): Promise<Derivation> {
+  ): Promise<IsolatedDerivation> {
     await this.#acquire();
     try {
       return await deriveIsolated(files, analysis, context, this.limits);
@@ -135,8 +148,8 @@ export function deriveIsolated(
   analysis: RunAnalysis,
   context: { charge: number | null },
   limits: DerivationLimits,
-): Promise<Derivation> {
-  return new Promise<Derivation>((resolve, reject) => {
+): Promise<IsolatedDerivation> {
+  return new Promise<IsolatedDerivation>((resolve, reject) => {
     let child: ChildProcess;
     try {
       child = fork(BOOTSTRAP, [], {
@@ -159,12 +172,12 @@ export function deriveIsolated(
     });
     let settled = false;
     let timer: NodeJS.Timeout | undefined;
-    const finish = (outcome: { derivation: Derivation } | { error: Error }) => {
+    const finish = (outcome: { derived: IsolatedDerivation } | { error: Error }) => {
       if (settled) return;
       settled = true;
       clearTimeout(timer);
       if (child.exitCode === null && child.signalCode === null) child.kill("SIGKILL");
-      if ("derivation" in outcome) resolve(outcome.derivation);
+      if ("derived" in outcome) resolve(outcome.derived);
       else reject(outcome.error);
     };
     const startTimer = (ms: number, error: () => Error) => {
@@ -210,7 +223,7 @@ export function deriveIsolated(
             });
         });
       } else if (reply.kind === "derived") {
-        finish({ derivation: reply.derivation });
+        finish({ derived: { derivation: reply.derivation, usage: reply.usage } });
       } else {
         finish({ error: new DerivationRefusedError(reply.message, reply.name) });
       }

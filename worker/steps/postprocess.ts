@@ -119,7 +119,9 @@ async function deriveFor(ctx: WorkerContext, run: RunRow): Promise<Settlement> {
   const analysis: RunAnalysis = parsedAnalysis.data;
   const charge = await targetCharge(ctx, run);
   try {
-    const { results, notes } = await derivationPool(ctx.config).derive(files, analysis, { charge });
+    const { derivation, usage } = await derivationPool(ctx.config).derive(files, analysis, { charge });
+    ctx.log.debug({ runId: run.id, ...usage }, "results derived in a child process");
+    const { results, notes } = derivation;
     const skipped = missing.length > 0 ? [`Not collected, so not read: ${missing.join(", ")}.`] : [];
     const message = [...skipped, ...notes].join(" ");
     return { state: "derived", message: message === "" ? null : message, results };

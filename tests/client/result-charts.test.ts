@@ -4,8 +4,14 @@
  * modified-Arrhenius curve drawn beside computed rates.
  */
 import { describe, expect, it } from "vitest";
-import { alignSeries } from "@/features/results/chart-data";
-import { chartPlan, groupMethods, groupResults } from "@/features/results/chart-plan";
+import { alignSeries, logAxisSplits } from "@/features/results/chart-data";
+import {
+  chartPlan,
+  groupMethod,
+  groupResults,
+  logYRange,
+  seriesMethods,
+} from "@/features/results/chart-plan";
 import { formatSignificant } from "@/features/results/format-number";
 import { columnLabel } from "@/features/results/result-labels";
 import {
@@ -16,6 +22,7 @@ import {
   ionization1b1,
   ionization3a1,
   ionizationTotal,
+  waterShapedResults,
 } from "./support/result-fixtures";
 
 describe("column labels", () => {
@@ -72,7 +79,11 @@ describe("chart plans", () => {
       ["3a1", false],
     ]);
     expect(plan.leftOut).toBe(1);
-    expect(groupMethods(group!)).toEqual([ionizationTotal.method]);
+    expect(groupMethod(group!)).toBe(ionizationTotal.method);
+    expect(seriesMethods(group!).map((part) => [part.name, part.method])).toEqual([
+      ["1b1", ionization1b1.method],
+      ["3a1", ionization3a1.method],
+    ]);
   });
 
   it("keeps zero and negative values on a linear axis (eigenphase sums)", () => {
@@ -113,5 +124,40 @@ describe("chart plans", () => {
     const fitted = aligned.data[2]!;
     expect(fitted[0]).toBeNull(); // 500 K lies outside the fitted 1000–100000 K
     expect((fitted[1] as number) / 4.0482e-9).toBeCloseTo(1, 4);
+  });
+});
+
+describe("logarithmic axes over a real run's ranges", () => {
+  it("shows at most twelve decades below the largest value, and counts what lies below", () => {
+    // From 2.4 × 10⁻⁷⁷ to 8.2 × 10⁻⁹ cm³ s⁻¹: the decade above the largest down twelve.
+    expect(logYRange([2.4e-77, 1e-30, 8.2e-9])).toEqual([1e-20, 1e-8]);
+    // A narrow range keeps its own decades.
+    expect(logYRange([0.0025, 115.6])).toEqual([0.001, 1000]);
+    // A single power of ten still gets one decade.
+    expect(logYRange([1, 1])).toEqual([0.1, 1]);
+    expect(logYRange([0, -1])).toBeNull();
+
+    const groups = groupResults(waterShapedResults().results);
+    const rates = chartPlan(groups.find((group) => group.title === "Ionization rate coefficient")!)!;
+    expect(rates.yRange).toEqual([1e-20, 1e-8]);
+    const below = rates.series[0]!.y.filter((k) => k < 1e-20).length;
+    expect(below).toBeGreaterThan(10);
+    expect(rates.belowRange).toBe(below);
+    const eigenphases = chartPlan(groups.find((group) => group.title === "Eigenphase sums")!)!;
+    expect(eigenphases.yRange).toBeNull();
+    expect(eigenphases.belowRange).toBe(0);
+  });
+
+  it("marks a logarithmic axis at exact multiples of powers of ten over any range", () => {
+    expect(logAxisSplits(1e-20, 1e-8)).toHaveLength(12 * 9 + 1);
+    expect(logAxisSplits(1e-20, 1e-8).slice(0, 3)).toEqual([1e-20, 2e-20, 3e-20]);
+    expect(logAxisSplits(0.1, 50)).toEqual([
+      0.1, 0.2, 0.3, 0.4, 0.5, 0.6, 0.7, 0.8, 0.9, 1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 20, 30, 40, 50,
+    ]);
+    // Far below where the chart library's own marks stop: decades only, a bounded number of them.
+    const wide = logAxisSplits(1e-300, 1e300);
+    expect(wide).toHaveLength(601);
+    expect(wide[0]).toBe(1e-300);
+    expect(logAxisSplits(0, 1)).toEqual([]);
   });
 });

@@ -11,7 +11,7 @@ import type { ChartPlan } from "@/features/results/chart-plan";
 import { installFakeApi } from "./support/fake-api";
 import { KESTREL_ID, kestrel, people } from "./support/fixtures";
 import { renderApp } from "./support/render-app";
-import { derivedResults, ionizationResults } from "./support/result-fixtures";
+import { derivedResults, ionizationResults, waterShapedResults } from "./support/result-fixtures";
 import { kestrelRuns, RUN_IDS } from "./support/run-fixtures";
 import { server } from "./support/server";
 
@@ -91,8 +91,10 @@ describe("results of a finished run", () => {
     expect(
       screen.getByText(/1 value is not drawn: zero, negative or not finite, which a logarithmic axis/),
     ).toBeInTheDocument();
+    // A group's tables are put on the page only once its numbers are opened.
+    expect(screen.queryByRole("table", { name: "Elastic cross section: B2" })).not.toBeInTheDocument();
     await user.click(screen.getByText("Numbers (3 tables)"));
-    const b2 = screen.getByRole("table", { name: "Elastic cross section: B2" });
+    const b2 = await screen.findByRole("table", { name: "Elastic cross section: B2" });
     expect(within(b2).getByRole("columnheader", { name: "Energy (eV)" })).toBeInTheDocument();
     expect(within(b2).getByRole("columnheader", { name: "σ (Å²)" })).toBeInTheDocument();
     expect(
@@ -103,7 +105,7 @@ describe("results of a finished run", () => {
 
     // Rates span decades: printed in powers of ten, four significant digits at most.
     await user.click(screen.getByText("Numbers (1 table)"));
-    const rates = screen.getByRole("table", { name: "Elastic rate coefficient: k" });
+    const rates = await screen.findByRole("table", { name: "Elastic rate coefficient: k" });
     expect(within(rates).getByRole("columnheader", { name: "k (cm³ s⁻¹)" })).toBeInTheDocument();
     expect(within(rates).getByRole("cell", { name: "1.2 × 10⁻⁸" })).toBeInTheDocument();
     expect(within(rates).getByRole("cell", { name: "100000" })).toBeInTheDocument();
@@ -122,15 +124,17 @@ describe("results of a finished run", () => {
     const { user } = renderApp(runPath);
     const heading = await screen.findByRole("heading", { name: "Ionization cross section" });
     const card = heading.closest("section") as HTMLElement;
-    // The total's method once; each orbital's B, U, N only with its own numbers.
+    // The total's method once; each orbital's B, U, N behind "Method per series".
     expect(within(card).getByText(/sum over 2 occupied orbitals/)).toBeVisible();
-    expect(
-      within(card)
-        .getByText(/orbital 1b1: B = 13.85 eV/)
-        .closest("details"),
-    ).not.toHaveAttribute("open");
+    const perSeries = within(card).getByText("Method per series").closest("details") as HTMLElement;
+    expect(perSeries).not.toHaveAttribute("open");
+    expect(within(perSeries).getByText(/orbital 1b1: B = 13.85 eV/)).toBeInTheDocument();
+    expect(within(perSeries).getByText(/orbital 3a1: B = 15.87 eV/)).toBeInTheDocument();
+    expect(within(card).getAllByText(/Binary-Encounter-Bethe model/)).toHaveLength(3);
     await user.click(within(card).getByText("Numbers (3 tables)"));
-    expect(within(card).getByRole("table", { name: "Ionization cross section: 1b1" })).toBeInTheDocument();
+    expect(
+      await within(card).findByRole("table", { name: "Ionization cross section: 1b1" }),
+    ).toBeInTheDocument();
     expect(within(card).getByRole("table", { name: "Ionization cross section: Total" })).toBeInTheDocument();
 
     const table = screen.getByRole("table", { name: "Orbitals used by the ionization model" });
@@ -143,6 +147,44 @@ describe("results of a finished run", () => {
       "1b1B1−13.8513.8559.522",
       "3a1A1−15.8715.8761.912",
     ]);
+  });
+
+  it("puts a done run's results right under its summary, before its history", async () => {
+    install();
+    serveResults([derivedResults()]);
+    renderApp(runPath);
+    await screen.findByRole("heading", { name: "Elastic cross section" });
+    const headings = screen
+      .getAllByRole("heading", { level: 2 })
+      .map((heading) => heading.textContent)
+      .filter((text) => ["Results", "History", "Collected files", "Log"].includes(text ?? ""));
+    expect(headings).toEqual(["Results", "History", "Collected files", "Log"]);
+  });
+
+  it("shows a real run's many tables without putting their rows on the page, one method per chart", async () => {
+    install();
+    serveResults([waterShapedResults()]);
+    const { user } = renderApp(runPath);
+    const heading = await screen.findByRole("heading", { name: "Elastic cross section" });
+    const card = heading.closest("section") as HTMLElement;
+    // The sum's method once; the four irreps' behind the disclosure.
+    expect(within(card).getByText(/Summed over 4 irreps\./)).toBeVisible();
+    const perSeries = within(card).getByText("Method per series").closest("details") as HTMLElement;
+    expect(within(perSeries).getAllByText(/Irrep (A1|A2|B1|B2) only\./)).toHaveLength(4);
+    // Only the orbital table (a row per orbital) is on the page until numbers are opened.
+    expect(screen.queryByRole("table", { name: "Ionization cross section: Total" })).not.toBeInTheDocument();
+    expect(screen.queryByRole("table", { name: "Elastic cross section: A1" })).not.toBeInTheDocument();
+    const orbitalTable = screen.getByRole("table", { name: "Orbitals used by the ionization model" });
+    expect(within(orbitalTable).getAllByRole("row")).toHaveLength(6);
+    const bebCard = screen.getByRole("heading", { name: "Ionization cross section" }).closest("section")!;
+    await user.click(within(bebCard as HTMLElement).getByText("Numbers (6 tables)"));
+    const total = await within(bebCard as HTMLElement).findByRole("table", {
+      name: "Ionization cross section: Total",
+    });
+    // 211 energies and the header.
+    expect(within(total).getAllByRole("row")).toHaveLength(212);
+    // Rates more than twelve decades below the largest are named, not silently dropped.
+    expect(screen.getByText(/values lie more than 12 decades below the largest/)).toBeInTheDocument();
   });
 
   it("says results are being derived and asks again until they are", async () => {

@@ -49,3 +49,28 @@ export function alignSeries(plan: ChartPlan): AlignedData {
     gridsDiffer: plan.series.some((s) => s.x.join(",") !== firstGrid),
   };
 }
+
+/** Past this many decades a logarithmic axis is marked at powers of ten only. */
+const DECADES_WITH_INTERMEDIATE_MARKS = 30;
+
+/**
+ * Where a logarithmic axis between `min` and `max` (> 0) may put a mark: 1, 2, … 9 × 10ⁿ written exactly
+ * (the chart thins the labels to those that fit), over any range a double can hold, in at most a few
+ * hundred marks. uPlot's own marks stop short of 10⁻²⁵ and, below it, loop until the page runs out of
+ * memory, so every logarithmic axis takes its marks from here.
+ */
+export function logAxisSplits(min: number, max: number): number[] {
+  if (!(min > 0) || !(max >= min) || !Number.isFinite(max)) return [];
+  const first = Math.floor(Math.log10(min));
+  const last = Math.ceil(Math.log10(max));
+  const multiples = last - first > DECADES_WITH_INTERMEDIATE_MARKS ? [1] : [1, 2, 3, 4, 5, 6, 7, 8, 9];
+  const splits: number[] = [];
+  for (let exponent = first; exponent <= last; exponent++) {
+    for (const multiple of multiples) {
+      const value = Number(`${multiple}e${exponent}`);
+      // Within rounding of the range's ends (powers of ten as the chart library computes them).
+      if (value >= min * (1 - 1e-9) && value <= max * (1 + 1e-9)) splits.push(value);
+    }
+  }
+  return splits;
+}

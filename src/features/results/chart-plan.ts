@@ -55,12 +55,22 @@ export function partName(result: Result, group: ResultGroup): string {
 }
 
 /**
- * The method lines shown once for a group: those of its whole (sum, total) when it has one, else every
- * distinct one. Parts whose method says more (BEB per orbital: its B, U, N) show theirs with their table.
+ * The one method line shown with a group's chart: its whole's (sum over irreps, total over orbitals) when
+ * it has one, else the method its parts share; null when the parts were derived differently.
  */
-export function groupMethods(group: ResultGroup): string[] {
-  const wholes = group.rows.filter(isWhole);
-  return [...new Set((wholes.length > 0 ? wholes : group.rows).map((row) => row.method))];
+export function groupMethod(group: ResultGroup): string | null {
+  const whole = group.rows.find(isWhole);
+  if (whole) return whole.method;
+  const methods = new Set(group.rows.map((row) => row.method));
+  return methods.size === 1 ? group.rows[0]!.method : null;
+}
+
+/** The parts whose method says more than the group's line (BEB per orbital: its B, U, N), by name. */
+export function seriesMethods(group: ResultGroup): { id: string; name: string; method: string }[] {
+  const shown = groupMethod(group);
+  return group.rows
+    .filter((row) => row.method !== shown)
+    .map((row) => ({ id: row.id, name: partName(row, group), method: row.method }));
 }
 
 export type ChartSeries = {
@@ -81,7 +91,39 @@ export type ChartPlan = {
   series: ChartSeries[];
   /** Points not drawn: not finite, or at or below zero on a logarithmic axis. The table keeps them. */
   leftOut: number;
+  /**
+   * The y range of a logarithmic y axis, whole powers of ten: from the decade above the largest value
+   * down at most LOG_Y_DECADES decades. Null on a linear axis (the chart library fits it to the data).
+   */
+  yRange: [min: number, max: number] | null;
+  /** Drawn values below `yRange` (the curve leaves the chart at its lower edge there). */
+  belowRange: number;
 };
+
+/**
+ * How many decades a logarithmic y axis spans at most. A rate coefficient near an ionization threshold
+ * falls to 10⁻⁸⁰ cm³ s⁻¹ and below at low temperature; drawn to scale, the decades that matter would
+ * shrink to a sliver at the top of the chart.
+ */
+export const LOG_Y_DECADES = 12;
+
+/** 10^exponent exactly as written ("1e-8"), which `10 ** -8` is not for every exponent. */
+export const powerOfTen = (exponent: number) => Number(`1e${exponent}`);
+
+/** The decade-aligned window of a logarithmic y axis over positive values; null when there are none. */
+export function logYRange(values: readonly number[]): [number, number] | null {
+  let min = Number.POSITIVE_INFINITY;
+  let max = 0;
+  for (const value of values) {
+    if (!(value > 0) || !Number.isFinite(value)) continue;
+    if (value < min) min = value;
+    if (value > max) max = value;
+  }
+  if (max === 0) return null;
+  const top = Math.ceil(Math.log10(max));
+  const bottom = Math.max(Math.floor(Math.log10(min)), top - LOG_Y_DECADES);
+  return [powerOfTen(Math.min(bottom, top - 1)), powerOfTen(top)];
+}
 
 /** Axes per kind: σ(E) and k(T) span decades (log–log); eigenphase sums are angles (linear). */
 const AXES: Record<ResultKind, { logX: boolean; logY: boolean } | null> = {
@@ -123,6 +165,8 @@ export function chartPlan(group: ResultGroup): ChartPlan | null {
     }
     return { name: partName(row, group), bold: isWhole(row) && drawable.length > 1, x, y, fit: row.fit };
   });
+  const yRange = axes.logY ? logYRange(series.flatMap((s) => s.y)) : null;
+  const belowRange = yRange ? series.reduce((n, s) => n + s.y.filter((y) => y < yRange[0]).length, 0) : 0;
   return {
     title: group.title,
     xLabel: columnLabel(first.columnOrder[0]!).text,
@@ -130,5 +174,7 @@ export function chartPlan(group: ResultGroup): ChartPlan | null {
     ...axes,
     series,
     leftOut,
+    yRange,
+    belowRange,
   };
 }

@@ -1,4 +1,14 @@
-import type { AdminUser, ApiToken, Group, Invitation, Me, Member, RunDetail } from "@shared/schemas";
+import {
+  type AdminUser,
+  type ApiToken,
+  type Group,
+  type Invitation,
+  type Me,
+  type Member,
+  RESULTS_CAUTION,
+  type Result,
+  type RunDetail,
+} from "@shared/schemas";
 import { HttpResponse, http } from "msw";
 import { adminUsers, kestrel, kestrelMembers, marrow } from "./fixtures";
 import { server } from "./server";
@@ -16,6 +26,8 @@ type FakeApiState = {
   runs: Record<string, RunDetail[]>;
   /** Log text per run id, served as one chunk. */
   logs: Record<string, string>;
+  /** Derived results per run id; a run's `resultsState` and `resultsMessage` come with them. */
+  results: Record<string, Result[]>;
 };
 
 function apiError(status: number, code: string, message: string, details?: unknown) {
@@ -37,6 +49,7 @@ export function installFakeApi(initial: Partial<FakeApiState> = {}) {
     users: adminUsers,
     runs: {},
     logs: {},
+    results: {},
     ...initial,
   };
   const requests: RecordedRequest[] = [];
@@ -152,6 +165,18 @@ export function installFakeApi(initial: Partial<FakeApiState> = {}) {
       const text = state.logs[String(params.runId)];
       if (!text || afterSeq >= 1) return HttpResponse.json({ chunks: [], lastSeq: afterSeq });
       return HttpResponse.json({ chunks: [{ seq: 1, text, at: "2026-11-30T10:02:00.000Z" }], lastSeq: 1 });
+    }),
+    // As the server's results service: the run's state of deriving results and the rows derived.
+    http.get("/api/runs/:runId/results", ({ params }) => {
+      const run = findRun(String(params.runId));
+      if (!run) return apiError(404, "not_found", "No such run.");
+      return HttpResponse.json({
+        runId: run.id,
+        state: run.resultsState,
+        message: run.resultsMessage,
+        caution: RESULTS_CAUTION,
+        results: state.results[run.id] ?? [],
+      });
     }),
     http.post("/api/runs/:runId/cancel", ({ params }) => {
       const run = findRun(String(params.runId));

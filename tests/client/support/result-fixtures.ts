@@ -137,3 +137,135 @@ export const orbitals = [
 export function ionizationResults(): RunResults {
   return { ...derivedResults(), results: [...orbitals, ionization1b1, ionizationTotal, ionization3a1] };
 }
+
+/** n values from `from` to `to` evenly spaced on a logarithmic scale, as the postprocess step samples. */
+function logSpaced(from: number, to: number, n: number): number[] {
+  return Array.from({ length: n }, (_, i) => from * (to / from) ** (i / (n - 1)));
+}
+
+/**
+ * Results shaped like those of the demo water runs (elastic chain and BEB together), for what the page
+ * does with their sizes and ranges: 40 energies per elastic series over 0.1–50 eV, a sum over four C2v
+ * irreps, eigenphase sums that start below zero, 211 BEB energies from the first binding energy to
+ * 5000 eV with each orbital zero below its own, rates at 41 temperatures with their fits, and an orbital
+ * table of one value per column per orbital. The curves are made-up shapes; only the ionization rates
+ * follow their fit, k(T) = α (T/300 K)^β exp(−γ/T) with γ ≈ 1.5 × 10⁵ K, which at 1000 K is about
+ * 10⁻⁷⁷ cm³ s⁻¹ — the range a real BEB rate spans.
+ */
+export function waterShapedResults(): RunResults {
+  let shapedId = 0;
+  const nextShapedId = () => `7e50c000-0000-4000-8000-${String(++shapedId).padStart(4, "0")}00000100`;
+  const elasticEnergies = logSpaced(0.1, 50, 40);
+  const irreps = ["A1", "A2", "B1", "B2"];
+  const weights = [0.5, 0.01, 0.25, 0.25];
+  const elasticParts = irreps.map((irrep, i) =>
+    result({
+      id: nextShapedId(),
+      kind: "cross-section",
+      process: "elastic",
+      irrep,
+      columns: {
+        energy_eV: elasticEnergies,
+        cross_section_A2: elasticEnergies.map((e) => (weights[i]! * 60) / (1 + e / 5)),
+      },
+      columnOrder: ["energy_eV", "cross_section_A2"],
+      method: `${DEMO_METHOD} Irrep ${irrep} only.`,
+    }),
+  );
+  const elasticWhole = result({
+    id: nextShapedId(),
+    kind: "cross-section",
+    process: "elastic",
+    columns: { energy_eV: elasticEnergies, cross_section_A2: elasticEnergies.map((e) => 60 / (1 + e / 5)) },
+    columnOrder: ["energy_eV", "cross_section_A2"],
+    method: `${DEMO_METHOD} Summed over 4 irreps.`,
+  });
+  const eigenphases = [null, ...irreps].map((irrep) =>
+    result({
+      id: nextShapedId(),
+      kind: "eigenphase-sum",
+      process: "elastic",
+      irrep,
+      columns: {
+        energy_eV: elasticEnergies,
+        eigenphase_sum_rad: elasticEnergies.map((e) => -0.3 + Math.log1p(e)),
+      },
+      columnOrder: ["energy_eV", "eigenphase_sum_rad"],
+    }),
+  );
+  const bebEnergies = logSpaced(13.418, 5000, 211);
+  const bindings: [string, string, number][] = [
+    ["A1", "1a1", 559.2],
+    ["A1", "2a1", 36.37],
+    ["B2", "1b2", 19.02],
+    ["A1", "3a1", 15.42],
+    ["B1", "1b1", 13.418],
+  ];
+  const bebPart = (b: number) =>
+    bebEnergies.map((e) => (e <= b ? 0 : ((1 - b / e) * Math.log(e / b)) / (e / 50)));
+  const bebTotal = result({
+    id: nextShapedId(),
+    kind: "cross-section",
+    process: "ionization",
+    columns: {
+      energy_eV: bebEnergies,
+      cross_section_A2: bebEnergies.map((_, i) => bindings.reduce((sum, [, , b]) => sum + bebPart(b)[i]!, 0)),
+    },
+    columnOrder: ["energy_eV", "cross_section_A2"],
+    method: `${BEB_MODEL}; sum over 5 occupied orbitals.`,
+  });
+  const bebParts = bindings.map(([irrep, label, b]) =>
+    result({
+      id: nextShapedId(),
+      kind: "cross-section",
+      process: "ionization",
+      irrep,
+      label,
+      columns: { energy_eV: bebEnergies, cross_section_A2: bebPart(b) },
+      columnOrder: ["energy_eV", "cross_section_A2"],
+      method: `${BEB_MODEL}; orbital ${label}: B = ${b} eV, N = 2.`,
+    }),
+  );
+  const temperatures = logSpaced(1000, 100_000, 41);
+  const rate = (
+    process: "elastic" | "momentum-transfer" | "ionization",
+    alpha: number,
+    beta: number,
+    gamma: number,
+  ) =>
+    result({
+      id: nextShapedId(),
+      kind: "rate-coefficient",
+      process,
+      columns: {
+        temperature_K: temperatures,
+        rate_cm3_per_s: temperatures.map((t) => alpha * (t / 300) ** beta * Math.exp(-gamma / t)),
+      },
+      columnOrder: ["temperature_K", "rate_cm3_per_s"],
+      fit: {
+        alpha_cm3_per_s: alpha,
+        beta,
+        gamma_K: gamma,
+        minTemperatureK: 1000,
+        maxTemperatureK: 100_000,
+        maxRelativeDeviation: 0.11,
+      },
+    });
+  const orbitalRows = bindings.map(([irrep, label, b], i) =>
+    orbital(`7e50c000-0000-4000-8000-0000000002${i}0`, irrep, label, [-b, b, 50 + i, 2]),
+  );
+  return {
+    ...derivedResults(),
+    results: [
+      elasticWhole,
+      ...elasticParts,
+      bebTotal,
+      ...bebParts,
+      ...eigenphases,
+      rate("elastic", 6.15e-7, -0.034, 2992),
+      rate("momentum-transfer", 8.59e-7, -0.19, 2699),
+      rate("ionization", 1.515e-10, 0.9506, 154_757),
+      ...orbitalRows,
+    ],
+  };
+}

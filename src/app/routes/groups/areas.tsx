@@ -1,4 +1,4 @@
-import { Atom, type LucideIcon, TrendingUp } from "lucide-react";
+import { type LucideIcon, TrendingUp } from "lucide-react";
 import { EmptyState } from "@/components/ui/empty-state";
 import { PageHeader } from "@/components/ui/page-header";
 import { useCurrentGroup } from "./use-current-group";
@@ -16,23 +16,6 @@ type Area = {
 };
 
 const AREAS = {
-  targets: {
-    title: "Targets",
-    summary: "The molecules your group studies, described once and reused by every calculation.",
-    icon: Atom,
-    emptyTitle: "No targets registered yet",
-    emptyBody:
-      "Target registration is the next part of Sigmaflow to arrive. Until then, nothing is stored here.",
-    holds: [
-      "Each target's geometry, charge and spin state, with its point group detected from the geometry",
-      "The basis set and target-state model chosen for it, and the states included in the close-coupling expansion",
-      "Which runs and studies use the target",
-    ],
-    tasks: [
-      "Register a molecule from Cartesian coordinates and check its symmetry",
-      "Compare target-state energies against reference values before spending core-hours on a host",
-    ],
-  },
   studies: {
     title: "Studies",
     summary: "Collections of finished runs turned into physical quantities you can compare and export.",
@@ -79,10 +62,6 @@ function AreaPage({ area }: { area: Area }) {
       </div>
     </>
   );
-}
-
-export function TargetsRoute() {
-  return <AreaPage area={AREAS.targets} />;
 }
 
 export function StudiesRoute() {

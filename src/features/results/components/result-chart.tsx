@@ -2,7 +2,7 @@
 import { useEffect, useRef } from "react";
 import uPlot from "uplot";
 import "uplot/dist/uPlot.min.css";
-import { alignSeries } from "../chart-data";
+import { alignSeries, logAxisSplits } from "../chart-data";
 import type { ChartPlan } from "../chart-plan";
 import { formatSignificant } from "../format-number";
 
@@ -12,6 +12,9 @@ const HEIGHT_PX = 280;
 
 const tickValues = (_: uPlot, splits: number[]) =>
   splits.map((value) => (value === null || value === undefined ? "" : formatSignificant(value, 3)));
+
+/** Marks of a logarithmic axis from Sigmaflow's own rule, which holds over any range (see logAxisSplits). */
+const logSplits = (_: uPlot, _axis: number, min: number, max: number) => logAxisSplits(min, max);
 
 function chartOptions(plan: ChartPlan, widthPx: number): { options: uPlot.Options; data: uPlot.AlignedData } {
   const aligned = alignSeries(plan);
@@ -38,11 +41,11 @@ function chartOptions(plan: ChartPlan, widthPx: number): { options: uPlot.Option
       height: HEIGHT_PX,
       scales: {
         x: { time: false, distr: plan.logX ? 3 : 1 },
-        y: { distr: plan.logY ? 3 : 1 },
+        y: plan.yRange ? { distr: 3, range: [plan.yRange[0], plan.yRange[1]] } : { distr: plan.logY ? 3 : 1 },
       },
       axes: [
-        { label: plan.xLabel, values: tickValues },
-        { label: plan.yLabel, values: tickValues, size: 80 },
+        { label: plan.xLabel, values: tickValues, splits: plan.logX ? logSplits : undefined },
+        { label: plan.yLabel, values: tickValues, size: 80, splits: plan.logY ? logSplits : undefined },
       ],
       series,
       cursor: { drag: { x: true, y: false } },

@@ -1,6 +1,13 @@
-import { useMemo } from "react";
+import { useMemo, useState } from "react";
 import { Card, CardBody } from "@/components/ui/card";
-import { chartPlan, groupMethods, partName, type ResultGroup } from "../chart-plan";
+import {
+  chartPlan,
+  groupMethod,
+  LOG_Y_DECADES,
+  partName,
+  type ResultGroup,
+  seriesMethods,
+} from "../chart-plan";
 import { formatSignificant } from "../format-number";
 import { LazyResultChart } from "./lazy-result-chart";
 import { ResultRowsTable, ResultTable } from "./result-table";
@@ -41,10 +48,38 @@ function FitParameters({
   );
 }
 
+/**
+ * A group's numbers, a table per result, behind a disclosure: the rows are put on the page only while it
+ * is open (a run's results hold thousands of them).
+ */
+function NumbersDisclosure({ group }: { group: ResultGroup }) {
+  const [open, setOpen] = useState(false);
+  return (
+    <details className="group" onToggle={(event) => setOpen(event.currentTarget.open)}>
+      <summary className="cursor-pointer text-sm font-medium text-flux-800">
+        Numbers ({group.rows.length === 1 ? "1 table" : `${group.rows.length} tables`})
+      </summary>
+      {open ? (
+        <div className="mt-3 flex flex-col gap-4">
+          {group.rows.map((row) => (
+            <div key={row.id}>
+              {group.rows.length > 1 ? (
+                <p className="mb-1 text-xs font-medium text-ink-700">{partName(row, group)}</p>
+              ) : null}
+              <ResultTable result={row} caption={`${group.title}: ${partName(row, group)}`} />
+            </div>
+          ))}
+        </div>
+      ) : null}
+    </details>
+  );
+}
+
 /** One kind of result for one process: how it was derived, its chart, fit parameters and numbers. */
 export function ResultGroupCard({ group }: { group: ResultGroup }) {
   const plan = useMemo(() => chartPlan(group), [group]);
-  const methods = groupMethods(group);
+  const method = groupMethod(group);
+  const perSeries = seriesMethods(group);
   const fits = group.rows.flatMap((row) => (row.fit ? [{ row, fit: row.fit }] : []));
   const headingId = `result-${group.key.replace(/[^a-z0-9]+/gi, "-")}`;
   return (
@@ -54,11 +89,22 @@ export function ResultGroupCard({ group }: { group: ResultGroup }) {
           <h3 id={headingId} className="text-sm font-semibold text-ink-900">
             {group.title}
           </h3>
-          {methods.map((method) => (
-            <p key={method} className="mt-1 text-xs text-ink-600">
-              {method}
-            </p>
-          ))}
+          {method ? <p className="mt-1 text-xs text-ink-600">{method}</p> : null}
+          {perSeries.length > 0 ? (
+            <details className="mt-1">
+              <summary className="cursor-pointer text-xs font-medium text-flux-800">
+                Method per series
+              </summary>
+              <dl className="mt-1 flex flex-col gap-1 text-xs text-ink-600">
+                {perSeries.map((part) => (
+                  <div key={part.id}>
+                    <dt className="inline font-medium text-ink-700">{part.name}: </dt>
+                    <dd className="inline">{part.method}</dd>
+                  </div>
+                ))}
+              </dl>
+            </details>
+          ) : null}
         </div>
         {plan ? <LazyResultChart plan={plan} /> : null}
         {plan && plan.leftOut > 0 ? (
@@ -70,30 +116,19 @@ export function ResultGroupCard({ group }: { group: ResultGroup }) {
             . The table lists every value.
           </p>
         ) : null}
+        {plan && plan.belowRange > 0 ? (
+          <p className="text-xs text-ink-600">
+            {plan.belowRange} {plan.belowRange === 1 ? "value lies" : "values lie"} more than {LOG_Y_DECADES}{" "}
+            decades below the largest, under the chart&apos;s lower edge. The table lists every value.
+          </p>
+        ) : null}
         {fits.map(({ row, fit }) => (
           <FitParameters key={row.id} name={partName(row, group)} fit={fit} />
         ))}
         {group.kind === "orbital-table" ? (
           <ResultRowsTable results={group.rows} caption={group.title} />
         ) : (
-          <details className="group">
-            <summary className="cursor-pointer text-sm font-medium text-flux-800">
-              Numbers ({group.rows.length === 1 ? "1 table" : `${group.rows.length} tables`})
-            </summary>
-            <div className="mt-3 flex flex-col gap-4">
-              {group.rows.map((row) => (
-                <div key={row.id}>
-                  {group.rows.length > 1 ? (
-                    <p className="mb-1 text-xs font-medium text-ink-700">{partName(row, group)}</p>
-                  ) : null}
-                  {methods.includes(row.method) ? null : (
-                    <p className="mb-1 text-xs text-ink-600">{row.method}</p>
-                  )}
-                  <ResultTable result={row} caption={`${group.title}: ${partName(row, group)}`} />
-                </div>
-              ))}
-            </div>
-          </details>
+          <NumbersDisclosure group={group} />
         )}
       </CardBody>
     </Card>

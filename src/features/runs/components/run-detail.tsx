@@ -22,9 +22,10 @@ function Section({ title, children }: { title: string; children: React.ReactNode
 }
 
 /**
- * A run's progress, history, per-symmetry timings, results, collected files and log, refreshed while it
+ * A run's progress, results, history, per-symmetry timings, collected files and log, refreshed while it
  * is unfinished. A run that reused results shows the files, timings and log of the run that produced them.
- * `results` (the results feature's view, composed by the page) is shown once the run is done.
+ * `results` (the results feature's view, composed by the page) is shown once the run is done, right
+ * under the run's summary.
  */
 export function RunDetailView({ run, results }: { run: RunDetail; results?: ReactNode }) {
   const log = useQuery(runQueries.log(run.id, isFinished(run)));
@@ -75,6 +76,8 @@ export function RunDetailView({ run, results }: { run: RunDetail; results?: Reac
         </CardBody>
       </Card>
 
+      {run.state === "done" && results ? <Section title="Results">{results}</Section> : null}
+
       <Section title="History">
         <Table caption="State changes">
           <THead>
@@ -122,8 +125,6 @@ export function RunDetailView({ run, results }: { run: RunDetail; results?: Reac
           </Table>
         </Section>
       ) : null}
-
-      {run.state === "done" && results ? <Section title="Results">{results}</Section> : null}
 
       <Section title="Collected files">
         {run.artifacts.length === 0 ? (

@@ -51,7 +51,7 @@ export function alignSeries(plan: ChartPlan): AlignedData {
 }
 
 /** Past this many decades a logarithmic axis is marked at powers of ten only. */
-const DECADES_WITH_INTERMEDIATE_MARKS = 30;
+const DECADES_WITH_INTERMEDIATE_MARKS = 8;
 
 /**
  * Where a logarithmic axis between `min` and `max` (> 0) may put a mark: 1, 2, … 9 × 10ⁿ written exactly

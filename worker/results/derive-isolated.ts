@@ -23,7 +23,12 @@
 import { type ChildProcess, fork } from "node:child_process";
 import { fileURLToPath } from "node:url";
 import type { RunAnalysis } from "../../shared/schemas/results";
-import { type DeriveReply, type DeriveRequest, deriveReplySchema } from "./derive-child-protocol";
+import {
+  CHUNK_BYTES,
+  type DeriveMessage,
+  type DeriveReply,
+  deriveReplySchema,
+} from "./derive-child-protocol";
 import type { Derivation } from "./derive-common";
 import type { ResultFile } from "./derive-run-results";
 
@@ -202,26 +207,15 @@ export function deriveIsolated(
       }
       const reply: DeriveReply = parsed.data;
       if (reply.kind === "ready") {
-        const request: DeriveRequest = {
-          files: files.map((file) => ({
-            stage: file.stage,
-            fileName: file.fileName,
-            reader: file.reader,
-            content: file.content,
-          })),
-          analysis,
-          context,
-        };
         startTimer(
           limits.timeoutMs,
           () => new DerivationLimitError(`deriving took longer than ${formatSeconds(limits.timeoutMs)}`),
         );
-        child.send(request, (error) => {
-          if (error)
-            finish({
-              error: new DerivationProcessError(`the files could not be handed over: ${error.message}`),
-            });
-        });
+        handOver(child, files, analysis, context, () => settled).catch((error: Error) =>
+          finish({
+            error: new DerivationProcessError(`the files could not be handed over: ${error.message}`),
+          }),
+        );
       } else if (reply.kind === "derived") {
         finish({ derived: { derivation: reply.derivation, usage: reply.usage } });
       } else {
@@ -250,4 +244,41 @@ export function deriveIsolated(
       });
     });
   });
+}
+
+/**
+ * Sends the request, each file in pieces of at most CHUNK_BYTES (each send waits for the previous one, so
+ * the event loop never serializes more than one piece at a time), and the end mark. Stops early once the
+ * derivation is settled (killed for taking too long, say).
+ */
+async function handOver(
+  child: ChildProcess,
+  files: readonly ResultFile[],
+  analysis: RunAnalysis,
+  context: { charge: number | null },
+  isSettled: () => boolean,
+): Promise<void> {
+  const send = (message: DeriveMessage) =>
+    new Promise<void>((resolve, reject) => {
+      child.send(message, (error) => (error ? reject(error) : resolve()));
+    });
+  await send({
+    kind: "request",
+    files: files.map((file) => ({
+      stage: file.stage,
+      fileName: file.fileName,
+      reader: file.reader,
+      byteLength: file.content.byteLength,
+    })),
+    analysis,
+    context,
+  });
+  for (const [index, file] of files.entries()) {
+    for (let offset = 0; offset < file.content.byteLength; offset += CHUNK_BYTES) {
+      if (isSettled()) return;
+      const bytes = file.content.subarray(offset, Math.min(offset + CHUNK_BYTES, file.content.byteLength));
+      await send({ kind: "chunk", file: index, offset, bytes });
+    }
+  }
+  if (!isSettled()) await send({ kind: "end" });
 }

@@ -15,6 +15,8 @@ export const resultKindSchema = z.enum([
   "rate-coefficient",
   /** The orbital table an ionization model used (binding and kinetic energies, occupations). */
   "orbital-table",
+  /** Properties of the target the chemistry code computed: energies, dipole, rotational constants, frequencies. */
+  "target-properties",
 ]);
 export type ResultKind = z.infer<typeof resultKindSchema>;
 

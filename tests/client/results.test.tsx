@@ -147,6 +147,22 @@ describe("results of a finished run", () => {
       "1b1B1−13.8513.8559.522",
       "3a1A1−15.8715.8761.912",
     ]);
+
+    // The target's properties from the same calculation: one quantity per line, units from the names.
+    const properties = screen.getByRole("table", {
+      name: "Target properties from the orbitals' calculation",
+    });
+    expect(
+      within(properties)
+        .getAllByRole("row")
+        .map((row) => row.textContent),
+    ).toEqual([
+      "QuantityValue",
+      "Total energy (Eₕ)−76.02",
+      "Dipole z (D)−2.057",
+      "Dipole magnitude (D)2.057",
+      "Rotational constant a (cm⁻¹)27.38",
+    ]);
   });
 
   it("puts a done run's results right under its summary, before its history", async () => {

@@ -8,6 +8,7 @@ import type { ResultReader } from "../../shared/schemas/codes";
 import type { ResultKind, ResultProcess, RunAnalysis } from "../../shared/schemas/results";
 import type { Derivation, DerivedResult } from "./derive-common";
 import { deriveIonizationResults } from "./derive-ionization";
+import { deriveTargetProperties } from "./derive-properties";
 import { deriveScatteringResults } from "./derive-scattering";
 import { ResultReadError } from "./readers/errors";
 import { readKMatrixTable } from "./readers/kmatrix-table";
@@ -26,6 +27,7 @@ const KIND_ORDER: readonly ResultKind[] = [
   "eigenphase-sum",
   "rate-coefficient",
   "orbital-table",
+  "target-properties",
 ];
 const PROCESS_ORDER: readonly ResultProcess[] = ["elastic", "momentum-transfer", "ionization", "orbitals"];
 
@@ -50,10 +52,13 @@ export function deriveRunResults(
     const source = `${file.fileName} of stage ${file.stage}`;
     const text = decode(file);
     if (file.reader === "orbital-table") {
-      return deriveIonizationResults(readOrbitalTable(text, file.fileName), analysis, {
-        charge: context.charge,
-        source,
-      });
+      const table = readOrbitalTable(text, file.fileName);
+      const ionization = deriveIonizationResults(table, analysis, { charge: context.charge, source });
+      const properties = deriveTargetProperties(table, { source });
+      return {
+        results: [...ionization.results, ...properties.results],
+        notes: [...ionization.notes, ...properties.notes],
+      };
     }
     return deriveScatteringResults(readKMatrixTable(text, file.fileName), analysis, { source });
   });

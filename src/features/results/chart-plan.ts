@@ -16,6 +16,7 @@ const KIND_ORDER: readonly ResultKind[] = [
   "eigenphase-sum",
   "rate-coefficient",
   "orbital-table",
+  "target-properties",
 ];
 
 const isWhole = (result: Result) => result.irrep === null && result.label === "";
@@ -131,6 +132,7 @@ const AXES: Record<ResultKind, { logX: boolean; logY: boolean } | null> = {
   "eigenphase-sum": { logX: false, logY: false },
   "rate-coefficient": { logX: true, logY: true },
   "orbital-table": null,
+  "target-properties": null,
 };
 
 /**

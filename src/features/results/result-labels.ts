@@ -25,6 +25,7 @@ const UNITS: readonly (readonly [suffix: string, printed: string])[] = [
   ["GHz", "GHz"],
   ["cm1", "cm⁻¹"],
   ["debye", "D"],
+  ["D", "D"],
   ["s", "s"],
   ["electrons", "electrons"],
 ];
@@ -95,5 +96,7 @@ export function resultTitle(kind: ResultKind, process: ResultProcess): string {
       return `${processWords} rate coefficient`;
     case "orbital-table":
       return "Orbitals used by the ionization model";
+    case "target-properties":
+      return "Target properties from the orbitals' calculation";
   }
 }

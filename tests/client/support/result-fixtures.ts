@@ -134,8 +134,27 @@ export const orbitals = [
   orbital("7e50c000-0000-4000-8000-000000000022", "A1", "3a1", [-15.87, 15.87, 61.91, 2]),
 ];
 
+/** Made-up target properties of an orbitals calculation (one row of single values). */
+export const targetProperties = result({
+  id: "7e50c000-0000-4000-8000-000000000031",
+  kind: "target-properties",
+  process: "orbitals",
+  columnOrder: ["total_energy_hartree", "dipole_z_D", "dipole_magnitude_D", "rotational_constant_a_cm1"],
+  columns: {
+    total_energy_hartree: [-76.02],
+    dipole_z_D: [-2.057],
+    dipole_magnitude_D: [2.057],
+    rotational_constant_a_cm1: [27.38],
+  },
+  method:
+    "psi4 1.3.2 rhf/cc-pvdz (c2v) from orbitals.txt of stage orbitals: dipole about the centre of mass.",
+});
+
 export function ionizationResults(): RunResults {
-  return { ...derivedResults(), results: [...orbitals, ionization1b1, ionizationTotal, ionization3a1] };
+  return {
+    ...derivedResults(),
+    results: [...orbitals, ionization1b1, ionizationTotal, ionization3a1, targetProperties],
+  };
 }
 
 /** n values from `from` to `to` evenly spaced on a logarithmic scale, as the postprocess step samples. */

@@ -10,7 +10,7 @@ import {
 } from "../chart-plan";
 import { formatSignificant } from "../format-number";
 import { LazyResultChart } from "./lazy-result-chart";
-import { ResultRowsTable, ResultTable } from "./result-table";
+import { PropertiesTable, ResultRowsTable, ResultTable } from "./result-table";
 
 /** The modified-Arrhenius parameters of a rate, as reaction networks take them. */
 function FitParameters({
@@ -127,6 +127,8 @@ export function ResultGroupCard({ group }: { group: ResultGroup }) {
         ))}
         {group.kind === "orbital-table" ? (
           <ResultRowsTable results={group.rows} caption={group.title} />
+        ) : group.kind === "target-properties" ? (
+          <PropertiesTable results={group.rows} caption={group.title} />
         ) : (
           <NumbersDisclosure group={group} />
         )}

@@ -69,3 +69,31 @@ export function ResultRowsTable({ results, caption }: { results: readonly Result
     </Table>
   );
 }
+
+/** Single-valued or short-list properties (energies, dipole, rotational constants, frequencies), one per line. */
+export function PropertiesTable({ results, caption }: { results: readonly Result[]; caption: string }) {
+  return (
+    <Table caption={caption}>
+      <THead>
+        <TR>
+          <TH className="px-3 normal-case tracking-normal">Quantity</TH>
+          <TH className="px-3 normal-case tracking-normal">Value</TH>
+        </TR>
+      </THead>
+      <TBody>
+        {results.flatMap((result) =>
+          result.columnOrder.map((name) => (
+            <TR key={`${result.id}/${name}`}>
+              <TD className="px-3 py-1 text-sm" title={name}>
+                {columnLabel(name).text}
+              </TD>
+              <TD className="px-3 py-1 font-mono text-xs tabular-nums">
+                {(result.columns[name] ?? []).map((value) => formatSignificant(value)).join(", ")}
+              </TD>
+            </TR>
+          )),
+        )}
+      </TBody>
+    </Table>
+  );
+}

@@ -1,8 +1,9 @@
-import { type KeyboardEvent, type ReactNode, useEffect, useId, useRef } from "react";
+import { type ReactNode, useId, useRef } from "react";
 import { createPortal } from "react-dom";
 import { describeError } from "@/lib/describe-error";
 import { Button } from "./button";
 import { Notice } from "./notice";
+import { useModalFocus } from "./use-modal-focus";
 
 type ConfirmDialogProps = {
   open: boolean;
@@ -17,9 +18,6 @@ type ConfirmDialogProps = {
   onConfirm: () => void;
   onClose: () => void;
 };
-
-const FOCUSABLE =
-  'button:not([disabled]), [href], input:not([disabled]), select:not([disabled]), [tabindex]:not([tabindex="-1"])';
 
 /** A modal question with a safe default: focus starts on Cancel and Escape backs out. */
 export function ConfirmDialog({
@@ -39,34 +37,15 @@ export function ConfirmDialog({
   const panelRef = useRef<HTMLDivElement>(null);
   const cancelRef = useRef<HTMLButtonElement>(null);
 
-  useEffect(() => {
-    if (!open) return;
-    const previouslyFocused = document.activeElement instanceof HTMLElement ? document.activeElement : null;
-    cancelRef.current?.focus();
-    return () => previouslyFocused?.focus();
-  }, [open]);
+  const handleKeyDown = useModalFocus({
+    open,
+    panelRef,
+    initialFocus: () => cancelRef.current,
+    pending,
+    onClose,
+  });
 
   if (!open) return null;
-
-  function handleKeyDown(event: KeyboardEvent<HTMLDivElement>) {
-    if (event.key === "Escape" && !pending) {
-      event.stopPropagation();
-      onClose();
-      return;
-    }
-    if (event.key !== "Tab" || !panelRef.current) return;
-    const focusable = Array.from(panelRef.current.querySelectorAll<HTMLElement>(FOCUSABLE));
-    const first = focusable[0];
-    const last = focusable[focusable.length - 1];
-    if (!first || !last) return;
-    if (event.shiftKey && document.activeElement === first) {
-      event.preventDefault();
-      last.focus();
-    } else if (!event.shiftKey && document.activeElement === last) {
-      event.preventDefault();
-      first.focus();
-    }
-  }
 
   return createPortal(
     <div className="fixed inset-0 z-50 flex items-center justify-center p-4">

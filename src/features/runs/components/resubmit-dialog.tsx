@@ -1,6 +1,6 @@
 import type { RunDetail, RunSpecChanges } from "@shared/schemas";
 import { useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
-import { type FormEvent, type KeyboardEvent, useEffect, useId, useRef, useState } from "react";
+import { type FormEvent, useId, useRef, useState } from "react";
 import { createPortal } from "react-dom";
 import { Button } from "@/components/ui/button";
 import { Field } from "@/components/ui/field";
@@ -8,14 +8,12 @@ import { Input } from "@/components/ui/input";
 import { Notice } from "@/components/ui/notice";
 import { Select } from "@/components/ui/select";
 import { Spinner } from "@/components/ui/spinner";
+import { useModalFocus } from "@/components/ui/use-modal-focus";
 import { describeError } from "@/lib/describe-error";
 import { fieldErrorsFromError } from "@/lib/field-errors";
 import { resubmitRun } from "../api/run-commands";
 import { runQueries } from "../api/run-queries";
 import { initialText, type ParameterField, parameterFields, readField } from "../parameter-fields";
-
-const FOCUSABLE =
-  'button:not([disabled]), [href], input:not([disabled]), select:not([disabled]), textarea:not([disabled]), [tabindex]:not([tabindex="-1"])';
 
 type ResubmittableRun = Pick<RunDetail, "id" | "name" | "recipeId" | "spec">;
 
@@ -107,31 +105,12 @@ export function ResubmitDialog({
   });
   const serverErrors = fieldErrorsFromError(resubmit.error);
 
-  useEffect(() => {
-    const previouslyFocused = document.activeElement instanceof HTMLElement ? document.activeElement : null;
-    panelRef.current?.querySelector<HTMLElement>("input, select")?.focus();
-    return () => previouslyFocused?.focus();
-  }, []);
-
-  function handleKeyDown(event: KeyboardEvent<HTMLDivElement>) {
-    if (event.key === "Escape" && !resubmit.isPending) {
-      event.stopPropagation();
-      onClose();
-      return;
-    }
-    if (event.key !== "Tab" || !panelRef.current) return;
-    const focusable = Array.from(panelRef.current.querySelectorAll<HTMLElement>(FOCUSABLE));
-    const first = focusable[0];
-    const last = focusable[focusable.length - 1];
-    if (!first || !last) return;
-    if (event.shiftKey && document.activeElement === first) {
-      event.preventDefault();
-      last.focus();
-    } else if (!event.shiftKey && document.activeElement === last) {
-      event.preventDefault();
-      first.focus();
-    }
-  }
+  const handleKeyDown = useModalFocus({
+    panelRef,
+    initialFocus: () => panelRef.current?.querySelector<HTMLElement>("input, select"),
+    pending: resubmit.isPending,
+    onClose,
+  });
 
   function handleSubmit(event: FormEvent<HTMLFormElement>) {
     event.preventDefault();

@@ -6,11 +6,8 @@
  */
 import { createHash } from "node:crypto";
 import { canonicalJson } from "../../shared/canonical-json";
-import {
-  type TargetTemplateContext,
-  targetDerivedSchema,
-  targetTemplateContextSchema,
-} from "../../shared/schemas/targets";
+import { type TargetTemplateContext, targetDerivedSchema } from "../../shared/schemas/targets";
+import { buildTargetTemplateContext } from "../../shared/target-template-context";
 import type { targets, targetVersions } from "../db/schema";
 
 export type RunTarget = {
@@ -24,34 +21,17 @@ export type RunTarget = {
  * order the science core lists them (Cotton order).
  */
 export function targetTemplateContext({ target, version }: RunTarget): TargetTemplateContext {
-  const derived = targetDerivedSchema.parse(version.derived);
-  return targetTemplateContextSchema.parse({
-    id: target.id,
-    versionId: version.id,
-    version: version.version,
-    name: target.name,
-    formula: derived.formula,
-    charge: version.charge,
-    multiplicity: version.multiplicity,
-    electronCount: derived.electronCount,
-    pointGroup: derived.pointGroup,
-    abelianSubgroup: derived.abelianSubgroup,
-    irreps: derived.irreps,
-    atoms: derived.atoms.map((atom) => ({
-      index: atom.index,
-      symbol: atom.symbol,
-      atomicNumber: atom.atomicNumber,
-      massNumber: atom.massNumber,
-      massU: atom.massU,
-      x: atom.positionAngstrom[0],
-      y: atom.positionAngstrom[1],
-      z: atom.positionAngstrom[2],
-    })),
-    rotationalConstantsCm1: derived.rotationalConstantsCm1,
-    rotationalConstantsMHz: derived.rotationalConstantsMHz,
-    totalMassU: derived.totalMassU,
-    nuclearRepulsionHartree: derived.nuclearRepulsionHartree,
-  });
+  return buildTargetTemplateContext(
+    {
+      id: target.id,
+      versionId: version.id,
+      version: version.version,
+      name: target.name,
+      charge: version.charge,
+      multiplicity: version.multiplicity,
+    },
+    targetDerivedSchema.parse(version.derived),
+  );
 }
 
 export type TargetFingerprint = { versionId: string; content: string };

@@ -4,12 +4,9 @@
  * Abelian subgroup, centre of mass at the origin, Å).
  */
 
-import {
-  createTargetRequestSchema,
-  type TargetTemplateContext,
-  targetTemplateContextSchema,
-} from "@shared/schemas/targets";
+import { createTargetRequestSchema, type TargetTemplateContext } from "@shared/schemas/targets";
 import { inspectTarget, type TargetInspection } from "@shared/science/geometry";
+import { buildTargetTemplateContext } from "@shared/target-template-context";
 import { DEMO_ISOTOPOLOGUES, DEMO_TARGETS, type DemoTarget } from "../../../../deploy/demo/targets";
 
 export interface DemoTargetCase {
@@ -37,33 +34,17 @@ function inspect(target: DemoTarget, isotopes: readonly { atom: number; massNumb
 
 function context(name: string, index: number, inspection: TargetInspection): TargetTemplateContext {
   const id = `00000000-0000-4000-8000-${String(index + 1).padStart(12, "0")}`;
-  return targetTemplateContextSchema.parse({
-    id,
-    versionId: id,
-    version: 1,
-    name,
-    formula: inspection.formula,
-    charge: inspection.chargeE,
-    multiplicity: inspection.multiplicity,
-    electronCount: inspection.electronCount,
-    pointGroup: inspection.pointGroup,
-    abelianSubgroup: inspection.abelianSubgroup,
-    irreps: inspection.irreps,
-    atoms: inspection.atoms.map((a) => ({
-      index: a.index,
-      symbol: a.symbol,
-      atomicNumber: a.atomicNumber,
-      massNumber: a.massNumber,
-      massU: a.massU,
-      x: a.positionAngstrom[0],
-      y: a.positionAngstrom[1],
-      z: a.positionAngstrom[2],
-    })),
-    rotationalConstantsCm1: inspection.rotationalConstantsCm1,
-    rotationalConstantsMHz: inspection.rotationalConstantsMHz,
-    totalMassU: inspection.totalMassU,
-    nuclearRepulsionHartree: inspection.nuclearRepulsionHartree,
-  });
+  return buildTargetTemplateContext(
+    {
+      id,
+      versionId: id,
+      version: 1,
+      name,
+      charge: inspection.chargeE,
+      multiplicity: inspection.multiplicity,
+    },
+    inspection,
+  );
 }
 
 /** Every demo target, then every demo isotopologue, as template contexts. */

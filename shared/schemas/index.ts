@@ -9,6 +9,7 @@ export * from "./health";
 export * from "./host-accounts";
 export * from "./hosts";
 export * from "./invitations";
+export * from "./live";
 export * from "./members";
 export * from "./names";
 export * from "./recipes";

@@ -11,6 +11,7 @@ const GROUPS: Record<string, string> = {
   rotational: "Rotational excitation of polar targets (dipole Born approximation)",
   rates: "Maxwellian rate coefficients from tabulated cross sections; Arrhenius fits",
   kmatrix: "Cross sections and eigenphases from K-matrices per irreducible representation",
+  runs: "A group's runs through the HTTP API: list, show, cancel, watch a run's log live",
 };
 
 function usage(): string {

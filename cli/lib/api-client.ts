@@ -15,6 +15,8 @@ const REQUEST_TIMEOUT_MS = 30_000;
 /** Largest response body read; a runs list or a log page is far below this. */
 const MAX_RESPONSE_BYTES = 64 * 1024 * 1024;
 
+export const TOKEN_REFUSED_MESSAGE = "the token was refused (revoked or mistyped?): check SIGMAFLOW_TOKEN.";
+
 export type ApiConfig = { baseUrl: string; token: string };
 
 /**
@@ -120,10 +122,7 @@ export function createApiClient(config: ApiConfig): ApiClient {
       }
       const text = await readBounded(response);
       if (response.status === 401) {
-        throw new CliError(
-          "the token was refused (revoked or mistyped?): check SIGMAFLOW_TOKEN.",
-          API_FAILURE_EXIT_CODE,
-        );
+        throw new CliError(TOKEN_REFUSED_MESSAGE, API_FAILURE_EXIT_CODE);
       }
       if (!response.ok) {
         throw new CliError(errorMessage(response.status, text), API_FAILURE_EXIT_CODE);

@@ -18,7 +18,7 @@ import {
 } from "../../shared/schemas/live";
 import type { RunState } from "../../shared/schemas/runs";
 import { CliError } from "../errors";
-import { API_FAILURE_EXIT_CODE, type ApiClient } from "./api-client";
+import { API_FAILURE_EXIT_CODE, type ApiClient, TOKEN_REFUSED_MESSAGE } from "./api-client";
 import { type ChunkWriter, drainStoredLog, isFinalState, readRunState, SerialQueue } from "./log-follow";
 
 /** How long the first connection and each join may take before the feed is given up for HTTP. */
@@ -30,6 +30,9 @@ const RECONNECTION_ATTEMPTS = 5;
  * even if its event never arrives.
  */
 const STATE_CHECK_INTERVAL_MS = 15_000;
+
+/** Join refusals that mean the token no longer works (it was revoked or expired after the first request). */
+const TOKEN_REFUSED_CODES = new Set(["invalid_token", "unauthenticated", "unauthorized"]);
 
 /** Bytes of one chunk as socket.io delivers them in Node (Buffer) or a browser (ArrayBuffer). */
 const chunkDataSchema = z.custom<Uint8Array | ArrayBuffer>(
@@ -123,7 +126,9 @@ export function followLiveFeed(
             return settle({ kind: "unavailable", reason: "the join's answer has an unexpected shape" });
           if (!ack.data.ok) {
             const { code, message } = ack.data.error;
-            if (code === "unauthorized") return settle({ kind: "unavailable", reason: message });
+            if (TOKEN_REFUSED_CODES.has(code)) {
+              return fail(new CliError(TOKEN_REFUSED_MESSAGE, API_FAILURE_EXIT_CODE));
+            }
             return fail(new CliError(message, API_FAILURE_EXIT_CODE));
           }
           // Read the state after the join: a run that finished before it sends no state event.
@@ -144,7 +149,7 @@ export function followLiveFeed(
       settle({ kind: "unavailable", reason: "the connection was lost" }),
     );
 
-    socket.on(LIVE_EVENTS.log, (raw: unknown) => {
+    socket.on(LIVE_EVENTS.log, (raw: unknown, ack?: unknown) => {
       const chunk = liveLogChunkSchema.safeParse(raw);
       if (!chunk.success || chunk.data.runId !== runId) return;
       const { seq, data } = chunk.data;
@@ -154,6 +159,8 @@ export function followLiveFeed(
           // A gap in the numbers (a chunk the feed did not deliver) is filled from the stored log first.
           if (seq > writer.lastSeq + 1) await drainStoredLog(client, runId, writer, seq - 1);
           await writer.accept({ seq, data: toBuffer(data) });
+          // Acknowledged once stdout took the bytes: the server's send budget then follows our reader.
+          if (typeof ack === "function") ack();
         })
         .catch(fail);
     });

@@ -18,6 +18,7 @@ export type Handler = (
 
 export type FakeApi = {
   url: string;
+  server: Server;
   /** `METHOD /path` (no query) → handler. */
   routes: Map<string, Handler>;
   /** Every request as `METHOD /path?query` with its authorization header. */
@@ -50,6 +51,7 @@ export async function startFakeApi(): Promise<FakeApi> {
   const { port } = server.address() as AddressInfo;
   return {
     url: `http://127.0.0.1:${port}`,
+    server,
     routes,
     requests,
     close: () =>

@@ -99,19 +99,20 @@ export function followLiveFeed(
     const onAbort = () => settle({ kind: "unavailable", reason: "stopped" });
     signal?.addEventListener("abort", onAbort, { once: true });
 
-    /** Final state seen: take whatever is stored but not yet written, then stop. */
-    const finish = (state: RunState) =>
-      queue.run(async () => {
-        if (settled) return;
-        await drainStoredLog(client, runId, writer);
-        settle({ kind: "final", state });
-      });
+    /** Final state seen: take whatever is stored but not yet written, then stop. Runs inside the queue. */
+    async function finishInQueue(state: RunState) {
+      if (settled) return;
+      await drainStoredLog(client, runId, writer);
+      settle({ kind: "final", state });
+    }
+    const finish = (state: RunState) => queue.run(() => finishInQueue(state));
 
     const checkState = () =>
       queue.run(async () => {
         if (settled) return;
         const state = await readRunState(client, runId);
-        if (isFinalState(state)) await finish(state);
+        // Not `finish`: queueing behind this very task would wait for itself.
+        if (isFinalState(state)) await finishInQueue(state);
       });
 
     socket.on("connect", () => {

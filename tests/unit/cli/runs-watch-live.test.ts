@@ -122,4 +122,33 @@ describe("runs watch on the live feed", { timeout: 30_000 }, () => {
     expect(Buffer.concat(parts).equals(Buffer.concat(STORED.map((c) => c.data)))).toBe(true);
     expect(parts.length).toBe(STORED.length);
   });
+
+  it("replays a run that ended before the join and stops though no state event comes", async () => {
+    io.removeAllListeners("connection");
+    api.routes.set(`GET /api/runs/${RUN_ID}`, () => ({ body: runDetail({ state: "done" }) }));
+    api.routes.set(`GET /api/runs/${RUN_ID}/log`, (url) => {
+      const afterSeq = Number(url.searchParams.get("afterSeq"));
+      const page = STORED.filter((c) => c.seq > afterSeq);
+      return { body: logPage(page, page.at(-1)?.seq ?? afterSeq, true) };
+    });
+    io.on("connection", (socket) => {
+      socket.on(LIVE_EVENTS.joinRun, (_join: unknown, ack: (a: unknown) => void) => {
+        ack({ ok: true });
+        for (const chunk of STORED.slice(0, 4)) {
+          socket.emit(LIVE_EVENTS.log, { runId: RUN_ID, ...chunk, at: AT }, () => {});
+        }
+      });
+    });
+    const parts: Buffer[] = [];
+    const out = new Writable({
+      write(chunk: Buffer, _encoding, callback) {
+        parts.push(Buffer.from(chunk));
+        callback();
+      },
+    });
+    const client = createApiClient(apiConfigFromEnv({ SIGMAFLOW_URL: api.url, SIGMAFLOW_TOKEN: TOKEN }));
+    const result = await watchRun(client, RUN_ID, out, { pollIntervalMs: 10 });
+    expect(result).toEqual({ kind: "final", state: "done", via: "live" });
+    expect(Buffer.concat(parts).equals(Buffer.concat(STORED.map((c) => c.data)))).toBe(true);
+  });
 });

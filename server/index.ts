@@ -7,6 +7,7 @@ import { applyMigrations } from "./db/migrate";
 import { createLogger } from "./logger";
 import { createMailer } from "./mail/mailer";
 import { createBoss, createRunQueues } from "./queue/queues";
+import { attachLiveFeed } from "./realtime/live-server";
 
 const config = loadConfig();
 const log = createLogger(config.logLevel);
@@ -20,6 +21,8 @@ await boss.start();
 await createRunQueues(boss);
 const app = createApp({ db, pool, boss, config, mailer, log });
 const server = createServer(app);
+// After the app: socket.io serves its own path and passes every other request to the app.
+const live = attachLiveFeed(server, { db, pool, config, log });
 
 server.listen(config.port, config.host, () => {
   log.info({ url: config.publicUrl }, `Sigmaflow server listening on ${config.publicUrl}`);
@@ -30,6 +33,7 @@ async function shutdown(signal: string) {
   if (stopping) return;
   stopping = true;
   log.info({ signal }, "shutting down");
+  await live.close();
   server.close();
   server.closeAllConnections();
   mailer.close();

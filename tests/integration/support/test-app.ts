@@ -11,6 +11,7 @@ import { loadConfig } from "../../../server/config";
 import { createLogger, type Logger } from "../../../server/logger";
 import type { Mailer, OutgoingMail } from "../../../server/mail/mailer";
 import { createBoss, createRunQueues } from "../../../server/queue/queues";
+import { attachLiveFeed, type LiveFeedOptions } from "../../../server/realtime/live-server";
 import type { TestDatabase } from "./test-database";
 
 export type RecordingMailer = Mailer & { sent: OutgoingMail[]; failNext: boolean };
@@ -33,7 +34,14 @@ export function recordingMailer(): RecordingMailer {
 
 export async function startTestApp(
   database: TestDatabase,
-  options: { oidcIssuer?: string; port?: number; env?: Record<string, string>; log?: Logger } = {},
+  options: {
+    oidcIssuer?: string;
+    port?: number;
+    env?: Record<string, string>;
+    log?: Logger;
+    /** Settings of the live feed (socket.io at /api/live), e.g. a small send budget. */
+    live?: LiveFeedOptions;
+  } = {},
 ) {
   const server: Server = createServer();
   await new Promise<void>((resolve) => server.listen(options.port ?? 0, "127.0.0.1", resolve));
@@ -56,21 +64,20 @@ export async function startTestApp(
   const boss = createBoss(database.url, { maintenance: false });
   await boss.start();
   await createRunQueues(boss);
-  const app = createApp({
-    db: database.db,
-    pool: database.pool,
-    boss,
-    config,
-    mailer,
-    log: options.log ?? createLogger("silent"),
-  });
+  const log = options.log ?? createLogger("silent");
+  const app = createApp({ db: database.db, pool: database.pool, boss, config, mailer, log });
   server.on("request", app);
+  // After the app, as in server/index.ts; tests start once the feed listens, so no notice is missed.
+  const live = attachLiveFeed(server, { db: database.db, pool: database.pool, config, log }, options.live);
+  await live.ready;
   return {
     baseUrl: `http://127.0.0.1:${port}`,
     config,
     mailer,
     boss,
+    live,
     close: async () => {
+      await live.close();
       await new Promise<void>((resolve) => {
         server.closeAllConnections();
         server.close(() => resolve());

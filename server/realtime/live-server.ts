@@ -1,0 +1,262 @@
+/**
+ * The live run feed: socket.io at LIVE_PATH on the server's HTTP server (contract: shared/schemas/live.ts).
+ *
+ * Fan-out is our own LISTEN path (run-notices.ts): this process's one LISTEN connection hears every notice
+ * and wakes the feeds of its own sockets; every server instance behind one address does the same for its
+ * sockets, so no event crosses between instances and no socket.io adapter is involved.
+ *
+ * Rooms: `run:<id>` (state and progress broadcasts; each socket also has its own log feed per run, since
+ * each client holds its own last sequence number) and `group:<id>` (run summaries).
+ */
+import type { Server as HttpServer } from "node:http";
+import type pg from "pg";
+import { Server, type Socket } from "socket.io";
+import type { z } from "zod";
+import {
+  LIVE_EVENTS,
+  LIVE_PATH,
+  type LiveAck,
+  liveJoinGroupSchema,
+  liveJoinRunSchema,
+  liveLeaveRunSchema,
+} from "../../shared/schemas/live";
+import { sessionMiddleware } from "../auth/session";
+import type { ServerConfig } from "../config";
+import type { Database } from "../db/client";
+import { AppError, validationError } from "../http/errors";
+import type { Logger } from "../logger";
+import { requireGroupRole } from "../services/access";
+import { visibleRun } from "../services/run-reads.service";
+import {
+  authenticateSocket,
+  currentPrincipal,
+  originCheck,
+  publicOrigin,
+  sessionOnHandshake,
+} from "./live-auth";
+import { RunLogFeed, SendBudget } from "./log-feed";
+import { groupRoom, RoomBroadcasts, runRoom } from "./room-broadcasts";
+import { type RunNotice, startRunNoticeListener } from "./run-notices";
+
+/** Unacknowledged log bytes one socket may have before its feeds pause. */
+export const DEFAULT_SEND_BUDGET_BYTES = 4 * 1024 * 1024;
+/** Rooms one socket may be in: a runs list and a few run pages are far below. */
+const MAX_RUNS_PER_SOCKET = 64;
+const MAX_GROUPS_PER_SOCKET = 32;
+/** Client messages are a few ids; anything larger is refused by engine.io before parsing. */
+const MAX_CLIENT_MESSAGE_BYTES = 16 * 1024;
+
+export type LiveFeedDeps = {
+  db: Database;
+  pool: pg.Pool;
+  config: ServerConfig;
+  log: Logger;
+};
+
+export type LiveFeedOptions = { sendBudgetBytes?: number };
+
+export type LiveFeed = {
+  io: Server;
+  /** Resolves once the LISTEN connection first listens. */
+  ready: Promise<void>;
+  /** Whether the LISTEN connection listens right now. */
+  listening(): boolean;
+  /** Ends the sockets and the LISTEN connection; the HTTP server is left to its owner. */
+  close(): Promise<void>;
+};
+
+type SocketState = { budget: SendBudget; feeds: Map<string, RunLogFeed>; groups: Set<string> };
+
+function parse<S extends z.ZodType>(schema: S, payload: unknown): z.infer<S> {
+  const result = schema.safeParse(payload);
+  if (!result.success) throw validationError(result.error, "body");
+  return result.data;
+}
+
+/**
+ * Attaches the live feed to `httpServer`. Call it after the Express app is the server's request listener:
+ * socket.io takes the requests under LIVE_PATH and hands every other one to the listeners already there.
+ */
+export function attachLiveFeed(
+  httpServer: HttpServer,
+  deps: LiveFeedDeps,
+  options: LiveFeedOptions = {},
+): LiveFeed {
+  const { db, log } = deps;
+  const sendBudgetBytes = options.sendBudgetBytes ?? DEFAULT_SEND_BUDGET_BYTES;
+  const expectedOrigin = publicOrigin(deps.config.publicUrl);
+  const io = new Server(httpServer, {
+    path: LIVE_PATH,
+    serveClient: false,
+    maxHttpBufferSize: MAX_CLIENT_MESSAGE_BYTES,
+    allowRequest: originCheck(expectedOrigin, log),
+  });
+  io.engine.use(sessionOnHandshake(sessionMiddleware(deps.pool, deps.config), expectedOrigin));
+  io.use(authenticateSocket(db));
+
+  const broadcasts = new RoomBroadcasts(io, db, log);
+  const states = new Map<string, SocketState>();
+  /** Log feeds by the run whose log they read: a log notice wakes exactly these. */
+  const feedsByLogRun = new Map<string, Set<RunLogFeed>>();
+
+  io.sockets.adapter.on("delete-room", (room: string) => {
+    if (room.startsWith("run:")) broadcasts.roomEmptied(room.slice("run:".length));
+  });
+
+  function addFeed(feed: RunLogFeed) {
+    const set = feedsByLogRun.get(feed.logRunId) ?? new Set<RunLogFeed>();
+    feedsByLogRun.set(feed.logRunId, set);
+    set.add(feed);
+  }
+
+  function removeFeed(feed: RunLogFeed) {
+    feed.stop();
+    const set = feedsByLogRun.get(feed.logRunId);
+    set?.delete(feed);
+    if (set?.size === 0) feedsByLogRun.delete(feed.logRunId);
+  }
+
+  function onNotice(notice: RunNotice) {
+    if (notice.type === "log") {
+      for (const feed of feedsByLogRun.get(notice.runId) ?? []) feed.wake();
+      broadcasts.progressChanged(notice.runId);
+    } else {
+      broadcasts.stateChanged(notice.runId);
+    }
+  }
+
+  const listener = startRunNoticeListener({
+    connection: deps.pool.options,
+    log,
+    onNotice,
+    onListening(lostAt) {
+      if (!lostAt) return;
+      // Notices may have been missed while the connection was down: every feed reads what is stored.
+      for (const set of feedsByLogRun.values()) for (const feed of set) feed.wake();
+      broadcasts.catchUp(lostAt);
+    },
+  });
+
+  /** Runs `handle` for a client event and answers its ack with ok or the API's error code and message. */
+  function handler(
+    socket: Socket,
+    event: string,
+    handle: (payload: unknown, state: SocketState) => Promise<(() => void) | undefined>,
+  ) {
+    socket.on(event, (payload: unknown, ack?: unknown) => {
+      const reply = (answer: LiveAck) => {
+        if (typeof ack === "function") ack(answer);
+      };
+      const state = states.get(socket.id);
+      if (!state) return;
+      handle(payload, state).then(
+        (afterAck) => {
+          if (socket.disconnected) return;
+          reply({ ok: true });
+          afterAck?.();
+        },
+        (error: unknown) => {
+          if (error instanceof AppError) {
+            reply({ ok: false, error: { code: error.code, message: error.message } });
+            return;
+          }
+          log.error({ err: error, event }, "live feed: handling a client event failed");
+          reply({
+            ok: false,
+            error: { code: "internal_error", message: "Something went wrong; try again." },
+          });
+        },
+      );
+    });
+  }
+
+  /** run:join and run:resume: the client holds the run's log up to `afterSeq`. */
+  async function joinRun(socket: Socket, payload: unknown, state: SocketState) {
+    const { runId, afterSeq } = parse(liveJoinRunSchema, payload);
+    const principal = await currentPrincipal(db, socket);
+    const run = await visibleRun(db, principal, runId, "collaborator");
+    if (socket.disconnected) return undefined;
+    const existing = state.feeds.get(run.id);
+    if (existing) return () => existing.restart(afterSeq);
+    if (state.feeds.size >= MAX_RUNS_PER_SOCKET)
+      throw new AppError(
+        429,
+        "too_many_rooms",
+        `One connection follows at most ${MAX_RUNS_PER_SOCKET} runs; leave one first.`,
+      );
+    // A run that reused another's results has no log of its own: it serves the original's (as HTTP does).
+    const feed = new RunLogFeed({
+      db,
+      log,
+      socket,
+      budget: state.budget,
+      runId: run.id,
+      logRunId: run.reusedFrom ?? run.id,
+      afterSeq,
+    });
+    state.feeds.set(run.id, feed);
+    addFeed(feed);
+    socket.join(runRoom(run.id));
+    // After the ack, so the client hears that it joined before the first chunk.
+    return () => {
+      broadcasts.joined(socket.id, run.id);
+      feed.wake();
+    };
+  }
+
+  io.on("connection", (socket) => {
+    states.set(socket.id, {
+      budget: new SendBudget(sendBudgetBytes),
+      feeds: new Map(),
+      groups: new Set(),
+    });
+
+    handler(socket, LIVE_EVENTS.joinRun, (payload, state) => joinRun(socket, payload, state));
+    handler(socket, LIVE_EVENTS.resumeRun, (payload, state) => joinRun(socket, payload, state));
+
+    handler(socket, LIVE_EVENTS.leaveRun, async (payload, state) => {
+      const { runId } = parse(liveLeaveRunSchema, payload);
+      const feed = state.feeds.get(runId);
+      if (feed) {
+        removeFeed(feed);
+        state.feeds.delete(runId);
+      }
+      socket.leave(runRoom(runId));
+      return undefined;
+    });
+
+    handler(socket, LIVE_EVENTS.joinGroup, async (payload, state) => {
+      const { groupId } = parse(liveJoinGroupSchema, payload);
+      const principal = await currentPrincipal(db, socket);
+      // The same permission as listing the group's runs.
+      await requireGroupRole(db, principal, groupId, "collaborator");
+      if (socket.disconnected || state.groups.has(groupId)) return undefined;
+      if (state.groups.size >= MAX_GROUPS_PER_SOCKET)
+        throw new AppError(
+          429,
+          "too_many_rooms",
+          `One connection follows at most ${MAX_GROUPS_PER_SOCKET} groups.`,
+        );
+      state.groups.add(groupId);
+      socket.join(groupRoom(groupId));
+      return undefined;
+    });
+
+    socket.on("disconnect", () => {
+      const state = states.get(socket.id);
+      states.delete(socket.id);
+      for (const feed of state?.feeds.values() ?? []) removeFeed(feed);
+    });
+  });
+
+  return {
+    io,
+    ready: listener.ready,
+    listening: listener.listening,
+    async close() {
+      await listener.close();
+      for (const socket of io.sockets.sockets.values()) socket.disconnect(true);
+      io.engine.close();
+    },
+  };
+}

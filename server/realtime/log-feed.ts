@@ -1,0 +1,167 @@
+/**
+ * One socket's feed of one run's log: every stored chunk after the sequence number the client holds, in
+ * order, each once, first the replay and then live ones as notices wake the feed.
+ *
+ * Invariants: at most one read of the stored log is in flight per feed; a wake-up during a read makes the
+ * feed read again after it (from the last sequence number sent, so nothing is sent twice and nothing that
+ * was stored meanwhile is missed). Chunks always come from the database, never from a notice's payload.
+ *
+ * Flow control: the bytes a socket was sent but has not acknowledged (the client calls the ack callback of
+ * `run:log`) count against its send budget. Past the budget a feed stops and emits `run:paused`; the client
+ * goes on with `run:resume` from the last sequence number it holds, which also settles the feed's
+ * unacknowledged chunks (the client holds them or asks for them again). A client that never acknowledges
+ * thus pauses once per budget's worth of log and resumes, and the server never holds more than about one
+ * budget of a socket's log in its buffers.
+ */
+import type { Socket } from "socket.io";
+import { LIVE_EVENTS, type LiveLogChunk } from "../../shared/schemas/live";
+import type { Database } from "../db/client";
+import type { Logger } from "../logger";
+import { readRunLogChunks } from "../services/run-log.service";
+
+/**
+ * Chunks read per query while catching up: a chunk holds at most 256 KiB (the worker's read per poll),
+ * so a page stays within 8 MiB even of the largest chunks.
+ */
+const PAGE_CHUNKS = 32;
+/** After this long without an acknowledgement socket.io forgets the callback; the bytes stay counted. */
+const ACK_TIMEOUT_MS = 120_000;
+
+/** Bytes sent to one socket and not yet acknowledged, by the feed they belong to. */
+export class SendBudget {
+  private nextId = 0;
+  private readonly pending = new Map<number, { feed: RunLogFeed; bytes: number }>();
+  unacknowledgedBytes = 0;
+
+  constructor(readonly limitBytes: number) {}
+
+  /** Whether sending `bytes` more stays within the budget (one chunk always may go when nothing is pending). */
+  allows(bytes: number): boolean {
+    return this.unacknowledgedBytes === 0 || this.unacknowledgedBytes + bytes <= this.limitBytes;
+  }
+
+  add(feed: RunLogFeed, bytes: number): number {
+    const id = this.nextId++;
+    this.pending.set(id, { feed, bytes });
+    this.unacknowledgedBytes += bytes;
+    return id;
+  }
+
+  acknowledge(id: number): void {
+    const entry = this.pending.get(id);
+    if (!entry) return;
+    this.pending.delete(id);
+    this.unacknowledgedBytes -= entry.bytes;
+  }
+
+  /** Forgets what one feed sent (it resumed from a sequence number, or stopped). */
+  settle(feed: RunLogFeed): void {
+    for (const [id, entry] of this.pending) {
+      if (entry.feed === feed) {
+        this.pending.delete(id);
+        this.unacknowledgedBytes -= entry.bytes;
+      }
+    }
+  }
+}
+
+export type RunLogFeedOptions = {
+  db: Database;
+  log: Logger;
+  socket: Socket;
+  budget: SendBudget;
+  /** The run the client joined (chunks are labelled with it). */
+  runId: string;
+  /** The run whose log is read: the run itself, or the one whose results it reused. */
+  logRunId: string;
+  afterSeq: number;
+};
+
+export class RunLogFeed {
+  readonly runId: string;
+  readonly logRunId: string;
+  private lastSentSeq: number;
+  /** Bumped by `restart`: a read started before belongs to an older cursor and is dropped. */
+  private generation = 0;
+  private reading = false;
+  private again = false;
+  private paused = false;
+  private stopped = false;
+
+  constructor(private readonly options: RunLogFeedOptions) {
+    this.runId = options.runId;
+    this.logRunId = options.logRunId;
+    this.lastSentSeq = options.afterSeq;
+  }
+
+  /** Go on from `afterSeq` (a repeated join or a resume): the client holds everything up to it. */
+  restart(afterSeq: number): void {
+    this.options.budget.settle(this);
+    this.lastSentSeq = afterSeq;
+    this.generation += 1;
+    this.paused = false;
+    this.wake();
+  }
+
+  /** New chunks may be stored: read after the last one sent (now, or after the read in flight). */
+  wake(): void {
+    if (this.stopped || this.paused) return;
+    if (this.reading) {
+      this.again = true;
+      return;
+    }
+    this.reading = true;
+    this.pump()
+      .catch((error: unknown) => {
+        this.options.log.error(
+          { err: error, runId: this.runId },
+          "live feed: reading the stored log failed; the client catches up on its next wake-up or resume",
+        );
+      })
+      .finally(() => {
+        this.reading = false;
+        // A wake-up that came while the failed or finished read was in flight still deserves its read.
+        if (this.again && !this.stopped && !this.paused) this.wake();
+      });
+  }
+
+  stop(): void {
+    this.stopped = true;
+    this.options.budget.settle(this);
+  }
+
+  private async pump(): Promise<void> {
+    const { db, socket, budget } = this.options;
+    do {
+      this.again = false;
+      for (;;) {
+        const generation = this.generation;
+        const page = await readRunLogChunks(db, this.logRunId, this.lastSentSeq, PAGE_CHUNKS);
+        if (this.stopped || this.paused) return;
+        // Restarted while reading: this page starts at the old cursor; read from the new one.
+        if (generation !== this.generation) continue;
+        for (const chunk of page) {
+          if (chunk.seq <= this.lastSentSeq) continue;
+          if (!budget.allows(chunk.content.byteLength)) {
+            this.paused = true;
+            socket.emit(LIVE_EVENTS.paused, { runId: this.runId, lastSentSeq: this.lastSentSeq });
+            return;
+          }
+          const id = budget.add(this, chunk.content.byteLength);
+          const payload: LiveLogChunk = {
+            runId: this.runId,
+            seq: chunk.seq,
+            offsetBytes: chunk.offsetBytes,
+            data: chunk.content,
+            at: chunk.at.toISOString(),
+          };
+          socket.timeout(ACK_TIMEOUT_MS).emit(LIVE_EVENTS.log, payload, (timedOut: Error | null) => {
+            if (!timedOut) budget.acknowledge(id);
+          });
+          this.lastSentSeq = chunk.seq;
+        }
+        if (page.length < PAGE_CHUNKS) break;
+      }
+    } while (this.again && !this.stopped && !this.paused);
+  }
+}

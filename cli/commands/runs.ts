@@ -30,14 +30,15 @@ const USAGE = `Usage:
   sigmaflow runs list [--group ID|NAME] [--state STATE] [--limit N] [--json]
   sigmaflow runs show RUN [--json]
   sigmaflow runs cancel RUN [--json]
-  sigmaflow runs watch RUN
+  sigmaflow runs watch RUN [--poll]
 
 RUN is a run id (the last column of \`runs list\`). The server and the API token come from the environment:
   SIGMAFLOW_URL    the Sigmaflow server, e.g. http://127.0.0.1:5180
   SIGMAFLOW_TOKEN  an API token (sf_…), sent as Authorization: Bearer
 
-\`watch\` exits with 0 when the run is done, 1 when it failed, 3 when it was cancelled. Every command exits
-with 2 for bad usage and 4 when the server cannot be reached or refuses the request.
+\`watch\` exits with 0 when the run is done, 1 when it failed, 3 when it was cancelled. It follows the live
+feed, or with --poll (or when the feed cannot connect) reads the stored log over HTTP once a second.
+Every command exits with 2 for bad usage and 4 when the server cannot be reached or refuses the request.
 `;
 
 const runIdSchema = z.uuid();
@@ -185,7 +186,10 @@ export function describeRun(run: RunDetail): string {
   field("created", formatTime(run.createdAt));
   field("started", formatTime(run.startedAt));
   field("finished", formatTime(run.finishedAt));
-  field("resources", `${run.cores} cores, ${run.wallTimeMinutes} min wall time`);
+  field(
+    "resources",
+    `${run.cores} ${run.cores === 1 ? "core" : "cores"}, ${run.wallTimeMinutes} min wall time`,
+  );
   const charged = run.chargedCoreHours === null ? "not yet charged" : `${run.chargedCoreHours} charged`;
   field("core-hours", `${run.reservedCoreHours} reserved, ${charged}`);
   if (run.schedulerJobId) field("job", oneLine(run.schedulerJobId, 60));
@@ -270,12 +274,23 @@ async function cancelCommand(args: string[]): Promise<number> {
 }
 
 async function watchCommand(args: string[]): Promise<number> {
-  const { positionals } = parseCommandArgs(args, {}, { names: ["RUN"] });
+  const { values, positionals } = parseCommandArgs(
+    args,
+    { poll: { type: "boolean", default: false } },
+    { names: ["RUN"] },
+  );
   const runId = parseRunId(positionals[0]!);
   const api = client();
   // Fails early and clearly for an unknown run or a refused token, before any output.
   await api.request("GET", `/api/runs/${runId}`, runDetailSchema);
-  const result = await watchRun(api, runId, process.stdout);
+  const result = await watchRun(api, runId, process.stdout, {
+    live: !values.poll,
+    onFallback: (reason) =>
+      process.stderr.write(
+        `sigmaflow runs watch: the live feed is not available (${oneLine(reason, 200)}); ` +
+          "following the stored log over HTTP instead.\n",
+      ),
+  });
   if (result.kind === "output-closed") return 0;
   if (result.state === "done") return WATCH_EXIT_CODES.done;
   if (result.state === "failed") return WATCH_EXIT_CODES.failed;

@@ -3,6 +3,10 @@ import { cleanup, configure } from "@testing-library/react";
 import { afterAll, afterEach, beforeAll, vi } from "vitest";
 import { server } from "./support/server";
 
+// The live feed's socket never reaches a server unless a test drives it (support/fake-socket.ts): pages
+// behave as with the feed away, and no test opens a real connection.
+vi.mock("socket.io-client", () => import("./support/fake-socket"));
+
 // Route pages are lazy modules: the first import in a test file is transformed on demand and can take
 // seconds on a busy two-core machine, so waits (which end as soon as their condition holds) allow for it.
 configure({ asyncUtilTimeout: 8_000 });

@@ -7,23 +7,43 @@ import { TableSkeleton } from "@/components/ui/skeleton";
 import { Table, TBody, TD, TH, THead, TR } from "@/components/ui/table";
 import { formatDateTime } from "@/lib/format";
 import { paths } from "@/lib/paths";
-import { runQueries } from "../api/run-queries";
+import { isFinished, runQueries } from "../api/run-queries";
 import { formatCoreHours as coreHours } from "../format-core-hours";
 import { RunActions } from "./run-actions";
 import { RunStateBadge } from "./run-state-badge";
 import { RunTarget } from "./run-target";
 
+/** While changes cannot arrive live, the list still reads itself again this often. */
+const FALLBACK_REFRESH_MS = 30_000;
+
 export function RunsTable({
   groupId,
   groupName,
   canAct,
+  updates,
 }: {
   groupId: string;
   groupName: string;
   /** Members and admins may cancel and resubmit; collaborators read. */
   canAct: boolean;
+  /**
+   * `live`: changes arrive from the live feed and the list does not poll; `fallback`: the feed is away
+   * and the list reads itself again slowly. Left out: the list refreshes itself while a run is unfinished.
+   */
+  updates?: "live" | "fallback";
 }) {
-  const runs = useQuery(runQueries.list(groupId));
+  const options = runQueries.list(groupId);
+  const runs = useQuery(
+    updates === undefined
+      ? options
+      : {
+          ...options,
+          refetchInterval: (query) =>
+            updates === "fallback" && query.state.data?.runs.some((run) => !isFinished(run))
+              ? FALLBACK_REFRESH_MS
+              : false,
+        },
+  );
   if (runs.isPending) return <TableSkeleton rows={4} label="Loading runs" />;
   if (runs.isError)
     return <ErrorState error={runs.error} onRetry={() => runs.refetch()} retrying={runs.isFetching} />;

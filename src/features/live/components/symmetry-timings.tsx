@@ -1,0 +1,64 @@
+import type { RunProgress } from "@shared/schemas/runs";
+import { Table, TBody, TD, TH, THead, TR } from "@/components/ui/table";
+import { estimateRemaining, formatDurationSeconds, type RemainingTime } from "../remaining-time";
+
+type Timing = { stage: string; symmetry: string; durationSeconds: number };
+
+function describe(remaining: RemainingTime, progress: RunProgress | null): string | null {
+  switch (remaining.kind) {
+    case "none":
+      return null;
+    case "after-first":
+      return `Stage ${progress?.stage}: estimate after the first symmetry.`;
+    case "total-unknown":
+      return `Stage ${progress?.stage}: no estimate yet — the stage has not said how many symmetries it has.`;
+    case "stage-done":
+      return `Stage ${progress?.stage}: every symmetry is done.`;
+    case "estimate":
+      return `Stage ${progress?.stage}: about ${formatDurationSeconds(remaining.seconds)} left — ${remaining.symmetriesLeft} ${remaining.symmetriesLeft === 1 ? "symmetry" : "symmetries"} at ${remaining.meanSeconds.toFixed(1)} s each on average so far.`;
+  }
+}
+
+/** Per-symmetry times as the log reports them, with the time the current stage may still need. */
+export function SymmetryTimings({
+  timings,
+  progress,
+  finished,
+}: {
+  timings: readonly Timing[];
+  progress: RunProgress | null;
+  finished: boolean;
+}) {
+  const estimate = finished ? null : describe(estimateRemaining(progress, timings), progress);
+  return (
+    <div className="flex flex-col gap-2">
+      {estimate ? (
+        <p className="text-sm text-ink-700" data-testid="remaining-time">
+          {estimate}
+        </p>
+      ) : null}
+      {timings.length === 0 ? (
+        <p className="text-sm text-ink-500">No symmetry finished yet.</p>
+      ) : (
+        <Table caption="Time per symmetry">
+          <THead>
+            <TR>
+              <TH>Stage</TH>
+              <TH>Symmetry</TH>
+              <TH>Seconds</TH>
+            </TR>
+          </THead>
+          <TBody>
+            {timings.map((timing) => (
+              <TR key={`${timing.stage}-${timing.symmetry}`}>
+                <TD>{timing.stage}</TD>
+                <TD className="font-mono">{timing.symmetry}</TD>
+                <TD className="font-mono">{timing.durationSeconds.toFixed(2)}</TD>
+              </TR>
+            ))}
+          </TBody>
+        </Table>
+      )}
+    </div>
+  );
+}

@@ -17,8 +17,8 @@ export class FakeSocket {
   constructor(readonly options: unknown) {}
 
   on(event: string, listener: Listener): this {
-    let set = this.listeners.get(event);
-    if (!set) this.listeners.set(event, (set = new Set()));
+    const set = this.listeners.get(event) ?? new Set();
+    this.listeners.set(event, set);
     set.add(listener);
     return this;
   }

@@ -183,11 +183,14 @@ describe("results of a run whose code declares result files", () => {
         "rate-coefficient/elastic",
         "rate-coefficient/momentum-transfer",
         "rate-coefficient/ionization",
+        "target-properties/orbitals",
       ]),
     );
+    expect(kinds.indexOf("target-properties")).toBeGreaterThan(kinds.lastIndexOf("orbital-table"));
     for (const row of body.results) {
       expect(row.columnOrder.length).toBeGreaterThan(0);
-      for (const name of row.columnOrder) expect(name).toMatch(/_(eV|A2|rad|K|cm3_per_s|electrons)$/);
+      for (const name of row.columnOrder)
+        expect(name).toMatch(/_(eV|A2|rad|K|cm3_per_s|electrons|hartree|D|cm1)$/);
     }
     const rate = body.results.find((r) => r.kind === "rate-coefficient" && r.process === "ionization")!;
     expect(rate.columnOrder).toEqual(["temperature_K", "rate_cm3_per_s"]);

@@ -43,6 +43,8 @@ export const DEFAULT_SEND_BUDGET_BYTES = 4 * 1024 * 1024;
 /** Rooms one socket may be in: a runs list and a few run pages are far below. */
 const MAX_RUNS_PER_SOCKET = 64;
 const MAX_GROUPS_PER_SOCKET = 32;
+/** Client events of one socket handled at once; more are refused until these are answered. */
+const MAX_EVENTS_IN_FLIGHT = 8;
 /** Client messages are a few ids; anything larger is refused by engine.io before parsing. */
 const MAX_CLIENT_MESSAGE_BYTES = 16 * 1024;
 
@@ -65,7 +67,13 @@ export type LiveFeed = {
   close(): Promise<void>;
 };
 
-type SocketState = { budget: SendBudget; feeds: Map<string, RunLogFeed>; groups: Set<string> };
+type SocketState = {
+  budget: SendBudget;
+  feeds: Map<string, RunLogFeed>;
+  groups: Set<string>;
+  /** Client events being handled: each costs a few queries, so a socket gets only a few at once. */
+  inFlight: number;
+};
 
 function parse<S extends z.ZodType>(schema: S, payload: unknown): z.infer<S> {
   const result = schema.safeParse(payload);
@@ -149,24 +157,36 @@ export function attachLiveFeed(
       };
       const state = states.get(socket.id);
       if (!state) return;
-      handle(payload, state).then(
-        (afterAck) => {
-          if (socket.disconnected) return;
-          reply({ ok: true });
-          afterAck?.();
-        },
-        (error: unknown) => {
-          if (error instanceof AppError) {
-            reply({ ok: false, error: { code: error.code, message: error.message } });
-            return;
-          }
-          log.error({ err: error, event }, "live feed: handling a client event failed");
-          reply({
-            ok: false,
-            error: { code: "internal_error", message: "Something went wrong; try again." },
-          });
-        },
-      );
+      if (state.inFlight >= MAX_EVENTS_IN_FLIGHT) {
+        reply({
+          ok: false,
+          error: { code: "too_many_requests", message: "Wait for the answers to your earlier requests." },
+        });
+        return;
+      }
+      state.inFlight += 1;
+      handle(payload, state)
+        .finally(() => {
+          state.inFlight -= 1;
+        })
+        .then(
+          (afterAck) => {
+            if (socket.disconnected) return;
+            reply({ ok: true });
+            afterAck?.();
+          },
+          (error: unknown) => {
+            if (error instanceof AppError) {
+              reply({ ok: false, error: { code: error.code, message: error.message } });
+              return;
+            }
+            log.error({ err: error, event }, "live feed: handling a client event failed");
+            reply({
+              ok: false,
+              error: { code: "internal_error", message: "Something went wrong; try again." },
+            });
+          },
+        );
     });
   }
 
@@ -209,6 +229,7 @@ export function attachLiveFeed(
       budget: new SendBudget(sendBudgetBytes),
       feeds: new Map(),
       groups: new Set(),
+      inFlight: 0,
     });
 
     handler(socket, LIVE_EVENTS.joinRun, (payload, state) => joinRun(socket, payload, state));
@@ -255,6 +276,7 @@ export function attachLiveFeed(
     listening: listener.listening,
     async close() {
       await listener.close();
+      broadcasts.close();
       for (const socket of io.sockets.sockets.values()) socket.disconnect(true);
       io.engine.close();
     },

@@ -101,6 +101,12 @@ export class RoomBroadcasts {
     this.progressTimers.delete(runId);
   }
 
+  /** Stops the progress timers (the server is shutting down). */
+  close(): void {
+    for (const { timer } of this.progressTimers.values()) clearTimeout(timer);
+    this.progressTimers.clear();
+  }
+
   /** A run_events row was stored (or may have been, after the listener was away). */
   stateChanged(runId: string): void {
     if (this.hasRoom(runRoom(runId))) this.reads.request(`state:${runId}`, () => this.sendStates(runId));

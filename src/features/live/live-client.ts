@@ -95,9 +95,8 @@ export class LiveClient {
       for (const groupId of this.groups.keys()) socket.emit(LIVE_EVENTS.joinGroup, { groupId });
     });
     socket.on("disconnect", () => this.setStatus("reconnecting"));
-    socket.on("connect_error", () => {
-      if (this.currentStatus === "live") this.setStatus("reconnecting");
-    });
+    // socket.io tries again by itself (with back-off); until then the page refreshes slowly.
+    socket.on("connect_error", () => this.setStatus("reconnecting"));
     socket.on(LIVE_EVENTS.log, (raw: unknown, ack?: unknown) => this.onLog(raw, ack));
     socket.on(LIVE_EVENTS.state, (raw: unknown) => {
       const event = liveRunStateSchema.safeParse(raw);

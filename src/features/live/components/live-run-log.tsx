@@ -10,8 +10,9 @@ import type { LogTerminal } from "../terminal/xterm-terminal";
 /**
  * A run's log in a terminal, from its first byte and then live, exactly as the job wrote it (colours,
  * carriage returns). Following keeps the newest line in view; the search box finds text in what is held.
+ * `hidden` keeps it out of view while it already follows the log (the page shows it once the feed is up).
  */
-export function LiveRunLog({ runId }: { runId: string }) {
+export function LiveRunLog({ runId, hidden = false }: { runId: string; hidden?: boolean }) {
   const container = useRef<HTMLDivElement>(null);
   const terminal = useRef<LogTerminal | null>(null);
   const [follow, setFollow] = useState(true);
@@ -67,7 +68,7 @@ export function LiveRunLog({ runId }: { runId: string }) {
   };
 
   return (
-    <div className="flex flex-col gap-2">
+    <div className="flex flex-col gap-2" hidden={hidden}>
       <div className="flex flex-wrap items-center gap-2">
         <Button size="sm" variant="secondary" aria-pressed={follow} onClick={toggleFollow}>
           {follow ? "Pause following" : "Follow the log"}

@@ -1,3 +1,5 @@
+import { Readable } from "node:stream";
+import { pipeline } from "node:stream/promises";
 import { Router } from "express";
 import { z } from "zod";
 import {
@@ -5,6 +7,7 @@ import {
   resubmitRunRequestSchema,
   runDetailSchema,
   runListSchema,
+  runLogQuerySchema,
   runLogSchema,
   runStateSchema,
   runSummarySchema,
@@ -17,6 +20,7 @@ import {
   createRun,
   getRunDetail,
   listRuns,
+  openRunLogDownload,
   readArtifact,
   readRunLog,
   resubmitRun,
@@ -30,7 +34,6 @@ const listQuery = z.object({
   state: runStateSchema.optional(),
   limit: z.coerce.number().int().min(1).max(500).default(100),
 });
-const logQuery = z.object({ afterSeq: z.coerce.number().int().min(0).default(0) });
 
 function parseQuery<S extends z.ZodType>(schema: S, query: unknown): z.infer<S> {
   const result = schema.safeParse(query);
@@ -66,8 +69,26 @@ export function runRoutes(ctx: RouteContext): Router {
   router.get("/runs/:runId/log", async (req, res) => {
     const principal = requirePrincipal(req);
     const { runId } = parseParams(runParams, req);
-    const { afterSeq } = parseQuery(logQuery, req.query);
-    res.json(shape(runLogSchema, await readRunLog(ctx.db, principal, runId, afterSeq)));
+    const query = parseQuery(runLogQuerySchema, req.query);
+    res.json(shape(runLogSchema, await readRunLog(ctx.db, principal, runId, query)));
+  });
+
+  router.get("/runs/:runId/log/raw", async (req, res) => {
+    const principal = requirePrincipal(req);
+    const { runId } = parseParams(runParams, req);
+    const download = await openRunLogDownload(ctx.db, principal, runId);
+    res.setHeader("content-type", "application/octet-stream");
+    res.setHeader("content-disposition", `attachment; filename="${download.fileName}"`);
+    res.setHeader("content-length", String(download.sizeBytes));
+    res.setHeader("cache-control", "no-store");
+    try {
+      // pipeline waits for the client to take each chunk before the next page is read, and stops
+      // reading when the client goes away.
+      await pipeline(Readable.from(download.content), res);
+    } catch (error) {
+      if ((error as NodeJS.ErrnoException).code === "ERR_STREAM_PREMATURE_CLOSE") return;
+      throw error;
+    }
   });
 
   router.get("/runs/:runId/artifacts/:artifactId", async (req, res) => {

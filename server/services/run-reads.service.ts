@@ -1,8 +1,8 @@
 /**
  * Reading runs: lists, the detail page (events, collected files, timings in stage order), one
- * collected file, and the log from a sequence number on. Every read checks the caller's role.
+ * collected file (the log: run-log.service). Every read checks the caller's role.
  */
-import { and, desc, eq, gt } from "drizzle-orm";
+import { and, desc, eq } from "drizzle-orm";
 import { alias } from "drizzle-orm/pg-core";
 import { coreHoursFromSeconds } from "../../shared/core-hours";
 import {
@@ -15,16 +15,7 @@ import {
 } from "../../shared/schemas/runs";
 import type { Principal } from "../auth/principal";
 import type { Database } from "../db/client";
-import {
-  runArtifacts,
-  runEvents,
-  runLogChunks,
-  runs,
-  runTimings,
-  targets,
-  targetVersions,
-  users,
-} from "../db/schema";
+import { runArtifacts, runEvents, runs, runTimings, targets, targetVersions, users } from "../db/schema";
 import type { RunPlan } from "../execution/run-plan";
 import { AppError, notFound } from "../http/errors";
 import { requireGroupRole } from "./access";
@@ -195,25 +186,4 @@ export async function readArtifact(db: Database, principal: Principal, runId: st
     .where(and(eq(runArtifacts.id, artifactId), eq(runArtifacts.runId, run.reusedFrom ?? run.id)));
   if (!artifact) throw notFound("Collected file");
   return artifact;
-}
-
-export async function readRunLog(
-  db: Database,
-  principal: Principal,
-  runId: string,
-  afterSeq: number,
-  limit = 500,
-) {
-  const run = await visibleRun(db, principal, runId, "collaborator");
-  // A run that reused results has no log of its own: it serves the log of the run that produced them.
-  const chunks = await db
-    .select({ seq: runLogChunks.seq, text: runLogChunks.text, at: runLogChunks.at })
-    .from(runLogChunks)
-    .where(and(eq(runLogChunks.runId, run.reusedFrom ?? run.id), gt(runLogChunks.seq, afterSeq)))
-    .orderBy(runLogChunks.seq)
-    .limit(limit);
-  return {
-    chunks: chunks.map((c) => ({ seq: c.seq, text: c.text, at: c.at.toISOString() })),
-    lastSeq: chunks.at(-1)?.seq ?? afterSeq,
-  };
 }

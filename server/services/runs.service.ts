@@ -1,9 +1,10 @@
 /**
  * Runs: what the routes call. Each role lives in its own module: checking a spec against the recipe
  * and codes (run-stages), creating a run or reusing an identical one (run-create), reading runs, their
- * collected files and logs (run-reads), cancelling and resubmitting (run-cancel).
+ * collected files (run-reads), reading logs (run-log), cancelling and resubmitting (run-cancel).
  */
 
 export { cancelRun, resubmitRun } from "./run-cancel.service";
 export { createRun, RUN_DIR_PREFIX, type RunDeps, remoteRunDir } from "./run-create.service";
-export { getRunDetail, listRuns, readArtifact, readRunLog } from "./run-reads.service";
+export { openRunLogDownload, readRunLog } from "./run-log.service";
+export { getRunDetail, listRuns, readArtifact } from "./run-reads.service";

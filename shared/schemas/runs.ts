@@ -198,5 +198,44 @@ export const runDetailSchema = runSummarySchema.extend({
 });
 export type RunDetail = z.infer<typeof runDetailSchema>;
 
-export const runLogChunkSchema = z.object({ seq: z.number().int(), text: z.string(), at: isoDateTimeSchema });
-export const runLogSchema = z.object({ chunks: z.array(runLogChunkSchema), lastSeq: z.number().int() });
+/** Chunks per page of `GET /api/runs/:runId/log` unless `limit` says otherwise, and the most it allows. */
+export const RUN_LOG_PAGE_DEFAULT = 500;
+export const RUN_LOG_PAGE_MAX = 2000;
+
+export const runLogQuerySchema = z.object({
+  afterSeq: z.coerce
+    .number({ error: "afterSeq must be a whole number" })
+    .int({ error: "afterSeq must be a whole number" })
+    .min(0, { error: "afterSeq must be 0 or more" })
+    .default(0),
+  limit: z.coerce
+    .number({ error: "limit must be a whole number" })
+    .int({ error: "limit must be a whole number" })
+    .min(1, { error: "limit must be at least 1" })
+    .max(RUN_LOG_PAGE_MAX, { error: `limit must be at most ${RUN_LOG_PAGE_MAX}` })
+    .default(RUN_LOG_PAGE_DEFAULT),
+});
+
+/**
+ * One stored chunk of a run's log: the job's log bytes from `offsetBytes` on, exactly as the host holds
+ * them (any bytes, not necessarily valid UTF-8), in base64. Decode across chunks with one streaming
+ * decoder: a chunk may end inside a line.
+ */
+export const runLogChunkSchema = z.object({
+  seq: z.number().int().min(1),
+  offsetBytes: z.number().int().min(0),
+  dataBase64: z.base64(),
+  at: isoDateTimeSchema,
+});
+export type RunLogChunk = z.infer<typeof runLogChunkSchema>;
+/**
+ * A page of the log. `lastSeq`: the last chunk's sequence number (`afterSeq` when the page is empty), to
+ * ask from next time. `done`: the run is final and this page reaches the last stored chunk — nothing
+ * more will come.
+ */
+export const runLogSchema = z.object({
+  chunks: z.array(runLogChunkSchema),
+  lastSeq: z.number().int().min(0),
+  done: z.boolean(),
+});
+export type RunLog = z.infer<typeof runLogSchema>;

@@ -409,6 +409,18 @@ const CASES: MatrixCase[] = [
     expected: groupRead(200),
   },
   {
+    name: "read a run's log",
+    method: "GET",
+    path: async () => `/api/runs/${await freshRun()}/log?afterSeq=0&limit=10`,
+    expected: groupRead(200),
+  },
+  {
+    name: "download a run's whole log",
+    method: "GET",
+    path: async () => `/api/runs/${await freshRun()}/log/raw`,
+    expected: groupRead(200),
+  },
+  {
     name: "read an allocation's ledger",
     method: "GET",
     path: () => `/api/allocations/${allocationId}/ledger`,

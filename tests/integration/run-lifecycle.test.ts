@@ -86,7 +86,9 @@ describe("a two-stage run on the development host", () => {
     expect(download.body).toBe("K-matrix from CH4-td\n");
 
     const log = await sf.api("GET", `/api/runs/${run.id}/log`);
-    const text = log.body.chunks.map((c: { text: string }) => c.text).join("");
+    const text = Buffer.concat(
+      log.body.chunks.map((c: { dataBase64: string }) => Buffer.from(c.dataBase64, "base64")),
+    ).toString("utf8");
     expect(text).toContain("target label: CH4-td");
     expect(text).toContain("[sigmaflow] all stages finished");
     const seqs = log.body.chunks.map((c: { seq: number }) => c.seq);
@@ -251,9 +253,11 @@ describe("cancel, resubmit and reuse", () => {
     const reused = await sf.api("POST", `/api/groups/${sf.groupId}/runs`, { ...spec, onDuplicate: "reuse" });
     expect(reused.body.reusedFrom).toBe(first.body.id);
     const logText = async (runId: string) =>
-      (await sf.api("GET", `/api/runs/${runId}/log`)).body.chunks
-        .map((c: { text: string }) => c.text)
-        .join("");
+      Buffer.concat(
+        (await sf.api("GET", `/api/runs/${runId}/log`)).body.chunks.map((c: { dataBase64: string }) =>
+          Buffer.from(c.dataBase64, "base64"),
+        ),
+      ).toString("utf8");
     const originalLog = await logText(first.body.id);
     expect(originalLog).toContain("target label: log-of-origin");
     expect(await logText(reused.body.id)).toBe(originalLog);

@@ -103,7 +103,10 @@ describe("a run over its wall-time limit on a direct host", () => {
     expect(elapsed).toBeGreaterThanOrEqual(60);
     expect(elapsed).toBeLessThan(75);
     const log = await sf.api("GET", `/api/runs/${run.id}/log`);
-    expect(log.body.chunks.map((c: { text: string }) => c.text).join("")).not.toContain("finished");
+    const logText = Buffer.concat(
+      log.body.chunks.map((c: { dataBase64: string }) => Buffer.from(c.dataBase64, "base64")),
+    ).toString("utf8");
+    expect(logText).not.toContain("finished");
     // The code ignored TERM and outlived the batch script: KILL after the grace period ends it.
     const codePid = Number((await readFile(path.join(runDir, "stage-1-work", "code.pid"), "utf8")).trim());
     await waitFor(

@@ -13,7 +13,7 @@ import { guardStep, holdHostRuns, holdRefusedAccountRuns } from "../failures";
 import { groupBy } from "../group-by";
 import { compileOutputRules, parseLogLines } from "../logs/output-rules";
 import { advanceProgress, storedProgress } from "../logs/progress";
-import { readLogFrom } from "../logs/tail";
+import { decodeLogText, readLogBytesFrom } from "../logs/tail";
 import { type HostRow, jobRefOf, loadHost, planOf, type RunRow, sessionFor } from "../run-runtime";
 import { schedulerFor } from "../schedulers";
 import type { JobStatus } from "../schedulers/types";
@@ -28,27 +28,39 @@ import type { RemoteSession } from "../ssh/pool";
 const worker = { kind: "worker" } as const;
 /** Enough bytes per poll to keep up with a chatty code without holding a poll for long. */
 const MAX_LOG_BYTES_PER_POLL = 256 * 1024;
+/** Reads of a job that has ended, per poll (16 MiB); a longer log is read on over the next polls. */
+const MAX_LOG_ROUNDS_AFTER_END = 64;
 
+/**
+ * Stores the log bytes after the run's offset as numbered chunks, exactly as read (never decoded), and
+ * reads a decoded copy for timings and progress. While the job runs: one read, cut after its last
+ * newline (or the whole read, minus a trailing partial character, when it is full and holds none).
+ * Once the job has ended (`untilEnd`): reads on to the end of the file, the last line too. Returns
+ * whether the whole file is stored (always false while the job runs).
+ */
 async function storeLog(
   ctx: WorkerContext,
   run: RunRow,
   session: RemoteSession,
-  untilEmpty: boolean,
-): Promise<void> {
+  untilEnd: boolean,
+): Promise<boolean> {
   const plan = planOf(run);
   const rules = compileOutputRules(plan);
   let offset = run.logOffsetBytes;
   let seq = run.logSeq;
   let progress = storedProgress(run.progress);
-  for (let round = 0; round < (untilEmpty ? 64 : 1); round += 1) {
-    const chunk = await readLogFrom(
+  for (let round = 0; round < (untilEnd ? MAX_LOG_ROUNDS_AFTER_END : 1); round += 1) {
+    const chunk = await readLogBytesFrom(
       session,
       `${run.remoteDir}/${plan.logName}`,
       offset,
       MAX_LOG_BYTES_PER_POLL,
+      { includePartialLine: untilEnd },
     );
-    if (chunk.text.length === 0 && chunk.nextOffsetBytes === offset) break;
-    const parsed = parseLogLines(chunk.text, rules, progress?.stage ?? null);
+    if (chunk.bytes.length === 0) return untilEnd && chunk.endOfFile;
+    // Cuts fall after a newline, or at a character's end in a full line-less read, so the copy decodes
+    // whole characters; bytes that are not UTF-8 read as U+FFFD here only.
+    const parsed = parseLogLines(decodeLogText(chunk.bytes), rules, progress?.stage ?? null);
     // Lines the output rules skipped (too long, over the time budget, a rule that no longer compiles):
     // the log itself is stored whole, so only timings and progress from those lines are missing.
     if (parsed.notes.length > 0)
@@ -57,7 +69,7 @@ async function storeLog(
     seq += 1;
     const chunkOffset = offset;
     offset = chunk.nextOffsetBytes;
-    await ctx.db.transaction(async (tx) => {
+    const stored = await ctx.db.transaction(async (tx) => {
       // The conditional update makes a repeated poll of the same bytes (two workers, a retry) a no-op.
       const advanced = await tx
         .update(runs)
@@ -69,10 +81,10 @@ async function storeLog(
         })
         .where(and(eq(runs.id, run.id), eq(runs.logOffsetBytes, chunkOffset)))
         .returning({ id: runs.id });
-      if (advanced.length === 0) return;
+      if (advanced.length === 0) return false;
       await tx
         .insert(runLogChunks)
-        .values({ runId: run.id, seq, offsetBytes: chunkOffset, text: chunk.text });
+        .values({ runId: run.id, seq, offsetBytes: chunkOffset, content: chunk.bytes });
       for (const timing of parsed.timings) {
         await tx
           .insert(runTimings)
@@ -82,9 +94,13 @@ async function storeLog(
             set: { elapsedMs: timing.elapsedMs },
           });
       }
+      return true;
     });
-    if (chunk.text.length < MAX_LOG_BYTES_PER_POLL / 2) break;
+    // Another poll of this run got there first: it carries on from its own offset.
+    if (!stored) return false;
+    if (chunk.endOfFile) return untilEnd;
   }
+  return false;
 }
 
 async function applyStatus(
@@ -104,8 +120,9 @@ async function applyStatus(
     );
   }
   const finished = status.state !== "running";
-  await storeLog(ctx, run, session, finished);
-  if (!finished) return;
+  const logStored = await storeLog(ctx, run, session, finished);
+  // The run moves on only with its whole log stored; a longer one is read on at the next poll.
+  if (!finished || !logStored) return;
   // A job the scheduler calls failed is never a success, even if its exit code has not arrived yet.
   const exitCode =
     status.state === "completed" ? (status.exitCode ?? 0) : status.exitCode === 0 ? null : status.exitCode;

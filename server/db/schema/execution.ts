@@ -276,7 +276,8 @@ export const runLogChunks = pgTable(
       .references(() => runs.id, { onDelete: "cascade" }),
     seq: integer("seq").notNull(),
     offsetBytes: bigint("offset_bytes", { mode: "number" }).notNull(),
-    text: text("text").notNull(),
+    /** The log file's bytes from offsetBytes, exactly as the host holds them (never decoded). */
+    content: bytea("content").notNull(),
     at: timestamp("at", { withTimezone: true }).notNull().defaultNow(),
   },
   (t) => [primaryKey({ columns: [t.runId, t.seq] })],

@@ -24,8 +24,8 @@ type FakeApiState = {
   tokens: ApiToken[];
   users: AdminUser[];
   runs: Record<string, RunDetail[]>;
-  /** Log text per run id, served as one chunk. */
-  logs: Record<string, string>;
+  /** The log per run id: text served as one chunk, or the chunks' bytes in sequence order. */
+  logs: Record<string, string | Uint8Array[]>;
   /** Derived results per run id; a run's `resultsState` and `resultsMessage` come with them. */
   results: Record<string, Result[]>;
 };
@@ -160,11 +160,30 @@ export function installFakeApi(initial: Partial<FakeApiState> = {}) {
       const run = findRun(String(params.runId));
       return run ? HttpResponse.json(run) : apiError(404, "not_found", "No such run.");
     }),
+    // As the server's log service: pages of chunks after afterSeq, bytes in base64, done once the run is
+    // final and the page reaches the last chunk.
     http.get("/api/runs/:runId/log", ({ params, request }) => {
-      const afterSeq = Number(new URL(request.url).searchParams.get("afterSeq") ?? 0);
-      const text = state.logs[String(params.runId)];
-      if (!text || afterSeq >= 1) return HttpResponse.json({ chunks: [], lastSeq: afterSeq });
-      return HttpResponse.json({ chunks: [{ seq: 1, text, at: "2026-11-30T10:02:00.000Z" }], lastSeq: 1 });
+      const url = new URL(request.url);
+      const afterSeq = Number(url.searchParams.get("afterSeq") ?? 0);
+      const limit = Number(url.searchParams.get("limit") ?? 500);
+      const stored = state.logs[String(params.runId)] ?? [];
+      const all = typeof stored === "string" ? [new TextEncoder().encode(stored)] : stored;
+      let offsetBytes = 0;
+      const chunks = all.map((bytes, index) => {
+        const chunk = {
+          seq: index + 1,
+          offsetBytes,
+          dataBase64: Buffer.from(bytes).toString("base64"),
+          at: "2026-11-30T10:02:00.000Z",
+        };
+        offsetBytes += bytes.length;
+        return chunk;
+      });
+      const page = chunks.filter((chunk) => chunk.seq > afterSeq).slice(0, limit);
+      const lastSeq = page.at(-1)?.seq ?? afterSeq;
+      const run = findRun(String(params.runId));
+      const final = run ? ["done", "failed", "cancelled"].includes(run.state) : false;
+      return HttpResponse.json({ chunks: page, lastSeq, done: final && lastSeq >= chunks.length });
     }),
     // As the server's results service: the run's state of deriving results and the rows derived.
     http.get("/api/runs/:runId/results", ({ params }) => {

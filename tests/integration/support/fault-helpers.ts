@@ -138,18 +138,23 @@ export async function startInProcessWorker(sf: Sigmaflow, extraEnv: Record<strin
   return startWorker(loadWorkerConfig({ ...sf.workerEnv, ...extraEnv } as never));
 }
 
-/** Every log chunk of a run through the API, in order, paging by sequence number. */
-export async function apiLogText(api: Api, runId: string): Promise<string> {
+/** Every log chunk of a run through the API, in order, paging by sequence number, joined as bytes. */
+export async function apiLogBytes(api: Api, runId: string): Promise<Buffer> {
   let afterSeq = 0;
-  let text = "";
+  const parts: Buffer[] = [];
   for (;;) {
     const page = await api("GET", `/api/runs/${runId}/log?afterSeq=${afterSeq}`);
     expect(page.status).toBe(200);
-    const chunks = page.body.chunks as { seq: number; text: string }[];
-    if (chunks.length === 0) return text;
-    text += chunks.map((chunk) => chunk.text).join("");
+    const chunks = page.body.chunks as { seq: number; dataBase64: string }[];
+    if (chunks.length === 0) return Buffer.concat(parts);
+    for (const chunk of chunks) parts.push(Buffer.from(chunk.dataBase64, "base64"));
     afterSeq = page.body.lastSeq;
   }
+}
+
+/** The whole log of a run through the API, decoded as UTF-8. */
+export async function apiLogText(api: Api, runId: string): Promise<string> {
+  return (await apiLogBytes(api, runId)).toString("utf8");
 }
 
 export const runDirOnHost = (rootDir: string, runId: string) => path.join(rootDir, "runs", `sf-run-${runId}`);

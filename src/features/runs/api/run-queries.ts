@@ -9,12 +9,13 @@ import {
 } from "@shared/schemas";
 import { queryOptions } from "@tanstack/react-query";
 import { api } from "@/lib/api-client";
+import { appendLogChunks, bytesFromBase64, EMPTY_LOG_TEXT, type LogText } from "../log-text";
 
 /** While anything is unfinished the page refreshes itself at this pace (live streaming comes later). */
 const REFRESH_WHILE_ACTIVE_MS = 3000;
 
 /** The log as the page holds it: the text so far and the sequence number of its last chunk. */
-export type RunLogText = { text: string; lastSeq: number };
+export type RunLogText = LogText;
 
 export const isFinished = (run: Pick<RunSummary, "state">) => FINAL_RUN_STATES.includes(run.state);
 
@@ -63,26 +64,33 @@ export const runQueries = {
       staleTime: Number.POSITIVE_INFINITY,
     }),
   /**
-   * The stored log, read page by page by sequence number. A refresh asks only for chunks after the last
-   * one it holds, so following a long log does not download it again every few seconds.
+   * The stored log, read page by page by sequence number and decoded across chunks (log-text.ts). A
+   * refresh asks only for chunks after the last one it holds, so following a long log does not download
+   * it again every few seconds; once the server says the log is complete, nothing more is asked.
    */
   log: (runId: string, finished: boolean) =>
     queryOptions({
       queryKey: [...runQueries.all, "log", runId] as const,
       queryFn: async ({ signal, client, queryKey }) => {
-        const held = client.getQueryData<RunLogText>(queryKey);
-        let { text, lastSeq } = held ?? { text: "", lastSeq: 0 };
+        const held = client.getQueryData<RunLogText>(queryKey) ?? EMPTY_LOG_TEXT;
+        if (held.done) return held;
+        // Pages are fetched first and decoded together at the end, so an abandoned fetch changes nothing.
+        const chunks: Uint8Array[] = [];
+        let lastSeq = held.lastSeq;
+        let done = false;
         for (;;) {
           const page = await api.get(
             `/api/runs/${encodeURIComponent(runId)}/log?afterSeq=${lastSeq}`,
             runLogSchema,
             { signal },
           );
-          if (page.chunks.length === 0) return { text, lastSeq };
-          text += page.chunks.map((chunk) => chunk.text).join("");
+          for (const chunk of page.chunks) chunks.push(bytesFromBase64(chunk.dataBase64));
           lastSeq = page.lastSeq;
+          done = page.done;
+          if (page.done || page.chunks.length === 0) break;
         }
+        return appendLogChunks(held, chunks, lastSeq, done);
       },
-      refetchInterval: finished ? false : REFRESH_WHILE_ACTIVE_MS,
+      refetchInterval: (query) => (finished || query.state.data?.done ? false : REFRESH_WHILE_ACTIVE_MS),
     }),
 };

@@ -153,6 +153,16 @@ export function RunDetailView({ run, results }: { run: RunDetail; results?: Reac
       </Section>
 
       <Section title="Log">
+        <p className="mb-2 text-sm">
+          <a
+            className="text-flux-800 hover:underline"
+            href={apiUrl(`/api/runs/${encodeURIComponent(run.id)}/log/raw`)}
+            download
+          >
+            Download the whole log
+          </a>{" "}
+          <span className="text-xs text-ink-500">(the bytes exactly as the job wrote them)</span>
+        </p>
         <pre
           data-testid="run-log"
           className="max-h-96 overflow-auto rounded-xl bg-ink-900 p-4 font-mono text-xs leading-relaxed text-ink-50"

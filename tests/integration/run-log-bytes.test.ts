@@ -1,0 +1,271 @@
+/**
+ * A run's stored log is the job's log file byte for byte: a job on the development host writes 200 000
+ * lines of multi-byte UTF-8 (é = 2 bytes, 😀 = 4 bytes, RFC 3629 §3), lines of 100 kB and one longer than
+ * a poll's read (worker/steps/poll.ts reads 256 KiB per round), carriage returns, ANSI colour escapes
+ * and bytes that are not UTF-8 at all. The log the API serves (`/log/raw`, and the pages of `/log`) must
+ * have the file's length and sha256, with sequence numbers 1..N, each chunk starting where the previous
+ * ended, also when the worker is SIGKILLed while the log streams and started again.
+ */
+import type { ChildProcess } from "node:child_process";
+import { createHash } from "node:crypto";
+import { existsSync } from "node:fs";
+import { readFile, stat } from "node:fs/promises";
+import path from "node:path";
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { shellCode, uniqueCodeName } from "./support/code-fixtures";
+import { killHard, runDirOnHost } from "./support/fault-helpers";
+import {
+  type FakeHost,
+  registerDevHost,
+  registerRecipe,
+  runSpec,
+  type Sigmaflow,
+  startFakeHost,
+  startSigmaflow,
+  waitForState,
+} from "./support/lifecycle-harness";
+import { tokenFor } from "./support/people";
+import { createTestDatabase, type TestDatabase } from "./support/test-database";
+import { waitFor } from "./support/wait-for";
+
+/** worker/steps/poll.ts MAX_LOG_BYTES_PER_POLL: the most one read of a log takes. */
+const READ_BYTES = 256 * 1024;
+/** The long line: "x" and 80 000 😀, so a 256 KiB read from its start ends 3 bytes into a 😀. */
+const LONG_LINE_EMOJI = 80_000;
+
+/**
+ * The job: python3 writes the log in 10 batches of 20 000 lines, `pause` seconds apart, so polls store
+ * it in pieces while it runs and the rest once it has ended. No braces but the parameter's: the script
+ * is a template.
+ */
+const SCRIPT = `/usr/bin/python3 - <<'PYEOF'
+import sys, time
+out = sys.stdout.buffer
+e = "\\u00e9".encode()
+smile = "\\U0001F600".encode()
+esc = b"\\x1b"
+n = 0
+for batch in range(10):
+    parts = []
+    for i in range(20000):
+        n += 1
+        k = n % 7
+        if k == 0:
+            parts.append(b"ligne %d " % n + e * (n % 13) + b"nergie\\n")
+        elif k == 1:
+            parts.append(b"smile %d " % n + smile * (n % 5) + b"\\n")
+        elif k == 2:
+            parts.append(b"progress %d%%\\r" % (n % 100) + b"done\\r\\n")
+        elif k == 3:
+            parts.append(esc + b"[32mgreen %d" % n + esc + b"[0m\\n")
+        elif k == 4 and n % 1000 == 4:
+            parts.append(b"bad \\xff\\xfe bytes and a cut \\xe2\\x82 sequence %d\\n" % n)
+        else:
+            parts.append(b"plain line %d\\n" % n)
+    if batch in (2, 5, 8):
+        parts.append(b"y" + e * 50000 + b"\\n")
+    if batch == 6:
+        parts.append(b"x" + smile * ${LONG_LINE_EMOJI} + b"\\n")
+    out.write(b"".join(parts))
+    out.flush()
+    time.sleep({{ pause }})
+out.write(b"the end, with no newline " + smile[:2])
+out.flush()
+PYEOF
+`;
+
+let database: TestDatabase;
+let sf: Sigmaflow;
+let host: FakeHost;
+let hostId: string;
+let recipeId: string;
+let token: string;
+let worker: ChildProcess;
+
+beforeAll(async () => {
+  database = await createTestDatabase("log_bytes");
+  sf = await startSigmaflow(database, { inProcessWorker: false });
+  host = await startFakeHost();
+  hostId = await registerDevHost(sf, host, { name: "log-host" });
+  recipeId = await registerRecipe(sf, "log-bytes", [
+    {
+      name: "emit",
+      code: shellCode({
+        name: uniqueCodeName("log-bytes"),
+        script: SCRIPT,
+        parameters: {
+          type: "object",
+          properties: { pause: { type: "number", minimum: 0, maximum: 2 } },
+          required: ["pause"],
+          additionalProperties: false,
+        },
+      }),
+    },
+  ]);
+  token = await tokenFor(database.db, sf.researcher);
+  worker = sf.spawnWorker();
+}, 60_000);
+
+afterAll(async () => {
+  await sf?.close();
+  await host?.stop();
+  await database?.drop();
+});
+
+async function submit(name: string, pause: number, onDuplicate: "run" | "reuse" = "run") {
+  const created = await sf.api("POST", `/api/groups/${sf.groupId}/runs`, {
+    ...runSpec(recipeId, hostId, { emit: { pause } }, name),
+    onDuplicate,
+  });
+  expect(created.status, JSON.stringify(created.body)).toBe(201);
+  return created.body as { id: string; reusedFrom: string | null };
+}
+
+const jobLogPath = (runId: string) => path.join(runDirOnHost(host.rootDir, runId), "job.log");
+const sha256 = (bytes: Uint8Array) => createHash("sha256").update(bytes).digest("hex");
+
+async function downloadRaw(runId: string) {
+  const response = await fetch(`${sf.app.baseUrl}/api/runs/${runId}/log/raw`, {
+    headers: { authorization: `Bearer ${token}` },
+  });
+  return { response, bytes: Buffer.from(await response.arrayBuffer()) };
+}
+
+type StoredChunk = { seq: number; offsetBytes: number; content: Buffer };
+
+async function storedChunks(runId: string): Promise<StoredChunk[]> {
+  const { rows } = await database.pool.query(
+    "select seq, offset_bytes, content from run_log_chunks where run_id = $1 order by seq",
+    [runId],
+  );
+  return rows.map((row) => ({ seq: row.seq, offsetBytes: Number(row.offset_bytes), content: row.content }));
+}
+
+/** Sequence numbers 1..N, each chunk starting where the previous one ended: nothing lost or doubled. */
+function expectContiguous(chunks: StoredChunk[], file: Buffer) {
+  expect(chunks.map((chunk) => chunk.seq)).toEqual(chunks.map((_, i) => i + 1));
+  let offset = 0;
+  for (const chunk of chunks) {
+    expect(chunk.offsetBytes, `chunk ${chunk.seq}`).toBe(offset);
+    offset += chunk.content.length;
+  }
+  expect(offset).toBe(file.length);
+  expect(sha256(Buffer.concat(chunks.map((chunk) => chunk.content)))).toBe(sha256(file));
+}
+
+async function logSeq(runId: string): Promise<number> {
+  const { rows } = await database.pool.query("select log_seq from runs where id = $1", [runId]);
+  return rows[0].log_seq;
+}
+
+describe("a run's log, byte for byte", () => {
+  it("serves exactly the bytes the job wrote, whole and page by page, also for a run that reuses it", async () => {
+    const run = await submit("bytes", 0.2);
+    const done = await waitForState(sf, run.id, ["done", "failed", "cancelled"], 120_000);
+    expect(done.state, done.stateMessage).toBe("done");
+    const file = await readFile(jobLogPath(run.id));
+    // The job really wrote what this test is about.
+    expect(file.length).toBeGreaterThan(8 * READ_BYTES);
+    expect(file.includes(Buffer.from([0xff, 0xfe]))).toBe(true);
+    expect(file.includes(Buffer.from("\r\n"))).toBe(true);
+    expect(file.includes(Buffer.from("\u001b[32m"))).toBe(true);
+
+    const raw = await downloadRaw(run.id);
+    expect(raw.response.status).toBe(200);
+    expect(raw.response.headers.get("content-type")).toBe("application/octet-stream");
+    expect(raw.response.headers.get("content-disposition")).toBe(`attachment; filename="run-${run.id}.log"`);
+    expect(Number(raw.response.headers.get("content-length"))).toBe(file.length);
+    expect(raw.bytes.length).toBe(file.length);
+    expect(sha256(raw.bytes)).toBe(sha256(file));
+
+    const chunks = await storedChunks(run.id);
+    expectContiguous(chunks, file);
+    // The log was stored in many polls, some while the job ran (it pauses 0.2 s between batches).
+    expect(chunks.length).toBeGreaterThan(10);
+    // The line longer than a read: its first chunk stops 3 bytes short of 256 KiB, before the 😀 the
+    // read would have cut (1 + 4 × 65 535 bytes), and the next chunk starts with that 😀 whole.
+    const longLineAt = file.indexOf(Buffer.from(`\nx${"😀".repeat(4)}`)) + 1;
+    const first = chunks.find((chunk) => chunk.offsetBytes === longLineAt);
+    expect(first?.content.length).toBe(1 + 4 * 65_535);
+    const next = chunks[chunks.indexOf(first!) + 1]!;
+    expect(next.content.subarray(0, 4)).toEqual(Buffer.from("😀"));
+    // Everything else was cut after a newline, except the very end: the job ended on a cut 😀.
+    const cutElsewhere = chunks.filter((chunk) => chunk !== first && chunk.content.at(-1) !== 0x0a);
+    expect(cutElsewhere.map((chunk) => chunk.seq)).toEqual(file.at(-1) === 0x0a ? [] : [chunks.at(-1)!.seq]);
+
+    // Pages of the JSON API join to the same bytes; `done` only on the page that reaches the end.
+    const pages: Buffer[] = [];
+    let afterSeq = 0;
+    for (let page = 0; ; page += 1) {
+      expect(page).toBeLessThan(chunks.length);
+      const reply = await sf.api("GET", `/api/runs/${run.id}/log?afterSeq=${afterSeq}&limit=7`);
+      expect(reply.status).toBe(200);
+      for (const chunk of reply.body.chunks) pages.push(Buffer.from(chunk.dataBase64, "base64"));
+      afterSeq = reply.body.lastSeq;
+      expect(reply.body.done).toBe(afterSeq === chunks.length);
+      if (reply.body.done) break;
+    }
+    expect(sha256(Buffer.concat(pages))).toBe(sha256(file));
+
+    // A run that reuses these results has no log of its own: it serves this one.
+    const reused = await submit("bytes", 0.2, "reuse");
+    expect(reused.reusedFrom).toBe(run.id);
+    const reusedRaw = await downloadRaw(reused.id);
+    expect(reusedRaw.response.status).toBe(200);
+    expect(sha256(reusedRaw.bytes)).toBe(sha256(file));
+  }, 180_000);
+
+  it("refuses a page size or sequence number out of bounds, naming it", async () => {
+    const run = await submit("bounds", 0);
+    for (const [query, field] of [
+      ["limit=0", "limit"],
+      ["limit=2001", "limit"],
+      ["limit=ten", "limit"],
+      ["afterSeq=-1", "afterSeq"],
+    ] as const) {
+      const reply = await sf.api("GET", `/api/runs/${run.id}/log?${query}`);
+      expect(reply.status, query).toBe(422);
+      expect(reply.body.error.message, query).toContain(field);
+    }
+    await waitForState(sf, run.id, ["done", "failed", "cancelled"], 120_000);
+  }, 180_000);
+
+  it("stays byte-identical, with no chunk lost or doubled, when the worker is SIGKILLed mid-stream", async () => {
+    const run = await submit("killed", 1);
+    for (let kill = 1; kill <= 2; kill += 1) {
+      // Kill once some chunks are stored and more are coming.
+      const seqAtKill = await waitFor(
+        `chunks of run ${run.id} to be stored (kill ${kill})`,
+        () => logSeq(run.id),
+        (seq) => seq >= kill + 1,
+        { timeoutMs: 60_000 },
+      );
+      await killHard(worker);
+      const sizeAtKill = (await stat(jobLogPath(run.id))).size;
+      // The job goes on writing with no worker following it (unless it has just ended).
+      await waitFor(
+        "the job to write more while no worker runs",
+        async () => ({
+          size: (await stat(jobLogPath(run.id))).size,
+          ended: existsSync(path.join(runDirOnHost(host.rootDir, run.id), "job.ended")),
+        }),
+        (job) => job.size > sizeAtKill || job.ended,
+        { timeoutMs: 30_000 },
+      );
+      worker = sf.spawnWorker();
+      await waitFor(
+        "the restarted worker to store more of the log",
+        () => logSeq(run.id),
+        (seq) => seq > seqAtKill,
+        { timeoutMs: 60_000 },
+      );
+    }
+    const done = await waitForState(sf, run.id, ["done", "failed", "cancelled"], 120_000);
+    expect(done.state, done.stateMessage).toBe("done");
+    const file = await readFile(jobLogPath(run.id));
+    expectContiguous(await storedChunks(run.id), file);
+    const raw = await downloadRaw(run.id);
+    expect(raw.bytes.length).toBe(file.length);
+    expect(sha256(raw.bytes)).toBe(sha256(file));
+  }, 240_000);
+});

@@ -9,30 +9,19 @@
  * overlapping a live chunk never doubles a byte; a gap in the feed's numbers is filled from the stored log
  * before the later chunk is written, so none is skipped.
  */
-import { z } from "zod";
-import { isoDateTimeSchema } from "../../shared/schemas/common";
-import { FINAL_RUN_STATES, type RunState, runDetailSchema } from "../../shared/schemas/runs";
+import {
+  FINAL_RUN_STATES,
+  RUN_LOG_PAGE_DEFAULT,
+  type RunState,
+  runDetailSchema,
+  runLogSchema,
+} from "../../shared/schemas/runs";
 import type { ApiClient } from "./api-client";
 
-/** Chunks asked for per HTTP page. */
-export const LOG_PAGE_LIMIT = 500;
+/** Chunks asked for per HTTP page: the server's default page. */
+export const LOG_PAGE_LIMIT = RUN_LOG_PAGE_DEFAULT;
 /** Pages read one after another before the follower yields to other work (a log of 10⁶ chunks is 2000). */
 const MAX_PAGES_PER_DRAIN = 100_000;
-
-/** One page of `GET /api/runs/:id/log`: chunks after `afterSeq` with their bytes in base64. */
-const logPageSchema = z.object({
-  chunks: z.array(
-    z.object({
-      seq: z.number().int().min(1),
-      offsetBytes: z.number().int().min(0),
-      dataBase64: z.base64(),
-      at: isoDateTimeSchema,
-    }),
-  ),
-  lastSeq: z.number().int().min(0),
-  /** The run is in a final state and no chunk after this page's is stored or will be. */
-  done: z.boolean(),
-});
 
 export type LogChunk = { seq: number; data: Buffer };
 
@@ -85,7 +74,7 @@ export async function drainStoredLog(
     const log = await client.request(
       "GET",
       `/api/runs/${runId}/log?afterSeq=${afterSeq}&limit=${LOG_PAGE_LIMIT}`,
-      logPageSchema,
+      runLogSchema,
     );
     let wrote = false;
     for (const chunk of log.chunks) {
@@ -93,7 +82,8 @@ export async function drainStoredLog(
       if (await writer.accept({ seq: chunk.seq, data: Buffer.from(chunk.dataBase64, "base64") }))
         wrote = true;
     }
-    const more = log.chunks.length >= LOG_PAGE_LIMIT || log.lastSeq > writer.lastSeq;
+    // A full page may have more behind it; ask again at once instead of after the poll interval.
+    const more = log.chunks.length >= LOG_PAGE_LIMIT;
     // A page that moved nothing forward would repeat forever: stop and let the caller poll again.
     if (!wrote || !more || writer.lastSeq >= untilSeq) return { done: log.done && !more };
   }

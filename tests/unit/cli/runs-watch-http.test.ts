@@ -48,7 +48,7 @@ function growingRun(appendAt: Buffer[][], finalState: "done" | "failed" | "cance
     const limit = Number(url.searchParams.get("limit"));
     const page = stored.filter((c) => c.seq >= afterSeq).slice(0, limit);
     const complete = state === finalState && (page.at(-1)?.seq ?? afterSeq) === stored.length;
-    return { body: logPage(page, stored.length, complete) };
+    return { body: logPage(page, page.at(-1)?.seq ?? afterSeq, complete) };
   });
   return { stored, logRequests: () => requests };
 }
@@ -155,7 +155,7 @@ describe("sigmaflow runs watch as a command", { timeout: 60_000 }, () => {
         data: Buffer.from(`${"x".repeat(4000)} ${afterSeq + i}\n`),
       }));
       seq = afterSeq + 200;
-      return { body: logPage(page, seq + 1, false) };
+      return { body: logPage(page, seq, false) };
     });
     const { child, done } = sigmaflow(["runs", "watch", "--poll", RUN_ID]);
     child.stdout!.once("data", () => child.stdout!.destroy());

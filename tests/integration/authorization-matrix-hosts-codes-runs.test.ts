@@ -1,10 +1,11 @@
 /**
- * Every host, account, code, recipe, target, allocation and run route × every kind of caller gets exactly the
- * status it should (the same six callers as authorization-matrix.test.ts). Rule being checked (Sigmaflow's access policy): deny by
- * default; a group one does not belong to is a 404, also when reached through a host, code, recipe or
+ * Every host, account, code, recipe, target, allocation and run route, and every way of joining a room of
+ * the live feed (support/live-matrix.ts), × every kind of caller gets exactly the status it should (the
+ * same six callers as authorization-matrix.test.ts). Rule being checked (Sigmaflow's access policy): deny
+ * by default; a group one does not belong to is a 404, also when reached through a host, code, recipe or
  * allocation id; a role too low is a 403; site admins may do everything.
  */
-import { randomBytes } from "node:crypto";
+import { randomBytes, randomUUID } from "node:crypto";
 import { afterAll, beforeAll } from "vitest";
 import {
   allocations,
@@ -16,18 +17,22 @@ import {
   targets,
   targetVersions,
 } from "../../server/db/schema";
+import { LIVE_EVENTS } from "../../shared/schemas/live";
 import { inspectTarget } from "../../shared/science/geometry";
 import {
   type Caller,
   createMatrixCallers,
   describeMatrix,
+  everyone,
   groupAdminOnly,
   groupRead,
   groupWrite,
   type MatrixCase,
+  signedIn,
 } from "./support/authorization-matrix";
 import { codeDefinition } from "./support/code-fixtures";
 import { startTestCluster, type TestCluster } from "./support/host-test-app";
+import { describeLiveMatrix, type LiveMatrixCase, liveCredentials } from "./support/live-matrix";
 import { startTestApp } from "./support/test-app";
 import { createTestDatabase, type TestDatabase } from "./support/test-database";
 
@@ -44,6 +49,8 @@ let recipeId = "";
 let allocationId = "";
 let targetId = "";
 let yearOffset = 0;
+/** Each caller's token, revoked token and session cookies for the live feed's rows. */
+let liveCredentialsByCaller: Awaited<ReturnType<typeof liveCredentials>> = new Map();
 
 const suffix = () => randomBytes(3).toString("hex");
 
@@ -436,6 +443,7 @@ beforeAll(async () => {
   const callers = await createMatrixCallers(db);
   ({ groupId, groupAdminId, memberId } = callers);
   for (const [caller, token] of callers.tokens) tokens.set(caller, token);
+  liveCredentialsByCaller = await liveCredentials(db, tokens, app.config.session.secret);
   hostId = await freshHost();
   codeId = await freshCode();
   recipeId = await freshRecipe();
@@ -462,4 +470,83 @@ afterAll(async () => {
 describeMatrix("authorization matrix: hosts, accounts, codes, recipes, allocations and runs", CASES, () => ({
   baseUrl: app.baseUrl,
   tokens,
+}));
+
+const LIVE_CASES: LiveMatrixCase[] = [
+  {
+    name: "a run's room",
+    event: LIVE_EVENTS.joinRun,
+    payload: async () => ({ runId: await freshRun(), afterSeq: 0 }),
+    expected: groupRead(200),
+  },
+  {
+    name: "a run's room, resuming after a sequence number",
+    event: LIVE_EVENTS.resumeRun,
+    payload: async () => ({ runId: await freshRun(), afterSeq: 3 }),
+    expected: groupRead(200),
+  },
+  {
+    name: "a run's room for a run that does not exist",
+    event: LIVE_EVENTS.joinRun,
+    payload: () => ({ runId: randomUUID(), afterSeq: 0 }),
+    expected: signedIn(404),
+  },
+  {
+    name: "a group's room",
+    event: LIVE_EVENTS.joinGroup,
+    payload: () => ({ groupId }),
+    expected: groupRead(200),
+  },
+  {
+    name: "a run's room with a revoked API token",
+    credential: "revoked token",
+    event: LIVE_EVENTS.joinRun,
+    payload: async () => ({ runId: await freshRun(), afterSeq: 0 }),
+    expected: everyone(401),
+  },
+  {
+    name: "a run's room with an API token from another site's page",
+    origin: "foreign",
+    event: LIVE_EVENTS.joinRun,
+    payload: async () => ({ runId: await freshRun(), afterSeq: 0 }),
+    expected: everyone(403),
+  },
+  {
+    name: "a run's room with the session cookie from Sigmaflow's page",
+    credential: "session",
+    origin: "public",
+    event: LIVE_EVENTS.joinRun,
+    payload: async () => ({ runId: await freshRun(), afterSeq: 0 }),
+    expected: groupRead(200),
+  },
+  {
+    name: "a group's room with the session cookie from Sigmaflow's page",
+    credential: "session",
+    origin: "public",
+    event: LIVE_EVENTS.joinGroup,
+    payload: () => ({ groupId }),
+    expected: groupRead(200),
+  },
+  {
+    name: "a run's room with the session cookie from another site's page",
+    credential: "session",
+    origin: "foreign",
+    event: LIVE_EVENTS.joinRun,
+    payload: async () => ({ runId: await freshRun(), afterSeq: 0 }),
+    expected: everyone(403),
+  },
+  {
+    name: "a run's room with the cookie of a session that ended",
+    credential: "ended session",
+    origin: "public",
+    event: LIVE_EVENTS.joinRun,
+    payload: async () => ({ runId: await freshRun(), afterSeq: 0 }),
+    expected: everyone(401),
+  },
+];
+
+describeLiveMatrix("authorization matrix: joining rooms of the live feed", LIVE_CASES, () => ({
+  baseUrl: app.baseUrl,
+  publicUrl: app.config.publicUrl,
+  credentials: liveCredentialsByCaller,
 }));

@@ -215,6 +215,36 @@ describe("a run's log, byte for byte", () => {
     expect(sha256(reusedRaw.bytes)).toBe(sha256(file));
   }, 180_000);
 
+  it("migration 0008 turns chunks stored as text into that text's UTF-8 bytes", async () => {
+    // The table as drizzle/0001 created it, in a schema of its own, with chunks as the poller stored them.
+    const client = await database.pool.connect();
+    try {
+      await client.query("create schema log_text_era");
+      await client.query("set search_path to log_text_era");
+      await client.query(`create table run_log_chunks (
+        run_id uuid not null, seq integer not null, offset_bytes bigint not null, text text not null,
+        at timestamp with time zone default now() not null, primary key (run_id, seq))`);
+      const texts = ["é😀 done\r\n", "\u001b[31mred\u001b[0m \ufffd\n", ""];
+      for (const [i, text] of texts.entries())
+        await client.query(
+          "insert into run_log_chunks (run_id, seq, offset_bytes, text) values ($1, $2, 0, $3)",
+          ["00000000-0000-4000-8000-000000000001", i + 1, text],
+        );
+      const migration = await readFile(path.join("drizzle", "0008_log_chunk_bytes.sql"), "utf8");
+      for (const statement of migration.split("--> statement-breakpoint")) await client.query(statement);
+      const { rows } = await client.query("select seq, content from run_log_chunks order by seq");
+      expect(rows.map((row) => row.content)).toEqual(texts.map((text) => Buffer.from(text, "utf8")));
+      const { rows: columns } = await client.query(
+        "select column_name, is_nullable from information_schema.columns where table_schema = 'log_text_era' and table_name = 'run_log_chunks' and column_name in ('text', 'content')",
+      );
+      expect(columns).toEqual([{ column_name: "content", is_nullable: "NO" }]);
+    } finally {
+      await client.query("reset search_path");
+      await client.query("drop schema if exists log_text_era cascade");
+      client.release();
+    }
+  });
+
   it("refuses a page size or sequence number out of bounds, naming it", async () => {
     const run = await submit("bounds", 0);
     for (const [query, field] of [

@@ -25,10 +25,24 @@ function Section({ title, children }: { title: string; children: React.ReactNode
  * A run's progress, results, history, per-symmetry timings, collected files and log, refreshed while it
  * is unfinished. A run that reused results shows the files, timings and log of the run that produced them.
  * `results` (the results feature's view, composed by the page) is shown once the run is done, right
- * under the run's summary.
+ * under the run's summary. `timings` (the live view, composed by the page) takes the place of the timings
+ * table; `log` (the live log) is shown in the Log section, and once `logLive` says it holds the log, the
+ * stored log is no longer read or shown.
  */
-export function RunDetailView({ run, results }: { run: RunDetail; results?: ReactNode }) {
-  const log = useQuery(runQueries.log(run.id, isFinished(run)));
+export function RunDetailView({
+  run,
+  results,
+  log: liveLog,
+  logLive = false,
+  timings: liveTimings,
+}: {
+  run: RunDetail;
+  results?: ReactNode;
+  log?: ReactNode;
+  logLive?: boolean;
+  timings?: ReactNode;
+}) {
+  const log = useQuery({ ...runQueries.log(run.id, isFinished(run)), enabled: !logLive });
   return (
     <>
       <RunOrigin run={run} />
@@ -103,7 +117,9 @@ export function RunDetailView({ run, results }: { run: RunDetail; results?: Reac
         </Table>
       </Section>
 
-      {run.timings.length > 0 ? (
+      {liveTimings ? (
+        <Section title="Time per symmetry">{liveTimings}</Section>
+      ) : run.timings.length > 0 ? (
         <Section title="Time per symmetry">
           <Table caption="Time per symmetry">
             <THead>
@@ -163,14 +179,17 @@ export function RunDetailView({ run, results }: { run: RunDetail; results?: Reac
           </a>{" "}
           <span className="text-xs text-ink-500">(the bytes exactly as the job wrote them)</span>
         </p>
-        <pre
-          data-testid="run-log"
-          className="max-h-96 overflow-auto rounded-xl bg-ink-900 p-4 font-mono text-xs leading-relaxed text-ink-50"
-        >
-          {log.data === undefined
-            ? "Loading…"
-            : log.data.text || (isFinished(run) ? "The run printed nothing." : "No output yet.")}
-        </pre>
+        {liveLog}
+        {logLive ? null : (
+          <pre
+            data-testid="run-log"
+            className="max-h-96 overflow-auto rounded-xl bg-ink-900 p-4 font-mono text-xs leading-relaxed text-ink-50"
+          >
+            {log.data === undefined
+              ? "Loading…"
+              : log.data.text || (isFinished(run) ? "The run printed nothing." : "No output yet.")}
+          </pre>
+        )}
       </Section>
     </>
   );

@@ -17,7 +17,18 @@ export default defineConfig({
   resolve: { alias },
   server: {
     host: "127.0.0.1",
-    proxy: { "/api": apiTarget, "/socket.io": { target: apiTarget, ws: true } },
+    proxy: {
+      // The live run feed (socket.io at /api/live): WebSockets too, with the Origin the API server expects
+      // (it refuses browser connections from any other Origin than its public URL).
+      "/api/live": {
+        target: apiTarget,
+        ws: true,
+        configure: (proxy) => {
+          proxy.on("proxyReqWs", (proxyReq) => proxyReq.setHeader("origin", apiTarget));
+        },
+      },
+      "/api": apiTarget,
+    },
   },
   build: { outDir: "dist/client", sourcemap: true },
   test: {

@@ -6,6 +6,8 @@ import { server } from "./support/server";
 // The live feed's socket never reaches a server unless a test drives it (support/fake-socket.ts): pages
 // behave as with the feed away, and no test opens a real connection.
 vi.mock("socket.io-client", () => import("./support/fake-socket"));
+// jsdom cannot run xterm: the log terminal shows its bytes as text instead (support/fake-terminal.ts).
+vi.mock("@/features/live/terminal/xterm-terminal", () => import("./support/fake-terminal"));
 
 // Route pages are lazy modules: the first import in a test file is transformed on demand and can take
 // seconds on a busy two-core machine, so waits (which end as soon as their condition holds) allow for it.

@@ -82,8 +82,9 @@ export async function drainStoredLog(
       if (await writer.accept({ seq: chunk.seq, data: Buffer.from(chunk.dataBase64, "base64") }))
         wrote = true;
     }
-    // A full page may have more behind it; ask again at once instead of after the poll interval.
-    const more = log.chunks.length >= LOG_PAGE_LIMIT;
+    // A page that brought chunks may have more behind it (the server also ends a page at a size limit,
+    // so a short page is no sign of the end): ask again at once until a page is empty or says `done`.
+    const more = log.chunks.length > 0 && !log.done;
     // A page that moved nothing forward would repeat forever: stop and let the caller poll again.
     if (!wrote || !more || writer.lastSeq >= untilSeq) return { done: log.done && !more };
   }

@@ -31,7 +31,12 @@ type StoredChunk = { seq: number; offsetBytes: number; data: Buffer };
  * run turns `finalState` once the last of them is stored. Answers honour `afterSeq` and `limit` but, as a
  * careless server might, repeat the chunk at `afterSeq` itself, which the follower must drop.
  */
-function growingRun(appendAt: Buffer[][], finalState: "done" | "failed" | "cancelled") {
+/** A run whose log grows by `appendAt[i]` at the i-th log request; pages hold at most `pageCap` chunks. */
+function growingRun(
+  appendAt: Buffer[][],
+  finalState: "done" | "failed" | "cancelled",
+  options: { pageCap?: number } = {},
+) {
   const stored: StoredChunk[] = [];
   let offsetBytes = 0;
   let requests = 0;
@@ -45,7 +50,10 @@ function growingRun(appendAt: Buffer[][], finalState: "done" | "failed" | "cance
     requests += 1;
     if (requests >= appendAt.length) state = finalState;
     const afterSeq = Number(url.searchParams.get("afterSeq"));
-    const limit = Number(url.searchParams.get("limit"));
+    const limit = Math.min(
+      Number(url.searchParams.get("limit")),
+      options.pageCap ?? Number.POSITIVE_INFINITY,
+    );
     const page = stored.filter((c) => c.seq >= afterSeq).slice(0, limit);
     const complete = state === finalState && (page.at(-1)?.seq ?? afterSeq) === stored.length;
     return { body: logPage(page, page.at(-1)?.seq ?? afterSeq, complete) };
@@ -98,6 +106,17 @@ describe("runs watch over HTTP", { timeout: 30_000 }, () => {
     const out = collector();
     const client = createApiClient(apiConfigFromEnv({ SIGMAFLOW_URL: api.url, SIGMAFLOW_TOKEN: TOKEN }));
     // A poll interval this long would time the test out if pages waited for it.
+    const result = await watchRun(client, RUN_ID, out.stream, { pollIntervalMs: 60_000 });
+    expect(result).toEqual({ kind: "final", state: "done", via: "http" });
+    expect(out.bytes().equals(Buffer.concat(run.stored.map((c) => c.data)))).toBe(true);
+  });
+
+  it("keeps reading at once when the server ends pages early (its size limit), not only after full pages", async () => {
+    const many = Array.from({ length: 50 }, (_, i) => Buffer.from(`line ${i}\n`));
+    const run = growingRun([many], "done", { pageCap: 7 });
+    const out = collector();
+    const client = createApiClient(apiConfigFromEnv({ SIGMAFLOW_URL: api.url, SIGMAFLOW_TOKEN: TOKEN }));
+    // Pages of 7 chunks are far below the requested limit; waiting a poll interval after one would time out.
     const result = await watchRun(client, RUN_ID, out.stream, { pollIntervalMs: 60_000 });
     expect(result).toEqual({ kind: "final", state: "done", via: "http" });
     expect(out.bytes().equals(Buffer.concat(run.stored.map((c) => c.data)))).toBe(true);

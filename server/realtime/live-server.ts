@@ -20,6 +20,7 @@ import {
   liveJoinRunSchema,
   liveLeaveRunSchema,
 } from "../../shared/schemas/live";
+import type { Principal } from "../auth/principal";
 import { sessionMiddleware } from "../auth/session";
 import type { ServerConfig } from "../config";
 import type { Database } from "../db/client";
@@ -55,7 +56,19 @@ export type LiveFeedDeps = {
   log: Logger;
 };
 
-export type LiveFeedOptions = { sendBudgetBytes?: number };
+export type LiveFeedOptions = {
+  sendBudgetBytes?: number;
+  /** How often each connection's credential and room permissions are checked again (default 30 s). */
+  recheckIntervalMs?: number;
+};
+
+/**
+ * Credentials and permissions are checked at the handshake and at every join; a revoked token, an ended
+ * session or a removed membership would otherwise keep a socket in rooms it joined before. Every so often
+ * each connection is checked again: one whose credential no longer holds is disconnected, and rooms its
+ * person may no longer read are left.
+ */
+export const DEFAULT_RECHECK_INTERVAL_MS = 30_000;
 
 export type LiveFeed = {
   io: Server;
@@ -270,11 +283,63 @@ export function attachLiveFeed(
     });
   });
 
+  /** Checks one connection again (see DEFAULT_RECHECK_INTERVAL_MS). */
+  async function recheck(socket: Socket, state: SocketState) {
+    let principal: Principal;
+    try {
+      principal = await currentPrincipal(db, socket);
+    } catch (error) {
+      if (!(error instanceof AppError)) throw error;
+      socket.emit("error", { code: error.code, message: error.message });
+      socket.disconnect(true);
+      return;
+    }
+    for (const [runId, feed] of [...state.feeds]) {
+      const allowed = await visibleRun(db, principal, runId, "collaborator").then(
+        () => true,
+        (error: unknown) => (error instanceof AppError ? false : Promise.reject(error)),
+      );
+      if (allowed || socket.disconnected) continue;
+      removeFeed(feed);
+      state.feeds.delete(runId);
+      socket.leave(runRoom(runId));
+    }
+    for (const groupId of [...state.groups]) {
+      const allowed = await requireGroupRole(db, principal, groupId, "collaborator").then(
+        () => true,
+        (error: unknown) => (error instanceof AppError ? false : Promise.reject(error)),
+      );
+      if (allowed || socket.disconnected) continue;
+      state.groups.delete(groupId);
+      socket.leave(groupRoom(groupId));
+    }
+  }
+
+  let rechecking = false;
+  const recheckTimer = setInterval(() => {
+    if (rechecking) return;
+    rechecking = true;
+    const sockets = [...io.sockets.sockets.values()];
+    void (async () => {
+      for (const socket of sockets) {
+        const state = states.get(socket.id);
+        if (!state || socket.disconnected) continue;
+        await recheck(socket, state).catch((error: unknown) =>
+          log.warn({ err: error }, "live feed: checking a connection again failed; next time"),
+        );
+      }
+    })().finally(() => {
+      rechecking = false;
+    });
+  }, options.recheckIntervalMs ?? DEFAULT_RECHECK_INTERVAL_MS);
+  recheckTimer.unref();
+
   return {
     io,
     ready: listener.ready,
     listening: listener.listening,
     async close() {
+      clearInterval(recheckTimer);
       await listener.close();
       broadcasts.close();
       for (const socket of io.sockets.sockets.values()) socket.disconnect(true);

@@ -1,8 +1,6 @@
 import type { RunProgress } from "@shared/schemas/runs";
-import { Table, TBody, TD, TH, THead, TR } from "@/components/ui/table";
+import { type SymmetryTiming, SymmetryTimingsTable } from "@/components/symmetry-timings-table";
 import { estimateRemaining, formatDurationSeconds, type RemainingTime } from "../remaining-time";
-
-type Timing = { stage: string; symmetry: string; durationSeconds: number };
 
 function describe(remaining: RemainingTime, progress: RunProgress | null): string | null {
   switch (remaining.kind) {
@@ -25,7 +23,7 @@ export function SymmetryTimings({
   progress,
   finished,
 }: {
-  timings: readonly Timing[];
+  timings: readonly SymmetryTiming[];
   progress: RunProgress | null;
   finished: boolean;
 }) {
@@ -40,24 +38,7 @@ export function SymmetryTimings({
       {timings.length === 0 ? (
         <p className="text-sm text-ink-500">No symmetry finished yet.</p>
       ) : (
-        <Table caption="Time per symmetry">
-          <THead>
-            <TR>
-              <TH>Stage</TH>
-              <TH>Symmetry</TH>
-              <TH>Seconds</TH>
-            </TR>
-          </THead>
-          <TBody>
-            {timings.map((timing) => (
-              <TR key={`${timing.stage}-${timing.symmetry}`}>
-                <TD>{timing.stage}</TD>
-                <TD className="font-mono">{timing.symmetry}</TD>
-                <TD className="font-mono">{timing.durationSeconds.toFixed(2)}</TD>
-              </TR>
-            ))}
-          </TBody>
-        </Table>
+        <SymmetryTimingsTable timings={timings} />
       )}
     </div>
   );

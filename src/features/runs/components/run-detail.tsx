@@ -1,6 +1,7 @@
 import type { RunDetail } from "@shared/schemas";
 import { useQuery } from "@tanstack/react-query";
 import type { ReactNode } from "react";
+import { SymmetryTimingsTable } from "@/components/symmetry-timings-table";
 import { Card, CardBody } from "@/components/ui/card";
 import { Table, TBody, TD, TH, THead, TR } from "@/components/ui/table";
 import { apiUrl } from "@/lib/api-client";
@@ -121,24 +122,7 @@ export function RunDetailView({
         <Section title="Time per symmetry">{liveTimings}</Section>
       ) : run.timings.length > 0 ? (
         <Section title="Time per symmetry">
-          <Table caption="Time per symmetry">
-            <THead>
-              <TR>
-                <TH>Stage</TH>
-                <TH>Symmetry</TH>
-                <TH>Seconds</TH>
-              </TR>
-            </THead>
-            <TBody>
-              {run.timings.map((timing) => (
-                <TR key={`${timing.stage}-${timing.symmetry}`}>
-                  <TD>{timing.stage}</TD>
-                  <TD className="font-mono">{timing.symmetry}</TD>
-                  <TD className="font-mono">{timing.durationSeconds.toFixed(2)}</TD>
-                </TR>
-              ))}
-            </TBody>
-          </Table>
+          <SymmetryTimingsTable timings={run.timings} />
         </Section>
       ) : null}
 

@@ -209,6 +209,10 @@ export async function startEngineStack(options: StackOptions) {
 
   return {
     api,
+    /** The researcher's API token and the server's address, for clients other than `api` (the live feed). */
+    token,
+    baseUrl,
+    groupId: group.id,
     pool,
     cpuSeconds,
     topStatements,

@@ -1,0 +1,252 @@
+/**
+ * End to end in Chromium: the live run view as a researcher of the demo group uses it. A group admin
+ * registers the development host (in this process) for the group; a worker process runs beside the
+ * server deploy/test.sh started. The researcher registers a small shell code whose output rules read
+ * per-symmetry times and progress from its log, submits a run of it through the API, and watches the run
+ * page: log lines arriving in the terminal, a row per finished symmetry, the remaining-time estimate
+ * changing as symmetries finish. Then they cancel it and see `cancelled` on the run page and, without
+ * reloading, in the runs list open in another tab. Screenshots land in E2E_ARTIFACTS_DIR.
+ */
+import { randomBytes } from "node:crypto";
+import type { Browser, BrowserContext, Page } from "playwright-core";
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { e2eEnv, launchChromium, newPage, screenshot } from "./support/browser";
+import { type DevHost, registerDevHostAsAdmin, spawnWorker, startDevHost } from "./support/engine";
+import { type SessionApi, sessionApi, signInAs } from "./support/session";
+
+const env = e2eEnv();
+const suffix = randomBytes(3).toString("hex");
+const GROUP_SLUG = "kestrel-plasma";
+
+/** Symmetries the code works through, each in `steps` lines 0.4 s apart (about 2.4–4 s each). */
+const SYMMETRIES = [
+  { name: "Ag", steps: 6 },
+  { name: "B1g", steps: 9 },
+  { name: "B2g", steps: 7 },
+  { name: "B3g", steps: 10 },
+  { name: "Au", steps: 8 },
+  { name: "B1u", steps: 9 },
+];
+const STEP_SECONDS = 0.4;
+
+/**
+ * The job: a progress line `0/6`, then per symmetry a line per step and, when it is done, its measured
+ * wall time and the new progress; then a long tail so the run is still running when it is cancelled.
+ */
+const SCRIPT = [
+  `echo "live view check: ${SYMMETRIES.length} symmetries, a line every ${STEP_SECONDS} s"`,
+  `echo "progress 0/${SYMMETRIES.length} irreps"`,
+  "n=0",
+  `for pair in ${SYMMETRIES.map((s) => `${s.name}:${s.steps}`).join(" ")}; do`,
+  '  sym=$(echo "$pair" | cut -d: -f1)',
+  '  steps=$(echo "$pair" | cut -d: -f2)',
+  "  start=$(date +%s%N)",
+  "  i=1",
+  '  while [ "$i" -le "$steps" ]; do',
+  '    echo "symmetry $sym: step $i of $steps"',
+  `    sleep ${STEP_SECONDS}`,
+  "    i=$((i + 1))",
+  "  done",
+  "  end=$(date +%s%N)",
+  "  n=$((n + 1))",
+  `  echo "irrep $sym finished in $(awk -v s="$start" -v e="$end" 'BEGIN { printf "%.2f", (e - s) / 1e9 }') s"`,
+  `  echo "progress $n/${SYMMETRIES.length} irreps"`,
+  "done",
+  "i=0",
+  'while [ "$i" -lt 200 ]; do echo "assembling K-matrices: part $i"; sleep 0.4; i=$((i + 1)); done',
+  "",
+].join("\n");
+
+const CODE = {
+  name: `live-view-check-${suffix}`,
+  version: "1.0",
+  description: "Prints per-symmetry progress slowly, for the end-to-end check of the live run view.",
+  executable: "/bin/sh",
+  arguments: ["run.sh"],
+  inputTemplates: [{ fileName: "run.sh", format: "text", template: SCRIPT }],
+  parameters: { type: "object", properties: {}, additionalProperties: false },
+  outputRules: {
+    progress: ["^progress (?<done>[0-9]+)/(?<total>[0-9]+) irreps$"],
+    timings: ["^irrep (?<symmetry>\\S+) finished in (?<seconds>[0-9.]+) s$"],
+  },
+  defaults: { cores: 1, wallTimeMinutes: 5 },
+};
+
+let browser: Browser;
+let closeBrowser: () => Promise<void>;
+let host: DevHost | undefined;
+let worker: ReturnType<typeof spawnWorker> | undefined;
+let context: BrowserContext;
+let page: Page;
+let api: SessionApi;
+let groupId: string;
+let hostId: string;
+let runId: string | undefined;
+
+beforeAll(async () => {
+  ({ browser, close: closeBrowser } = await launchChromium());
+  host = await startDevHost();
+  worker = spawnWorker();
+
+  const admin = await newPage(browser);
+  await signInAs(admin.page, "demo-group-admin");
+  const adminApi = await sessionApi(admin.page);
+  groupId = adminApi.memberships.find((m) => m.groupSlug === GROUP_SLUG)!.groupId;
+  hostId = await registerDevHostAsAdmin(adminApi, groupId, host, `live-view-${suffix}`);
+  await admin.context.close();
+
+  ({ context, page } = await newPage(browser));
+  await signInAs(page, "demo-researcher");
+  api = await sessionApi(page);
+});
+
+afterAll(async () => {
+  if (runId) {
+    const run = await api?.("GET", `/api/runs/${runId}`).catch(() => null);
+    if (run && !["done", "failed", "cancelled"].includes(run.body?.state)) {
+      await api("POST", `/api/runs/${runId}/cancel`).catch(() => undefined);
+    }
+  }
+  await closeBrowser?.();
+  await worker?.stop();
+  await host?.stop();
+});
+
+/** The rows the terminal shows now (xterm's DOM renderer draws the visible rows as text). */
+const terminalText = (p: Page) => p.locator('[data-testid="live-log"] .xterm-rows').textContent();
+
+const timingsTable = (p: Page) => p.getByRole("table", { name: "Time per symmetry" });
+
+async function timingRows(p: Page): Promise<{ symmetry: string; seconds: number }[]> {
+  const rows = await timingsTable(p).locator("tbody tr").all();
+  const out: { symmetry: string; seconds: number }[] = [];
+  for (const row of rows) {
+    const cells = await row.locator("td").allInnerTexts();
+    out.push({ symmetry: cells[1]!.trim(), seconds: Number(cells[2]) });
+  }
+  return out;
+}
+
+/** The state in the run's summary card (the first "State" label on the page; History comes later). */
+const summaryState = (p: Page) =>
+  p.getByText("State", { exact: true }).first().locator("xpath=..").textContent();
+
+describe("live run view", () => {
+  it("streams the log, timings and estimate of a running run, and shows it cancelled", async () => {
+    expect(api.memberships.find((m) => m.groupSlug === GROUP_SLUG)?.role).toBe("member");
+
+    // The researcher registers the code and a one-stage recipe, and submits a run through the API.
+    const code = await api("POST", `/api/groups/${groupId}/codes`, CODE);
+    expect(code.status, JSON.stringify(code.body)).toBe(201);
+    const recipe = await api("POST", `/api/groups/${groupId}/recipes`, {
+      name: `live-view-check-${suffix}`,
+      stages: [{ name: "scatter", codeId: code.body.id }],
+    });
+    expect(recipe.status, JSON.stringify(recipe.body)).toBe(201);
+    const runName = `Live view check ${suffix}`;
+    const created = await api("POST", `/api/groups/${groupId}/runs`, {
+      spec: {
+        name: runName,
+        recipeId: recipe.body.id,
+        hostId,
+        parameters: {},
+        resources: { cores: 1, wallTimeMinutes: 5 },
+      },
+      onDuplicate: "run",
+    });
+    expect(created.status, JSON.stringify(created.body)).toBe(201);
+    runId = created.body.id as string;
+
+    // The runs list in a second tab, marked so a reload would show.
+    const list = await context.newPage();
+    list.setDefaultTimeout(15_000);
+    await list.goto(`${env.appUrl}/groups/${groupId}/runs`);
+    await list.evaluate(() => {
+      (window as unknown as { sfNotReloaded: boolean }).sfNotReloaded = true;
+    });
+    const listRow = list.getByRole("row").filter({ has: list.getByRole("link", { name: runName }) });
+    await expect.poll(() => list.getByRole("status", { name: "Updates: live" }).isVisible()).toBe(true);
+
+    await page.goto(`${env.appUrl}/groups/${groupId}/runs/${runId}`);
+    await expect
+      .poll(() => page.getByRole("status", { name: "Updates: live" }).isVisible(), { timeout: 20_000 })
+      .toBe(true);
+    await expect
+      .poll(() => summaryState(page), {
+        timeout: 45_000,
+        message: `the run reaches running (worker log: ${worker?.log()})`,
+      })
+      .toMatch(/running/);
+    await expect.poll(() => listRow.textContent(), { timeout: 20_000 }).toMatch(/running/);
+
+    // Log lines arrive in the terminal, and keep arriving.
+    await expect.poll(() => terminalText(page), { timeout: 20_000 }).toMatch(/symmetry Ag: step \d+ of 6/);
+    await expect.poll(() => terminalText(page), { timeout: 30_000 }).toMatch(/symmetry B1g: step \d+ of 9/);
+
+    // A row per finished symmetry, with the time the job measured (6 steps of 0.4 s: at least 2.4 s).
+    await expect
+      .poll(async () => (await timingRows(page)).map((row) => row.symmetry), { timeout: 30_000 })
+      .toContain("Ag");
+    const ag = (await timingRows(page)).find((row) => row.symmetry === "Ag")!;
+    expect(ag.seconds).toBeGreaterThanOrEqual(6 * STEP_SECONDS);
+    expect(ag.seconds).toBeLessThan(30);
+
+    // The estimate changes as symmetries finish: fewer symmetries left, each time about mean × left.
+    const estimates = new Map<number, string>();
+    await expect
+      .poll(
+        async () => {
+          const text = await page
+            .getByTestId("remaining-time")
+            .textContent()
+            .catch(() => null);
+          const match = /about (.+) left — (\d+) symmetr(?:y|ies) at ([0-9.]+) s each/.exec(text ?? "");
+          if (match) estimates.set(Number(match[2]), match.input);
+          return estimates.size;
+        },
+        { timeout: 40_000, interval: 200 },
+      )
+      .toBeGreaterThanOrEqual(2);
+    for (const [left, text] of estimates) {
+      expect(text).toMatch(/^Stage scatter: about /);
+      expect(left).toBeLessThan(SYMMETRIES.length);
+      const mean = Number(/at ([0-9.]+) s each/.exec(text)![1]);
+      const shown = /about (\d+) s left/.exec(text);
+      // Estimates under a minute are whole seconds: mean × left, rounded (mean shown to 0.1 s).
+      if (shown) expect(Math.abs(Number(shown[1]) - mean * left)).toBeLessThanOrEqual(left * 0.05 + 1);
+    }
+    expect((await timingRows(page)).length).toBeGreaterThanOrEqual(2);
+    await screenshot(page, "live-run-streaming");
+
+    // Cancel (confirming if the page asks) and see it acknowledged, then `cancelled`.
+    page.once("dialog", (dialog) => void dialog.accept());
+    await page.getByRole("button", { name: "Cancel", exact: true }).click();
+    const confirm = page
+      .getByRole("dialog")
+      .getByRole("button", { name: /^(cancel (the )?run|yes|confirm)/i });
+    if (await confirm.isVisible().catch(() => false)) await confirm.click();
+    await expect
+      .poll(() => summaryState(page), {
+        timeout: 30_000,
+        message: `the run becomes cancelled (worker log: ${worker?.log()})`,
+      })
+      .toMatch(/cancelled/);
+    await expect
+      .poll(() => page.getByRole("button", { name: "Resubmit", exact: true }).isVisible())
+      .toBe(true);
+    expect(await page.getByTestId("remaining-time").count()).toBe(0);
+    const history = page.getByRole("table", { name: "State changes" });
+    await expect.poll(() => history.textContent()).toMatch(/cancelled/);
+    await screenshot(page, "live-run-cancelled");
+
+    // The runs list followed without a reload.
+    await expect.poll(() => listRow.textContent(), { timeout: 20_000 }).toMatch(/cancelled/);
+    expect(await list.evaluate(() => (window as unknown as { sfNotReloaded?: boolean }).sfNotReloaded)).toBe(
+      true,
+    );
+    await screenshot(list, "live-runs-list-cancelled");
+
+    const stored = await api("GET", `/api/runs/${runId}`);
+    expect(stored.body.state).toBe("cancelled");
+  });
+});

@@ -260,6 +260,11 @@ export class MemorySampler {
     }
   }
 
+  /** A process's peak resident memory so far (VmHWM), in MiB. */
+  peakMiB(name: string): number {
+    return memoryMiB(this.pids[name]!).peak;
+  }
+
   /** "server RSS 120 → 180 MiB (samples: max 185, last 180), peak (VmHWM) 190 MiB; …" */
   report(): string {
     clearInterval(this.timer);

@@ -1,0 +1,178 @@
+/**
+ * The live feed's fan-out: 50 runs whose jobs each write 1 000 numbered lines/s for 30 s (48-byte
+ * lines, 1.44 MB per run), each followed by 20 socket.io clients on /api/live (API token), 1 000
+ * connections in all. The clients live in a few processes of their own (bench/live/feed-clients.ts,
+ * 4 by default, each holding 250 connections spread over all runs), so one Node process's event loop
+ * is not what limits them; each client checks what arrives as it arrives and acknowledges every chunk.
+ * Checked: every client got its run's every chunk once and in order (sequence numbers 1..N, each
+ * starting where the last ended) and bytes whose sha256 equals the log file on the host, which itself
+ * holds lines 1..N once and in order. Printed: lines/s delivered to all clients, the time from each
+ * job's last line to its delivery to each client, CPU seconds of each process, and peak memory (VmHWM)
+ * of the server (Sigmaflow's goal: under 300 MB), the worker, the development host and the client
+ * processes. The stack runs with production settings (bench/engine/stack.ts: poll interval 2 s, fsync
+ * on); the host's limit of runs at once is 50, so all 50 run together.
+ *
+ *   node --import tsx bench/live/fanout.bench.ts [--runs=50] [--clients-per-run=20] [--client-processes=4]
+ *     [--lines-per-second=1000] [--seconds=30] [--line-bytes=48] [--fsync=off]
+ *
+ * Figures on this 2-core machine (fsync on):
+ *   (see the end of this comment, filled in from the runs)
+ */
+import { type ChildProcess, fork } from "node:child_process";
+import { fileURLToPath } from "node:url";
+import { cpuReport, quantile, startEngineStack, waitUntilFinished } from "../engine/stack";
+import { processCpuSeconds, stopChild } from "../support/processes";
+import type { CollectMessage, JoinedMessage, ReportsMessage, StartMessage } from "./feed-clients";
+import { checkHostLog, FEED_CODE, type FeedParameters, MemorySampler, stampMs } from "./feed-support";
+
+const args = process.argv.slice(2);
+const option = (name: string, fallback: number) =>
+  Number(args.find((a) => a.startsWith(`--${name}=`))?.split("=")[1] ?? fallback);
+const runCount = option("runs", 50);
+const clientsPerRun = option("clients-per-run", 20);
+const clientProcesses = option("client-processes", 4);
+const feed: FeedParameters = {
+  linesPerSecond: option("lines-per-second", 1000),
+  seconds: option("seconds", 30),
+  lineBytes: option("line-bytes", 48),
+};
+const durable = !args.includes("--fsync=off");
+const expectedLines = Math.trunc(feed.linesPerSecond * feed.seconds);
+const SERVER_PEAK_GOAL_MIB = 300;
+
+console.log(
+  `settings: stack defaults (worker poll 2 s, 256 KiB per poll while a job runs, fsync ${durable ? "on" : "off"}), host limit ${Math.max(50, runCount)} runs at once, allocation 1 000 000 core-hours; ` +
+    `${runCount} runs × ${feed.linesPerSecond} lines/s × ${feed.seconds} s × ${feed.lineBytes} B; ` +
+    `${clientsPerRun} clients per run = ${runCount * clientsPerRun} connections in ${clientProcesses} client processes`,
+);
+const stack = await startEngineStack({ durable, code: FEED_CODE, maxConcurrentRuns: Math.max(50, runCount) });
+const clientScript = fileURLToPath(new URL("./feed-clients.ts", import.meta.url));
+const children: ChildProcess[] = Array.from({ length: clientProcesses }, () =>
+  fork(clientScript, [], { execArgv: ["--import", "tsx"], stdio: ["ignore", "inherit", "inherit", "ipc"] }),
+);
+const nextMessage = <T>(child: ChildProcess, type: string, timeoutMs: number) =>
+  new Promise<T>((resolve, reject) => {
+    const timer = setTimeout(() => reject(new Error(`no ${type} from a client process in time`)), timeoutMs);
+    child.once("exit", (code) => reject(new Error(`a client process exited (${code})`)));
+    const onMessage = (message: { type: string }) => {
+      if (message.type !== type) return;
+      clearTimeout(timer);
+      child.off("message", onMessage);
+      resolve(message as T);
+    };
+    child.on("message", onMessage);
+  });
+
+try {
+  const warm = await stack.submit("warm-up", { linesPerSecond: 100, seconds: 1, lineBytes: feed.lineBytes });
+  await waitUntilFinished(stack, [warm], 60_000);
+
+  const memory = new MemorySampler({
+    server: stack.server.pid!,
+    worker: stack.workers[0]!.pid!,
+    "development host": stack.fake.child.pid!,
+    ...Object.fromEntries(children.map((child, i) => [`client process ${i + 1}`, child.pid!])),
+  });
+  const cpu = () => ({
+    ...stack.cpuSeconds(),
+    "client processes": children.reduce((sum, child) => sum + processCpuSeconds(child.pid!), 0),
+  });
+  const cpuBefore = cpu();
+  const submittedAt = Date.now();
+  const runIds = await Promise.all(
+    Array.from({ length: runCount }, (_, i) => stack.submit(`fanout-${i}`, feed)),
+  );
+  // Client c of run r goes to process (r × clientsPerRun + c) mod P: every process follows every run.
+  const assignments: { runId: string }[][] = children.map(() => []);
+  runIds.forEach((runId, r) => {
+    for (let c = 0; c < clientsPerRun; c += 1)
+      assignments[(r * clientsPerRun + c) % clientProcesses]!.push({ runId });
+  });
+  const joined = children.map((child) => nextMessage<JoinedMessage>(child, "joined", 120_000));
+  children.forEach((child, i) => {
+    child.send({
+      type: "start",
+      baseUrl: stack.baseUrl,
+      token: stack.token,
+      clients: assignments[i]!,
+    } satisfies StartMessage);
+  });
+  await Promise.all(joined);
+  console.log(
+    `  all ${runCount * clientsPerRun} clients joined ${((Date.now() - submittedAt) / 1000).toFixed(1)} s after the first submission`,
+  );
+  const states = await waitUntilFinished(stack, runIds, 15 * 60_000, (s) =>
+    console.log(`  … ${((Date.now() - submittedAt) / 1000).toFixed(0)} s: ${JSON.stringify(s)}`),
+  );
+  if (states.done !== runCount) throw new Error(`not every run finished as done: ${JSON.stringify(states)}`);
+  const hostLogs = new Map(
+    runIds.map((runId) => [
+      runId,
+      {
+        ...checkHostLog(stack.hostPath(runId, "job.log"), expectedLines, feed.lineBytes),
+        startedAt: stampMs(stack.hostPath(runId, "stage-1-main/started.at")),
+        endedAt: stampMs(stack.hostPath(runId, "stage-1-main/ended.at")),
+      },
+    ]),
+  );
+  const collected = children.map((child) => nextMessage<ReportsMessage>(child, "reports", 180_000));
+  for (const child of children)
+    child.send({
+      type: "collect",
+      expectedBytes: Object.fromEntries([...hostLogs].map(([runId, log]) => [runId, log.bytes])),
+      timeoutMs: 120_000,
+    } satisfies CollectMessage);
+  const answers = await Promise.all(collected);
+  const cpuAfter = cpu();
+
+  const reports = answers.flatMap((answer) => answer.reports);
+  const incomplete = reports.filter((report) => {
+    const log = hostLogs.get(report.runId)!;
+    return (
+      report.bytes !== log.bytes ||
+      report.sha256 !== log.sha256 ||
+      report.numberedLines !== expectedLines ||
+      report.seqFaults.length > 0
+    );
+  });
+  const lagsS = reports
+    .map((report) => (report.lastAtMs - hostLogs.get(report.runId)!.endedAt) / 1000)
+    .sort((a, b) => a - b);
+  const firstStart = Math.min(...[...hostLogs.values()].map((log) => log.startedAt));
+  const lastDelivery = Math.max(...reports.map((report) => report.lastAtMs));
+  const deliveredLines = reports.reduce((sum, report) => sum + report.numberedLines, 0);
+  const lastEnd = Math.max(...[...hostLogs.values()].map((log) => log.endedAt));
+  const pauses = reports.reduce((sum, report) => sum + report.pauses, 0);
+  const disconnects = answers.reduce((sum, answer) => sum + answer.disconnects, 0);
+  console.log(
+    `fanout: ${reports.length} clients, ${reports.length - incomplete.length} got every line of their run once and in order (sha256 equal to the host's log)` +
+      (incomplete.length
+        ? `; INCOMPLETE ${incomplete.length}, e.g. ${JSON.stringify(
+            incomplete.slice(0, 3).map((r) => ({
+              runId: r.runId,
+              bytes: r.bytes,
+              expected: hostLogs.get(r.runId)!.bytes,
+              lines: r.numberedLines,
+              seqFaults: r.seqFaults.slice(0, 3),
+            })),
+          )}`
+        : "") +
+      `; paused ${pauses} time(s), ${disconnects} unexpected disconnect(s)${disconnects ? ` ${JSON.stringify(answers.flatMap((a) => a.errors).slice(0, 5))}` : ""}`,
+  );
+  console.log(
+    `delivered ${deliveredLines} lines to the clients = ${(deliveredLines / ((lastDelivery - firstStart) / 1000)).toFixed(0)} lines/s ` +
+      `(first job start → last delivery ${((lastDelivery - firstStart) / 1000).toFixed(1)} s; the jobs wrote ${runCount * feed.linesPerSecond} lines/s × ${clientsPerRun} clients while all ran; ` +
+      `last job end → last delivery ${((lastDelivery - lastEnd) / 1000).toFixed(2)} s); ` +
+      `job's last line → delivered, per client: p50 ${quantile(lagsS, 0.5).toFixed(2)} s, p95 ${quantile(lagsS, 0.95).toFixed(2)} s, max ${lagsS.at(-1)!.toFixed(2)} s`,
+  );
+  console.log(`CPU: ${cpuReport(cpuBefore, cpuAfter)}`);
+  const serverPeak = memory.peakMiB("server");
+  console.log(`memory: ${memory.report()}`);
+  console.log(
+    `server peak ${serverPeak.toFixed(0)} MiB (goal < ${SERVER_PEAK_GOAL_MIB} MiB: ${serverPeak < SERVER_PEAK_GOAL_MIB ? "met" : "missed"})`,
+  );
+  if (incomplete.length > 0) process.exitCode = 1;
+} finally {
+  await Promise.all(children.map((child) => stopChild(child, 2000)));
+  await stack.stop();
+}

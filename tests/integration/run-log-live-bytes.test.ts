@@ -115,8 +115,8 @@ describe("the hostile log over the live feed, byte for byte", () => {
 
     const socket = await connectLive(sf.app.baseUrl, { token });
     const recorder = new RunRecorder(runId).attach(socket);
-    // Replaying megabytes outruns the acknowledgements: past its send budget the feed pauses, and the
-    // client resumes from the last chunk it holds, as the browser and `watch` do.
+    // Should the feed run past its send budget (a replay of megabytes can), it pauses, and the client
+    // resumes from the last chunk it holds, as the browser and `watch` do.
     const resumes: { lastSentSeq: number; heldSeq: number; answer: Promise<LiveAck> }[] = [];
     socket.on(LIVE_EVENTS.paused, (raw: unknown) => {
       const pause = liveRunPausedSchema.parse(raw);

@@ -49,7 +49,15 @@ export async function newPage(browser: Browser): Promise<{ context: BrowserConte
   return { context, page };
 }
 
-export async function screenshot(page: Page, name: string): Promise<void> {
+/**
+ * The whole page by default; `fullPage: false` takes what the window shows (scrolled pages with a sticky
+ * header or side bar look as a person sees them).
+ */
+export async function screenshot(
+  page: Page,
+  name: string,
+  options: { fullPage?: boolean } = {},
+): Promise<void> {
   const { artifactsDir } = e2eEnv();
-  await page.screenshot({ path: path.join(artifactsDir, `${name}.png`), fullPage: true });
+  await page.screenshot({ path: path.join(artifactsDir, `${name}.png`), fullPage: options.fullPage ?? true });
 }

@@ -28,7 +28,7 @@ export async function signInAs(page: Page, subject: string): Promise<void> {
   await page.waitForURL(
     (url) => url.origin === new URL(appUrl).origin && !url.pathname.startsWith("/signin"),
   );
-  await expect.poll(() => page.getByText(account.displayName).first().isVisible()).toBe(true);
+  await page.getByText(account.displayName).first().waitFor({ state: "visible" });
 }
 
 // biome-ignore lint/suspicious/noExplicitAny: test responses are read loosely, field by field.

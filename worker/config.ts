@@ -1,5 +1,6 @@
 /** Worker settings from the environment, parsed once at start. */
 import { z } from "zod";
+import { DEFAULT_LOG_CHUNK_BYTES } from "./logs/tail";
 
 const envSchema = z.object({
   DATABASE_URL: z.string().min(1),
@@ -7,6 +8,12 @@ const envSchema = z.object({
   SIGMAFLOW_PUBLIC_URL: z.string().default("http://127.0.0.1:5180"),
   /** How often each host's runs are polled for state and new log bytes. */
   WORKER_POLL_INTERVAL_MS: z.coerce.number().int().min(100).default(2000),
+  /** Stream running jobs' logs as they are written (1) or read them at the poll interval only (0). */
+  WORKER_LOG_STREAMING: z.enum(["0", "1"]).default("1"),
+  /** Shortest time between two stored chunks of one streamed log. */
+  WORKER_LOG_FLUSH_INTERVAL_MS: z.coerce.number().int().min(0).max(10_000).default(50),
+  /** Exec slots per SSH connection kept free for run steps; logs are streamed only beyond them. */
+  WORKER_LOG_STREAM_SPARE_SLOTS: z.coerce.number().int().min(1).max(64).default(3),
   /** How often pg-boss looks for new step items. */
   WORKER_QUEUE_POLL_SECONDS: z.coerce.number().min(0.5).default(0.5),
   /** Parallel step handlers per queue. */
@@ -58,6 +65,15 @@ export function loadWorkerConfig(env: NodeJS.ProcessEnv = process.env) {
     publicUrl: e.SIGMAFLOW_PUBLIC_URL.replace(/\/$/, ""),
     pollIntervalMs: e.WORKER_POLL_INTERVAL_MS,
     queuePollSeconds: e.WORKER_QUEUE_POLL_SECONDS,
+    logFollow: {
+      enabled: e.WORKER_LOG_STREAMING === "1",
+      spareSlots: e.WORKER_LOG_STREAM_SPARE_SLOTS,
+      flushIntervalMs: e.WORKER_LOG_FLUSH_INTERVAL_MS,
+      // The poller's read size: a log is cut into the same chunks whichever reads it.
+      maxChunkBytes: DEFAULT_LOG_CHUNK_BYTES,
+      maxBufferedBytes: 4 * DEFAULT_LOG_CHUNK_BYTES,
+      retryAfterMs: Math.max(10_000, 5 * e.WORKER_POLL_INTERVAL_MS),
+    },
     concurrency: e.WORKER_CONCURRENCY,
     dbPoolSize: e.WORKER_DB_POOL_SIZE,
     transportMaxAttempts: e.WORKER_TRANSPORT_MAX_ATTEMPTS,

@@ -4,6 +4,7 @@ import type { Database } from "../server/db/client";
 import type { Logger } from "../server/logger";
 import type { Mailer } from "../server/mail/mailer";
 import type { WorkerConfig } from "./config";
+import type { LogFollowers } from "./logs/log-follower";
 import type { SshPool } from "./ssh/pool";
 import type { StagingClaims } from "./staging-claims";
 
@@ -18,4 +19,6 @@ export type WorkerContext = {
   mailer: Mailer;
   /** Keeps two attempts from staging the same run at once (see staging-claims.ts). */
   stagingClaims: StagingClaims;
+  /** Running jobs' logs streamed as they are written (see logs/log-follower.ts). */
+  logFollowers: LogFollowers;
 };

@@ -9,6 +9,7 @@ import { createMailer } from "../server/mail/mailer";
 import { createBoss, createRunQueues, RUN_STEP_QUEUES, runStepPayloadSchema } from "../server/queue/queues";
 import { loadWorkerConfig } from "./config";
 import type { WorkerContext } from "./context";
+import { LogFollowers } from "./logs/log-follower";
 import { every, pollAllHosts, reconcileRunsInFlight, resumeHeldRuns } from "./maintenance";
 import { SshPool } from "./ssh/pool";
 import { StagingClaims } from "./staging-claims";
@@ -29,7 +30,7 @@ export async function startWorker(config = loadWorkerConfig()) {
   await boss.start();
   await createRunQueues(boss);
   const ssh = new SshPool(config.ssh);
-  const ctx: WorkerContext = {
+  const base: Omit<WorkerContext, "logFollowers"> = {
     db,
     pool,
     boss,
@@ -39,6 +40,10 @@ export async function startWorker(config = loadWorkerConfig()) {
     mailer: createMailer(config.smtp),
     stagingClaims: new StagingClaims(config.databaseUrl),
   };
+  const ctx: WorkerContext = Object.assign(base, {
+    logFollowers: undefined as unknown as LogFollowers,
+  });
+  ctx.logFollowers = new LogFollowers(ctx, config.logFollow);
 
   const handlers = {
     [RUN_STEP_QUEUES.stage]: stageRun,
@@ -85,6 +90,7 @@ export async function startWorker(config = loadWorkerConfig()) {
     async stop() {
       await stopPolling();
       await stopProbing();
+      await ctx.logFollowers.closeAll();
       await boss.stop({ graceful: true, wait: true, timeout: 10_000 });
       ssh.close();
       await ctx.stagingClaims.close();

@@ -24,7 +24,18 @@ const worker = { kind: "worker" } as const;
  */
 export async function pollAllHosts(ctx: WorkerContext): Promise<void> {
   await pollHostsWithActiveRuns(ctx);
+  await stopFollowingInactiveRuns(ctx);
   await wakeWaitingRuns(ctx);
+}
+
+/** Streamed logs of runs that were cancelled, held or settled meanwhile stop being streamed. */
+async function stopFollowingInactiveRuns(ctx: WorkerContext): Promise<void> {
+  if (ctx.logFollowers.stats().followed === 0) return;
+  const active = await ctx.db
+    .select({ id: runs.id })
+    .from(runs)
+    .where(inArray(runs.state, ["submitted", "running"]));
+  await ctx.logFollowers.retain(new Set(active.map((run) => run.id)));
 }
 
 async function pollHostsWithActiveRuns(ctx: WorkerContext): Promise<void> {

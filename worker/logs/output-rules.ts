@@ -28,7 +28,12 @@ export const RULE_TIME_BUDGET_MS = 100;
 
 const STAGE_MARKER = /^\[sigmaflow\] stage (\d+)\/(\d+) ([a-z][a-z0-9-]*): (start|exit)/;
 
-type CompiledStage = { name: string; progress: UserPattern[]; timings: UserPattern[]; refused: string[] };
+export type CompiledStage = {
+  name: string;
+  progress: UserPattern[];
+  timings: UserPattern[];
+  refused: string[];
+};
 
 /**
  * Compiles each stage's rules. Rules are checked when a code is registered

@@ -111,6 +111,30 @@ export class SshPool {
   }
 
   /**
+   * Leases an exec slot for a long-lived channel (a followed log) only when one is free beyond
+   * `spareSlots` on a usable connection, or a new connection may be opened; never waits. So streams
+   * never crowd out the short commands of run steps. Null when no such slot is free now.
+   */
+  async tryLeaseChannel(target: SshTarget, spareSlots: number): Promise<ChannelLease | null> {
+    if (this.closed) return null;
+    const group = this.group(target);
+    const limit = this.maxChannels - Math.max(0, spareSlots);
+    const best = leastBy(
+      this.usable(group).filter((connection) => connection.channelsInUse < limit),
+      load,
+    );
+    const chosen =
+      best ?? (group.connections.length < this.maxConnections && limit > 1 ? this.open(target, group) : null);
+    if (!chosen) return null;
+    chosen.execChannels += 1;
+    this.cancelIdle(chosen);
+    this.notePeak(chosen);
+    return this.awaitReady(chosen, () => {
+      chosen.execChannels -= 1;
+    });
+  }
+
+  /**
    * Runs `operation` on an SFTP channel of the target, opening the channel on the least busy connection
    * that has none while other SFTP channels are busy (so parallel transfers spread over connections).
    */

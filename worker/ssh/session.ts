@@ -9,6 +9,7 @@ import type { SshTarget } from "./connection";
 import { classifySshError, RemoteCommandError, TransportError } from "./errors";
 import type { SshPool } from "./pool";
 import { commandLine } from "./quote";
+import { openRemoteStream, type RemoteStream, type RemoteStreamHandlers } from "./remote-stream";
 import {
   chmodPath,
   fastPut,
@@ -44,6 +45,15 @@ export interface RemoteSession {
   readonly target: SshTarget;
   /** Runs argv (quoted into one command line); never throws for a non-zero exit, only for transport loss. */
   exec(argv: string[], options?: ExecOptions): Promise<ExecResult>;
+  /**
+   * Starts argv with its output handed to `handlers` as it comes, on a channel slot that is spare beyond
+   * `spareSlots`; null when none is free now (the caller falls back to something cheaper).
+   */
+  openStream(
+    argv: string[],
+    handlers: RemoteStreamHandlers,
+    options: { spareSlots: number },
+  ): Promise<RemoteStream | null>;
   /** Runs argv and returns stdout as UTF-8; a non-zero exit throws RemoteCommandError. */
   run(argv: string[], options?: ExecOptions): Promise<string>;
   writeFile(remotePath: string, content: Buffer, options?: WriteOptions): Promise<void>;
@@ -96,6 +106,14 @@ export class RemoteSessionImpl implements RemoteSession {
   async exec(argv: string[], options: ExecOptions = {}): Promise<ExecResult> {
     const command = commandLine(argv);
     return retryChannelOpen(() => this.execOnce(command, options));
+  }
+
+  openStream(
+    argv: string[],
+    handlers: RemoteStreamHandlers,
+    options: { spareSlots: number },
+  ): Promise<RemoteStream | null> {
+    return openRemoteStream(this.pool, this.target, commandLine(argv), handlers, options.spareSlots);
   }
 
   private async execOnce(command: string, options: ExecOptions): Promise<ExecResult> {

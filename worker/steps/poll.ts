@@ -5,16 +5,17 @@
  */
 import { and, eq, inArray } from "drizzle-orm";
 import { withClientTransaction } from "../../server/db/client-transaction";
-import { hosts, runLogChunks, runs, runTimings } from "../../server/db/schema";
+import { hosts, runs } from "../../server/db/schema";
 import { transitionRun } from "../../server/execution/run-transitions";
 import { RUN_STEP_QUEUES } from "../../server/queue/queues";
 import type { WorkerContext } from "../context";
 import { guardStep, holdHostRuns, holdRefusedAccountRuns } from "../failures";
 import { groupBy } from "../group-by";
-import { compileOutputRules, parseLogLines } from "../logs/output-rules";
-import { advanceProgress, storedProgress } from "../logs/progress";
-import { decodeLogText, readLogBytesFrom } from "../logs/tail";
-import { type HostRow, jobRefOf, loadHost, planOf, type RunRow, sessionFor } from "../run-runtime";
+import { appendLogChunk, type LogPosition } from "../logs/log-store";
+import { compileOutputRules } from "../logs/output-rules";
+import { storedProgress } from "../logs/progress";
+import { DEFAULT_LOG_CHUNK_BYTES, readLogBytesFrom } from "../logs/tail";
+import { type HostRow, jobRefOf, loadHost, loadRun, planOf, type RunRow, sessionFor } from "../run-runtime";
 import { schedulerFor } from "../schedulers";
 import type { JobStatus } from "../schedulers/types";
 import {
@@ -27,7 +28,7 @@ import type { RemoteSession } from "../ssh/pool";
 
 const worker = { kind: "worker" } as const;
 /** Enough bytes per poll to keep up with a chatty code without holding a poll for long. */
-const MAX_LOG_BYTES_PER_POLL = 256 * 1024;
+const MAX_LOG_BYTES_PER_POLL = DEFAULT_LOG_CHUNK_BYTES;
 /** Reads of a job that has ended, per poll (16 MiB); a longer log is read on over the next polls. */
 const MAX_LOG_ROUNDS_AFTER_END = 64;
 
@@ -46,58 +47,26 @@ async function storeLog(
 ): Promise<boolean> {
   const plan = planOf(run);
   const rules = compileOutputRules(plan);
-  let offset = run.logOffsetBytes;
-  let seq = run.logSeq;
-  let progress = storedProgress(run.progress);
+  let position: LogPosition = {
+    offsetBytes: run.logOffsetBytes,
+    seq: run.logSeq,
+    progress: storedProgress(run.progress),
+  };
   for (let round = 0; round < (untilEnd ? MAX_LOG_ROUNDS_AFTER_END : 1); round += 1) {
     const chunk = await readLogBytesFrom(
       session,
       `${run.remoteDir}/${plan.logName}`,
-      offset,
+      position.offsetBytes,
       MAX_LOG_BYTES_PER_POLL,
       { includePartialLine: untilEnd },
     );
     if (chunk.bytes.length === 0) return untilEnd && chunk.endOfFile;
-    // Cuts fall after a newline, or at a character's end in a full line-less read, so the copy decodes
-    // whole characters; bytes that are not UTF-8 read as U+FFFD here only.
-    const parsed = parseLogLines(decodeLogText(chunk.bytes), rules, progress?.stage ?? null);
-    // Lines the output rules skipped (too long, over the time budget, a rule that no longer compiles):
-    // the log itself is stored whole, so only timings and progress from those lines are missing.
-    if (parsed.notes.length > 0)
-      ctx.log.warn({ runId: run.id, notes: parsed.notes }, "output rules skipped lines");
-    progress = advanceProgress(progress, parsed);
-    seq += 1;
-    const chunkOffset = offset;
-    offset = chunk.nextOffsetBytes;
-    const stored = await ctx.db.transaction(async (tx) => {
-      // The conditional update makes a repeated poll of the same bytes (two workers, a retry) a no-op.
-      const advanced = await tx
-        .update(runs)
-        .set({
-          logOffsetBytes: offset,
-          logSeq: seq,
-          progress,
-          updatedAt: new Date(),
-        })
-        .where(and(eq(runs.id, run.id), eq(runs.logOffsetBytes, chunkOffset)))
-        .returning({ id: runs.id });
-      if (advanced.length === 0) return false;
-      await tx
-        .insert(runLogChunks)
-        .values({ runId: run.id, seq, offsetBytes: chunkOffset, content: chunk.bytes });
-      for (const timing of parsed.timings) {
-        await tx
-          .insert(runTimings)
-          .values({ runId: run.id, ...timing })
-          .onConflictDoUpdate({
-            target: [runTimings.runId, runTimings.stage, runTimings.symmetry],
-            set: { elapsedMs: timing.elapsedMs },
-          });
-      }
-      return true;
-    });
-    // Another poll of this run got there first: it carries on from its own offset.
-    if (!stored) return false;
+    // Cuts fall after a newline, or at a character's end in a full line-less read, so the parsed copy
+    // holds whole characters.
+    const next = await appendLogChunk(ctx, run.id, rules, position, chunk.bytes);
+    // Another reader of this log got there first: it carries on from its own offset.
+    if (!next) return false;
+    position = next;
     if (chunk.endOfFile) return untilEnd;
   }
   return false;
@@ -120,9 +89,24 @@ async function applyStatus(
     );
   }
   const finished = status.state !== "running";
-  const logStored = await storeLog(ctx, run, session, finished);
+  if (!finished) {
+    // A streamed log is stored as it is written; the poll reads only logs that are not streamed.
+    if (await ctx.logFollowers.follow(run, session)) return;
+    await storeLog(ctx, run, session, false);
+    return;
+  }
+  let logStored: boolean;
+  if (ctx.logFollowers.isFollowing(run.id)) {
+    // The rest of the log, the last line too, is read from where the stream got to.
+    await ctx.logFollowers.stop(run.id);
+    const current = await loadRun(ctx, run.id);
+    if (!current) return;
+    logStored = await storeLog(ctx, current, session, true);
+  } else {
+    logStored = await storeLog(ctx, run, session, true);
+  }
   // The run moves on only with its whole log stored; a longer one is read on at the next poll.
-  if (!finished || !logStored) return;
+  if (!logStored) return;
   // A job the scheduler calls failed is never a success, even if its exit code has not arrived yet.
   const exitCode =
     status.state === "completed" ? (status.exitCode ?? 0) : status.exitCode === 0 ? null : status.exitCode;

@@ -35,7 +35,7 @@ import {
   publicOrigin,
   sessionOnHandshake,
 } from "./live-auth";
-import { RunLogFeed, SendBudget } from "./log-feed";
+import { RunLogFeed, SendBudget, SharedLogReads } from "./log-feed";
 import { groupRoom, RoomBroadcasts, runRoom } from "./room-broadcasts";
 import { type RunNotice, startRunNoticeListener } from "./run-notices";
 
@@ -116,6 +116,8 @@ export function attachLiveFeed(
   io.use(authenticateSocket(db));
 
   const broadcasts = new RoomBroadcasts(io, db, log);
+  /** One read of a stored log page for all of this process's feeds at the same place in the same run. */
+  const reads = new SharedLogReads(db);
   const states = new Map<string, SocketState>();
   /** Log feeds by the run whose log they read: a log notice wakes exactly these. */
   const feedsByLogRun = new Map<string, Set<RunLogFeed>>();
@@ -139,6 +141,7 @@ export function attachLiveFeed(
 
   function onNotice(notice: RunNotice) {
     if (notice.type === "log") {
+      reads.forget(notice.runId);
       for (const feed of feedsByLogRun.get(notice.runId) ?? []) feed.wake();
       broadcasts.progressChanged(notice.runId);
     } else {
@@ -153,6 +156,7 @@ export function attachLiveFeed(
     onListening(lostAt) {
       if (!lostAt) return;
       // Notices may have been missed while the connection was down: every feed reads what is stored.
+      reads.forget();
       for (const set of feedsByLogRun.values()) for (const feed of set) feed.wake();
       broadcasts.catchUp(lostAt);
     },
@@ -219,7 +223,7 @@ export function attachLiveFeed(
       );
     // A run that reused another's results has no log of its own: it serves the original's (as HTTP does).
     const feed = new RunLogFeed({
-      db,
+      reads,
       log,
       socket,
       budget: state.budget,

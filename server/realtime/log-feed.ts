@@ -5,6 +5,14 @@
  * Invariants: at most one read of the stored log is in flight per feed; a wake-up during a read makes the
  * feed read again after it (from the last sequence number sent, so nothing is sent twice and nothing that
  * was stored meanwhile is missed). Chunks always come from the database, never from a notice's payload.
+ * A read that fails (the database busy or away) is tried again after a pause, so the last chunks of a run
+ * that ended reach the client without another notice.
+ *
+ * Shared reads: the feeds of one process that follow the same run usually stand at the same sequence
+ * number when a notice wakes them, so a page asked for while the same page is being read joins that read
+ * (SharedLogReads): one query and one copy of the bytes for all of a run's watchers instead of one each.
+ * A notice makes the run's reads in flight private to those already waiting, so a feed woken by it always
+ * reads anew and sees the chunk it announced.
  *
  * Flow control: the bytes a socket was sent but has not acknowledged (the client calls the ack callback of
  * `run:log`) count against its send budget. Past the budget a feed stops and emits `run:paused`; the client
@@ -26,6 +34,42 @@ import { readRunLogChunks } from "../services/run-log.service";
 const PAGE_CHUNKS = 32;
 /** After this long without an acknowledgement socket.io forgets the callback; the bytes stay counted. */
 const ACK_TIMEOUT_MS = 120_000;
+/** Pause before a failed read of the stored log is tried again. */
+export const READ_RETRY_MS = 1000;
+
+type LogPage = Awaited<ReturnType<typeof readRunLogChunks>>;
+
+/**
+ * Reads of stored log pages shared by the feeds of one process: a read of (run, after seq, page size)
+ * asked for while the same one is in flight joins it. `forget(runId)` (new chunks were stored) lets
+ * later readers start a fresh read, so nobody woken by a notice is served a page read before it.
+ */
+export class SharedLogReads {
+  private readonly inFlight = new Map<string, Map<string, Promise<LogPage>>>();
+
+  constructor(private readonly db: Database) {}
+
+  read(logRunId: string, afterSeq: number, limit: number): Promise<LogPage> {
+    const reads = this.inFlight.get(logRunId) ?? new Map<string, Promise<LogPage>>();
+    this.inFlight.set(logRunId, reads);
+    const key = `${afterSeq}:${limit}`;
+    const existing = reads.get(key);
+    if (existing) return existing;
+    const page = readRunLogChunks(this.db, logRunId, afterSeq, limit).finally(() => {
+      if (reads.get(key) !== page) return;
+      reads.delete(key);
+      if (reads.size === 0 && this.inFlight.get(logRunId) === reads) this.inFlight.delete(logRunId);
+    });
+    reads.set(key, page);
+    return page;
+  }
+
+  /** New chunks of the run may be stored (or notices were missed: every run when no id is given). */
+  forget(logRunId?: string): void {
+    if (logRunId === undefined) this.inFlight.clear();
+    else this.inFlight.delete(logRunId);
+  }
+}
 
 /** Bytes sent to one socket and not yet acknowledged, by the feed they belong to. */
 export class SendBudget {
@@ -66,7 +110,7 @@ export class SendBudget {
 }
 
 export type RunLogFeedOptions = {
-  db: Database;
+  reads: SharedLogReads;
   log: Logger;
   socket: Socket;
   budget: SendBudget;
@@ -87,6 +131,7 @@ export class RunLogFeed {
   private again = false;
   private paused = false;
   private stopped = false;
+  private retryTimer: NodeJS.Timeout | null = null;
 
   constructor(private readonly options: RunLogFeedOptions) {
     this.runId = options.runId;
@@ -115,8 +160,14 @@ export class RunLogFeed {
       .catch((error: unknown) => {
         this.options.log.error(
           { err: error, runId: this.runId },
-          "live feed: reading the stored log failed; the client catches up on its next wake-up or resume",
+          `live feed: reading the stored log failed; trying again in ${READ_RETRY_MS} ms`,
         );
+        // Nothing may wake the feed again (the run's last chunk was stored): it tries by itself.
+        if (!this.retryTimer && !this.stopped)
+          this.retryTimer = setTimeout(() => {
+            this.retryTimer = null;
+            this.wake();
+          }, READ_RETRY_MS);
       })
       .finally(() => {
         this.reading = false;
@@ -127,16 +178,19 @@ export class RunLogFeed {
 
   stop(): void {
     this.stopped = true;
+    if (this.retryTimer) clearTimeout(this.retryTimer);
+    this.retryTimer = null;
     this.options.budget.settle(this);
   }
 
   private async pump(): Promise<void> {
-    const { db, socket, budget } = this.options;
+    const { reads, socket, budget } = this.options;
     do {
       this.again = false;
       for (;;) {
         const generation = this.generation;
-        const page = await readRunLogChunks(db, this.logRunId, this.lastSentSeq, PAGE_CHUNKS);
+        // Shared with the process's other feeds of this run: the page is read-only here.
+        const page = await reads.read(this.logRunId, this.lastSentSeq, PAGE_CHUNKS);
         if (this.stopped || this.paused) return;
         // Restarted while reading: this page starts at the old cursor; read from the new one.
         if (generation !== this.generation) continue;

@@ -22,7 +22,14 @@ import { type ChildProcess, fork } from "node:child_process";
 import { fileURLToPath } from "node:url";
 import { cpuReport, quantile, startEngineStack, waitUntilFinished } from "../engine/stack";
 import { processCpuSeconds, stopChild } from "../support/processes";
-import type { CollectMessage, JoinedMessage, ReportsMessage, StartMessage } from "./feed-clients";
+import type {
+  CollectMessage,
+  ConnectedMessage,
+  ConnectMessage,
+  JoinedMessage,
+  JoinMessage,
+  ReportsMessage,
+} from "./feed-clients";
 import { checkHostLog, FEED_CODE, type FeedParameters, MemorySampler, stampMs } from "./feed-support";
 
 const args = process.argv.slice(2);
@@ -77,25 +84,37 @@ try {
     ...stack.cpuSeconds(),
     "client processes": children.reduce((sum, child) => sum + processCpuSeconds(child.pid!), 0),
   });
+  // Client c of run r goes to process (r × clientsPerRun + c) mod P: every process follows every run.
+  const perProcess = children.map((_, i) =>
+    Array.from({ length: runCount * clientsPerRun }, (_, k) => k).filter((k) => k % clientProcesses === i),
+  );
+  const connectStarted = Date.now();
+  const connected = children.map((child) => nextMessage<ConnectedMessage>(child, "connected", 600_000));
+  children.forEach((child, i) => {
+    child.send({
+      type: "connect",
+      baseUrl: stack.baseUrl,
+      token: stack.token,
+      count: perProcess[i]!.length,
+    } satisfies ConnectMessage);
+  });
+  const connections = await Promise.all(connected);
+  console.log(
+    `  ${connections.reduce((sum, c) => sum + c.connections, 0)} connections open in ${((Date.now() - connectStarted) / 1000).toFixed(1)} s ` +
+      `(${connections.reduce((sum, c) => sum + c.retries, 0)} handshakes tried again after a 10 s timeout)`,
+  );
+
   const cpuBefore = cpu();
   const submittedAt = Date.now();
   const runIds = await Promise.all(
     Array.from({ length: runCount }, (_, i) => stack.submit(`fanout-${i}`, feed)),
   );
-  // Client c of run r goes to process (r × clientsPerRun + c) mod P: every process follows every run.
-  const assignments: { runId: string }[][] = children.map(() => []);
-  runIds.forEach((runId, r) => {
-    for (let c = 0; c < clientsPerRun; c += 1)
-      assignments[(r * clientsPerRun + c) % clientProcesses]!.push({ runId });
-  });
-  const joined = children.map((child) => nextMessage<JoinedMessage>(child, "joined", 120_000));
+  const joined = children.map((child) => nextMessage<JoinedMessage>(child, "joined", 600_000));
   children.forEach((child, i) => {
     child.send({
-      type: "start",
-      baseUrl: stack.baseUrl,
-      token: stack.token,
-      clients: assignments[i]!,
-    } satisfies StartMessage);
+      type: "join",
+      runIds: perProcess[i]!.map((k) => runIds[Math.floor(k / clientsPerRun)]!),
+    } satisfies JoinMessage);
   });
   await Promise.all(joined);
   console.log(
@@ -144,6 +163,9 @@ try {
   const lastEnd = Math.max(...[...hostLogs.values()].map((log) => log.endedAt));
   const pauses = reports.reduce((sum, report) => sum + report.pauses, 0);
   const disconnects = answers.reduce((sum, answer) => sum + answer.disconnects, 0);
+  const clientErrors = answers.flatMap((answer) => answer.errors);
+  const refusals = reports.flatMap((report) => report.joinRefusals);
+  const refusedClients = reports.filter((report) => report.joinRefusals.length > 0).length;
   console.log(
     `fanout: ${reports.length} clients, ${reports.length - incomplete.length} got every line of their run once and in order (sha256 equal to the host's log)` +
       (incomplete.length
@@ -157,7 +179,8 @@ try {
             })),
           )}`
         : "") +
-      `; paused ${pauses} time(s), ${disconnects} unexpected disconnect(s)${disconnects ? ` ${JSON.stringify(answers.flatMap((a) => a.errors).slice(0, 5))}` : ""}`,
+      `; paused ${pauses} time(s), ${disconnects} unexpected disconnect(s)${clientErrors.length ? `; client errors ${JSON.stringify(clientErrors.slice(0, 5))}` : ""}` +
+      `; ${refusedClients} client(s) had joins refused (${refusals.length} refusals${refusals.length ? `, e.g. ${JSON.stringify(refusals[0])}` : ""}; each asked again after 1 s)`,
   );
   console.log(
     `delivered ${deliveredLines} lines to the clients = ${(deliveredLines / ((lastDelivery - firstStart) / 1000)).toFixed(0)} lines/s ` +

@@ -105,6 +105,9 @@ export type DeliveryReport = {
   pauses: number;
   /** Joins the server refused before one was accepted (code: message). */
   joinRefusals: string[];
+  /** When the accepted join was asked for and when the server acknowledged it (ms since the epoch). */
+  joinAskedAtMs: number;
+  joinedAtMs: number;
   /** [ms since the epoch, numbered lines so far] per chunk, when asked for. */
   timeline?: [number, number][];
   firstAtMs: number;
@@ -139,6 +142,8 @@ export class DeliveryCheck {
       lineFaults: [],
       pauses: 0,
       joinRefusals: [],
+      joinAskedAtMs: 0,
+      joinedAtMs: 0,
       ...(keepTimeline ? { timeline: [] } : {}),
       firstAtMs: 0,
       lastAtMs: 0,
@@ -223,10 +228,14 @@ export async function followRun(socket: Socket, runId: string, check: DeliveryCh
     socket.emit(LIVE_EVENTS.resumeRun, { runId, afterSeq: check.lastSeq }, () => {});
   });
   for (let attempt = 1; ; attempt += 1) {
+    check.report.joinAskedAtMs = Date.now();
     const ack = (await socket
       .timeout(30_000)
       .emitWithAck(LIVE_EVENTS.joinRun, { runId, afterSeq: check.lastSeq })) as LiveAck;
-    if (ack.ok) return;
+    if (ack.ok) {
+      check.report.joinedAtMs = Date.now();
+      return;
+    }
     // The browser shows a refused join and stops; the benchmark counts it and asks again, to go on measuring.
     check.report.joinRefusals.push(`${ack.error.code}: ${ack.error.message}`);
     if (attempt >= JOIN_ATTEMPTS || !["internal_error", "too_many_requests"].includes(ack.error.code))

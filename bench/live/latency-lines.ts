@@ -48,11 +48,18 @@ export class LineClock {
 
 export type LatencySummary = { count: number; p50: number; p95: number; max: number };
 
-/** p50/p95/max in ms of write → arrival, or of write → stored. */
-export function summarize(samples: LineSample[], until: "arrival" | "stored" = "arrival"): LatencySummary {
-  const sorted = samples
-    .map((s) => (until === "arrival" ? s.arrivedAtMs : s.storedAtMs) - s.writtenAtMs)
-    .sort((a, b) => a - b);
+const SPANS = {
+  "written → arrived": (s: LineSample) => s.arrivedAtMs - s.writtenAtMs,
+  "written → stored": (s: LineSample) => s.storedAtMs - s.writtenAtMs,
+  "stored → arrived": (s: LineSample) => s.arrivedAtMs - s.storedAtMs,
+};
+
+/** p50/p95/max in ms of one span of the lines' way. */
+export function summarize(
+  samples: LineSample[],
+  span: keyof typeof SPANS = "written → arrived",
+): LatencySummary {
+  const sorted = samples.map(SPANS[span]).sort((a, b) => a - b);
   return {
     count: sorted.length,
     p50: quantile(sorted, 0.5),

@@ -13,6 +13,10 @@
  * received their first line are left out (their count is printed). The OpenSSH side is the `ssh` client
  * binary running `tail -F` (GNU tail, inotify) against the same sshd.
  *
+ * The live feed's figure is also split at the chunk's `at` (PostgreSQL's time of the transaction that stored
+ * it, whole milliseconds): the worker's part (written → stored) and the server's (stored → received, which
+ * includes the commit, the NOTIFY, the feed's read and socket.io).
+ *
  * Goal (Sigmaflow's): live feed p95 ≤ 300 ms and within 2× the plain SSH tail's p95.
  *
  *   bash deploy/engines/start-engines.sh /tmp/sf-engines /tmp/sf-engines/env.sh
@@ -230,7 +234,8 @@ try {
   const fmt = (ms: number) => `${ms.toFixed(ms < 10 ? 1 : 0)} ms`;
   const line = (label: string, s: ReturnType<typeof summarize>) =>
     `  ${label.padEnd(34)} n=${s.count}  p50 ${fmt(s.p50)}  p95 ${fmt(s.p95)}  max ${fmt(s.max)}`;
-  const sfStored = summarize(measured(sigmaflow), "stored");
+  const sfStored = summarize(measured(sigmaflow), "written → stored");
+  const sfDelivered = summarize(measured(sigmaflow), "stored → arrived");
   console.log(
     `worker settings: ${workerOverrides.length ? `from the environment: ${workerOverrides.map((n) => `${n}=${env[n]}`).join(" ")}` : "production defaults (none overridden)"}; fsync ${durable ? "on" : "off"}; run ended ${runState}`,
   );
@@ -239,7 +244,8 @@ try {
   );
   console.log("latency, line written on the host → line received:");
   console.log(line("Sigmaflow live feed (socket.io)", sf));
-  console.log(line("  of which written → chunk stored", sfStored));
+  console.log(line("  written → chunk stored", sfStored));
+  console.log(line("  chunk stored → received", sfDelivered));
   console.log(line("OpenSSH `ssh host tail -F`", ssh));
   const ratio95 = sf.p95 / ssh.p95;
   console.log(

@@ -27,6 +27,13 @@
  *   2026-12-05, main at 639dd80 (running logs read by the 2 s poll):
  *     Sigmaflow live feed 1167 / 2102 / 2291 ms (written → chunk stored 1106 / 2038 / 2226 ms)
  *     OpenSSH ssh tail -F    0.9 /   17 /  173 ms; ratio p95 122× (goals: ≤ 300 ms missed, ≤ 2× missed)
+ *   2026-12-05, main at 01be7d1 (after 4f41943, running logs followed over a streaming SSH exec):
+ *     Sigmaflow live feed   17 /   55 /  199 ms (written → stored 3.1 / 20 / 123 ms, stored → received
+ *                                                  12 / 43 / 194 ms)
+ *     OpenSSH ssh tail -F  1.0 /   10 /  140 ms; ratio p95 5.3× (goals: ≤ 300 ms met, ≤ 2× missed)
+ *     two more runs at 21e56aa: live feed 13 / 66 / 148 and 20 / 51 / 238 ms, OpenSSH p95 11 ms both
+ *   same checkout with WORKER_LOG_STREAMING=0 (the poll only): live feed 1029 / 1980 / 2402 ms,
+ *     OpenSSH 0.6 / 3.4 / 16 ms
  */
 import { type ChildProcess, spawn } from "node:child_process";
 import { existsSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from "node:fs";

@@ -6,14 +6,28 @@
  * numbered line once and in order, and the sha256 of the delivered bytes equal to the log file on the
  * host. Printed: lines/s delivered while the job wrote and overall, the largest backlog while it wrote,
  * the time from the job's last line to its delivery, CPU seconds of each process and peak memory (VmHWM)
- * of the server, the worker and the development host. The whole stack runs with production settings
- * (bench/engine/stack.ts: poll interval 2 s, fsync on); the host's limit of runs at once is 50.
+ * of the server, the worker, the development host and this client (the job's own CPU is not counted: it
+ * runs detached from the host process). The whole stack runs with production settings
+ * (bench/engine/stack.ts: poll interval 2 s, fsync on); the host's limit of runs at once is 50, the
+ * group's allocation 1 000 000 core-hours. WORKER_LOG_STREAMING=0 in the environment reaches the worker.
  *
  *   node --import tsx bench/live/flood.bench.ts [--lines-per-second=20000] [--seconds=30] [--line-bytes=48]
  *     [--fsync=off]
  *
- * Figures on this 2-core machine (fsync on):
- *   (see the end of this comment, filled in from the runs)
+ * Figures on this 2-core machine, shared with other test suites at the time (load 8–14), fsync on,
+ * 20 000 lines/s × 30 s × 48 B:
+ *
+ * Before streaming (commit df687b7: the worker read running logs at the 2 s poll, 256 KiB per poll):
+ *   all 600 000 lines once and in order, sha256 equal, 111 chunks, no pause; while the job wrote only
+ *   2 489 lines/s arrived (256 KiB per 2 s ≈ 2 730 lines/s), the backlog grew to 519 865 lines (26 s of
+ *   output); after the job ended the poller read the rest (16 MiB per poll) and the last line arrived
+ *   10.1 s after the job wrote it; 14 977 lines/s overall. CPU s: PostgreSQL 4.1, server 1.6, worker
+ *   2.8, host 1.4, client 2.1. Peak RSS (VmHWM): server 186 MiB, worker 198, host 109, client 212.
+ * With streaming (commit 4f41943, and 9c076a0 in the server):
+ *   all 600 000 lines once and in order, sha256 equal, 460 chunks, no pause; 19 901 lines/s arrived
+ *   while the job wrote, largest backlog 25 902 lines (1.3 s of output), the last line arrived 0.20 s
+ *   after the job wrote it. CPU s: PostgreSQL 3.9, server 2.3, worker 3.3, host 2.6 (+1.0 its
+ *   commands), client 2.1. Peak RSS: server 204 MiB, worker 180, host 127, client 230.
  */
 import { connectLive } from "../../tests/integration/support/live-client";
 import { cpuReport, startEngineStack, waitUntilFinished } from "../engine/stack";
@@ -39,7 +53,7 @@ const durable = !args.includes("--fsync=off");
 const expectedLines = Math.trunc(feed.linesPerSecond * feed.seconds);
 
 console.log(
-  `settings: stack defaults (worker poll 2 s, 256 KiB per poll while a job runs, fsync ${durable ? "on" : "off"}), host limit 50 runs at once, allocation 1 000 000 core-hours; ` +
+  `settings: server and worker defaults (poll 2 s${process.env.WORKER_LOG_STREAMING === "0" ? "; WORKER_LOG_STREAMING=0: running logs read only at the poll, 256 KiB each" : ""}), fsync ${durable ? "on" : "off"}, host limit 50 runs at once, allocation 1 000 000 core-hours; ` +
     `job ${feed.linesPerSecond} lines/s × ${feed.seconds} s × ${feed.lineBytes} B = ${((expectedLines * feed.lineBytes) / 1e6).toFixed(1)} MB`,
 );
 const stack = await startEngineStack({ durable, code: FEED_CODE, maxConcurrentRuns: 50 });

@@ -209,12 +209,12 @@ export function attachLiveFeed(
 
   /** run:join and run:resume: the client holds the run's log up to `afterSeq`. */
   async function joinRun(socket: Socket, payload: unknown, state: SocketState) {
-    const { runId, afterSeq } = parse(liveJoinRunSchema, payload);
+    const { runId, afterSeq, log: withLog } = parse(liveJoinRunSchema, payload);
     const principal = await currentPrincipal(db, socket);
     const run = await visibleRun(db, principal, runId, "collaborator");
     if (socket.disconnected) return undefined;
     const existing = state.feeds.get(run.id);
-    if (existing) return () => existing.restart(afterSeq);
+    if (existing) return () => existing.restart(afterSeq, withLog);
     if (state.feeds.size >= MAX_RUNS_PER_SOCKET)
       throw new AppError(
         429,
@@ -230,6 +230,7 @@ export function attachLiveFeed(
       runId: run.id,
       logRunId: run.reusedFrom ?? run.id,
       afterSeq,
+      withLog,
     });
     state.feeds.set(run.id, feed);
     addFeed(feed);

@@ -119,6 +119,8 @@ export type RunLogFeedOptions = {
   /** The run whose log is read: the run itself, or the one whose results it reused. */
   logRunId: string;
   afterSeq: number;
+  /** Send the log at all (false until a join asks for it). */
+  withLog: boolean;
 };
 
 export class RunLogFeed {
@@ -131,17 +133,23 @@ export class RunLogFeed {
   private again = false;
   private paused = false;
   private stopped = false;
+  private withLog: boolean;
   private retryTimer: NodeJS.Timeout | null = null;
 
   constructor(private readonly options: RunLogFeedOptions) {
     this.runId = options.runId;
     this.logRunId = options.logRunId;
     this.lastSentSeq = options.afterSeq;
+    this.withLog = options.withLog;
   }
 
-  /** Go on from `afterSeq` (a repeated join or a resume): the client holds everything up to it. */
-  restart(afterSeq: number): void {
+  /**
+   * Go on from `afterSeq` (a repeated join or a resume): the client holds everything up to it. `withLog`
+   * false stops sending the log until a later join asks for it.
+   */
+  restart(afterSeq: number, withLog = true): void {
     this.options.budget.settle(this);
+    this.withLog = withLog;
     this.lastSentSeq = afterSeq;
     this.generation += 1;
     this.paused = false;
@@ -150,7 +158,7 @@ export class RunLogFeed {
 
   /** New chunks may be stored: read after the last one sent (now, or after the read in flight). */
   wake(): void {
-    if (this.stopped || this.paused) return;
+    if (this.stopped || this.paused || !this.withLog) return;
     if (this.reading) {
       this.again = true;
       return;

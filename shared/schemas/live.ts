@@ -20,6 +20,8 @@ export const liveJoinRunSchema = z.strictObject({
   runId: uuidSchema,
   /** The last log sequence number the client holds; 0 for none. */
   afterSeq: z.int().min(0).default(0),
+  /** Whether to send the run's log; false: state and progress only (a page that shows no log yet). */
+  log: z.boolean().default(true),
 });
 export type LiveJoinRun = z.input<typeof liveJoinRunSchema>;
 

@@ -120,6 +120,7 @@ describe("the live run page", () => {
       expect(socket.sent("run:join").map((sent) => sent.payload)).toContainEqual({
         runId: RUN_IDS.running,
         afterSeq: 0,
+        log: true,
       }),
     );
     ackJoins(socket);
@@ -138,7 +139,11 @@ describe("the live run page", () => {
     const joinsBefore = socket.sent("run:join").length;
     act(() => socket.serverConnect());
     await waitFor(() => expect(socket.sent("run:join").length).toBeGreaterThan(joinsBefore));
-    expect(socket.sent("run:join").at(-1)?.payload).toEqual({ runId: RUN_IDS.running, afterSeq: 2 });
+    expect(socket.sent("run:join").at(-1)?.payload).toEqual({
+      runId: RUN_IDS.running,
+      afterSeq: 2,
+      log: true,
+    });
     expect(await screen.findByRole("status", { name: "Updates: live" })).toBeInTheDocument();
 
     // The server's replay overlaps what the page holds (seq 2): that chunk is dropped, seq 3 is shown.
@@ -319,7 +324,7 @@ describe("the live run page", () => {
     expect(acks).toEqual([1, 2]);
     expect(terminal.text.length).toBe(900_000);
     expect(socket.sent("run:resume").map((sent) => sent.payload)).toEqual([
-      { runId: RUN_IDS.running, afterSeq: 3 },
+      { runId: RUN_IDS.running, afterSeq: 3, log: true },
     ]);
     act(() => terminal.flush());
     expect(acks).toEqual([1, 2, 3]);

@@ -188,6 +188,21 @@ describe("the live feed of a running run", () => {
     }
   }, 30_000);
 
+  it("sends a client that joined without the log its state only, and the log once it asks for it", async () => {
+    expect(runId, "the first test's run").not.toBe("");
+    const last = (await storedSeqs(runId)).at(-1)!;
+    const socket = await connectLive(scenario.sf.app.baseUrl, { token });
+    const recorder = new RunRecorder(runId).attach(socket);
+    expect(await emitWithAck(socket, LIVE_EVENTS.joinRun, { runId, log: false })).toEqual({ ok: true });
+    // The stored log would be on its way within a few hundred milliseconds (the joins above show it).
+    await new Promise((resolve) => setTimeout(resolve, 1500));
+    expect(recorder.chunks).toEqual([]);
+    expect(await emitWithAck(socket, LIVE_EVENTS.joinRun, { runId, afterSeq: 0 })).toEqual({ ok: true });
+    await recorder.untilSeq(last);
+    expect(recorder.seqs()).toEqual(oneTo(last));
+    socket.disconnect();
+  });
+
   it("serves a run that reused another's results the original's log", async () => {
     expect(runId, "the first test's run").not.toBe("");
     const { sf } = scenario;

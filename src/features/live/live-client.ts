@@ -157,6 +157,8 @@ export class LiveClient {
       stop: () => {
         if (entry.follower !== follower) return;
         entry.follower = null;
+        // Still watched for its state: the server stops sending the log.
+        if (entry.watchers.size > 0 && this.socket.connected) this.join(runId, LIVE_EVENTS.joinRun);
         this.leaveIfUnused(runId, entry);
       },
     };
@@ -210,7 +212,8 @@ export class LiveClient {
   private join(runId: string, event: typeof LIVE_EVENTS.joinRun | typeof LIVE_EVENTS.resumeRun) {
     const entry = this.runs.get(runId);
     if (!entry) return;
-    const payload: LiveJoinRun = { runId, afterSeq: entry.lastSeq };
+    // A page that shows no log (state and timings only) does not have the whole log replayed to it.
+    const payload: LiveJoinRun = { runId, afterSeq: entry.lastSeq, log: entry.follower !== null };
     this.socket.emit(event, payload, (raw: unknown) => {
       const ack = liveAckSchema.safeParse(raw);
       if (ack.success && !ack.data.ok) entry.follower?.onRefused?.(ack.data.error.message);

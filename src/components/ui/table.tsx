@@ -21,7 +21,7 @@ export function TBody({ children }: { children: ReactNode }) {
 }
 
 export function TR({ className, ...props }: HTMLAttributes<HTMLTableRowElement>) {
-  return <tr className={cn("transition-colors hover:bg-ink-50/40", className)} {...props} />;
+  return <tr className={cn("transition-[background-color] hover:bg-ink-50/40", className)} {...props} />;
 }
 
 export function TH({ className, ...props }: ThHTMLAttributes<HTMLTableCellElement>) {

@@ -49,7 +49,7 @@ const SERVER_PEAK_GOAL_MIB = 300;
 const CONNECT_NOTE = "each client process asks 10 joins at once, as it opened its connections";
 
 console.log(
-  `settings: stack defaults (worker poll 2 s, 256 KiB per poll while a job runs, fsync ${durable ? "on" : "off"}), host limit ${Math.max(50, runCount)} runs at once, allocation 1 000 000 core-hours; ` +
+  `settings: server and worker defaults (poll 2 s${process.env.WORKER_LOG_STREAMING === "0" ? "; WORKER_LOG_STREAMING=0: running logs read only at the poll, 256 KiB each" : ""}), fsync ${durable ? "on" : "off"}, host limit ${Math.max(50, runCount)} runs at once, allocation 1 000 000 core-hours; ` +
     `${runCount} runs × ${feed.linesPerSecond} lines/s × ${feed.seconds} s × ${feed.lineBytes} B; ` +
     `${clientsPerRun} clients per run = ${runCount * clientsPerRun} connections in ${clientProcesses} client processes`,
 );
@@ -160,6 +160,13 @@ try {
   const lagsS = joinedEarly
     .map((report) => (report.lastAtMs - hostLogs.get(report.runId)!.endedAt) / 1000)
     .sort((a, b) => a - b);
+  // Of that time: the worker's part (the job's last line → its chunk stored) and the server's (stored → delivered).
+  const storedS = joinedEarly
+    .map((report) => (report.lastStoredAtMs - hostLogs.get(report.runId)!.endedAt) / 1000)
+    .sort((a, b) => a - b);
+  const serverS = joinedEarly
+    .map((report) => (report.lastAtMs - report.lastStoredAtMs) / 1000)
+    .sort((a, b) => a - b);
   const joinS = reports
     .map((report) => (report.joinedAtMs - report.joinAskedAtMs) / 1000)
     .sort((a, b) => a - b);
@@ -193,6 +200,10 @@ try {
       `(first job start → last delivery ${((lastDelivery - firstStart) / 1000).toFixed(1)} s; the jobs wrote ${runCount * feed.linesPerSecond} lines/s × ${clientsPerRun} clients while all ran; ` +
       `last job end → last delivery ${((lastDelivery - lastEnd) / 1000).toFixed(2)} s); ` +
       `job's last line → delivered, per client that joined before its job ended (${joinedEarly.length}): p50 ${quantile(lagsS, 0.5).toFixed(2)} s, p95 ${quantile(lagsS, 0.95).toFixed(2)} s, max ${(lagsS.at(-1) ?? Number.NaN).toFixed(2)} s`,
+  );
+  console.log(
+    `  of which last line → stored (worker) p50 ${quantile(storedS, 0.5).toFixed(2)} s, p95 ${quantile(storedS, 0.95).toFixed(2)} s; ` +
+      `stored → delivered (server, clients) p50 ${quantile(serverS, 0.5).toFixed(2)} s, p95 ${quantile(serverS, 0.95).toFixed(2)} s, max ${(serverS.at(-1) ?? Number.NaN).toFixed(2)} s`,
   );
   console.log(
     `joins: asked → acknowledged p50 ${quantile(joinS, 0.5).toFixed(2)} s, p95 ${quantile(joinS, 0.95).toFixed(2)} s, max ${joinS.at(-1)!.toFixed(2)} s ` +

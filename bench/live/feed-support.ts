@@ -112,6 +112,8 @@ export type DeliveryReport = {
   timeline?: [number, number][];
   firstAtMs: number;
   lastAtMs: number;
+  /** When the last chunk was stored (its `at`, the database's clock, which is this machine's). */
+  lastStoredAtMs: number;
 };
 
 /**
@@ -147,6 +149,7 @@ export class DeliveryCheck {
       ...(keepTimeline ? { timeline: [] } : {}),
       firstAtMs: 0,
       lastAtMs: 0,
+      lastStoredAtMs: 0,
     };
   }
 
@@ -155,12 +158,13 @@ export class DeliveryCheck {
     return this.nextSeq - 1;
   }
 
-  receive(chunk: { seq: number; offsetBytes: number; data: Uint8Array | ArrayBuffer }): void {
+  receive(chunk: { seq: number; offsetBytes: number; data: Uint8Array | ArrayBuffer; at: string }): void {
     const now = Date.now();
     const data = Buffer.from(chunk.data as Uint8Array);
     const report = this.report;
     if (report.chunks === 0) report.firstAtMs = now;
     report.lastAtMs = now;
+    report.lastStoredAtMs = Date.parse(chunk.at);
     if (chunk.seq !== this.nextSeq || chunk.offsetBytes !== this.nextOffset) {
       if (report.seqFaults.length < 10)
         report.seqFaults.push(

@@ -108,7 +108,7 @@ try {
     `delivered while the job wrote: ${byEnd} lines = ${(byEnd / ((endedAt - startedAt) / 1000)).toFixed(0)} lines/s (the job wrote ${feed.linesPerSecond}/s); ` +
       `overall ${(report.numberedLines / ((report.lastAtMs - startedAt) / 1000)).toFixed(0)} lines/s from the job's start to the last delivery; ` +
       `largest backlog while it wrote ${backlogLines.toFixed(0)} lines (${(backlogLines / feed.linesPerSecond).toFixed(1)} s of output); ` +
-      `job's last line → delivered ${((report.lastAtMs - endedAt) / 1000).toFixed(2)} s`,
+      `job's last line → delivered ${((report.lastAtMs - endedAt) / 1000).toFixed(2)} s (→ stored ${((report.lastStoredAtMs - endedAt) / 1000).toFixed(2)} s, stored → delivered ${((report.lastAtMs - report.lastStoredAtMs) / 1000).toFixed(2)} s)`,
   );
   console.log(`CPU: ${cpuReport(cpuBefore, cpuAfter)}`);
   console.log(`memory: ${memory.report()}`);

@@ -32,6 +32,7 @@ import { invitationRoutes } from "./routes/invitations.routes";
 import { memberRoutes } from "./routes/members.routes";
 import { recipeRoutes } from "./routes/recipes.routes";
 import { resultRoutes } from "./routes/results.routes";
+import { runPreviewRoutes } from "./routes/run-preview.routes";
 import { runRoutes } from "./routes/runs.routes";
 import { TARGET_WRITE_PATHS, targetRoutes } from "./routes/targets.routes";
 import { tokenRoutes } from "./routes/tokens.routes";
@@ -134,6 +135,7 @@ export function createApp(deps: AppDeps) {
   api.use(recipeRoutes(ctx));
   api.use(targetRoutes(ctx));
   api.use(allocationRoutes(ctx));
+  api.use(runPreviewRoutes(ctx));
   api.use(runRoutes(ctx));
   api.use(resultRoutes(ctx));
   api.use(notFoundRoute);

@@ -60,7 +60,7 @@ async function loadHost(db: Database, groupId: string, hostId: string) {
 /** The latest finished run with these inputs that really ran (a reusing run holds no results of its own). */
 async function findReusable(db: Database, groupId: string, fingerprint: string) {
   const [row] = await db
-    .select({ id: runs.id, name: runs.name, finishedAt: runs.finishedAt })
+    .select({ id: runs.id, name: runs.name, finishedAt: runs.finishedAt, resultsState: runs.resultsState })
     .from(runs)
     .where(
       and(
@@ -75,16 +75,21 @@ async function findReusable(db: Database, groupId: string, fingerprint: string) 
   return row ?? null;
 }
 
-export async function createRun(
-  deps: RunDeps,
+/**
+ * Everything a submission checks and renders before it writes: the caller's role, the host and the
+ * account it would use, the stages with their parameters validated against each code's schema, the
+ * target's latest version, the resolved resources, the plan (input files and batch script) and the
+ * fingerprint with the latest finished run that has it. Writes nothing, so the preview of a run
+ * (run-preview.service.ts) answers exactly what submitting would.
+ */
+export async function prepareRun(
+  db: Database,
   principal: Principal,
   groupId: string,
-  request: { spec: RunSpecRequest; onDuplicate: OnDuplicate },
-  extra: { resubmittedFrom?: string; ip?: string | null } = {},
-): Promise<RunSummary> {
-  const { db } = deps;
+  request: RunSpecRequest,
+) {
   await requireGroupRole(db, principal, groupId, "member");
-  const host = await loadHost(db, groupId, request.spec.hostId);
+  const host = await loadHost(db, groupId, request.hostId);
   const account = await chooseAccount(db, host.id, principal.userId);
   if (!account) {
     throw new AppError(
@@ -93,14 +98,14 @@ export async function createRun(
       `You have no account on ${host.name} and the group has none: add one under the host's accounts.`,
     );
   }
-  const inputs = await loadStages(db, groupId, request.spec);
+  const inputs = await loadStages(db, groupId, request);
   // The latest version of the target now; the run keeps this version whatever is saved later.
-  const target = request.spec.targetId ? await loadRunTarget(db, groupId, request.spec.targetId) : null;
+  const target = request.targetId ? await loadRunTarget(db, groupId, request.targetId) : null;
   // Stored with the resources it got, so a resubmission starts from exactly what this run asked for.
   const spec: RunSpec = {
-    ...request.spec,
+    ...request,
     resources: resolveResources(
-      request.spec.resources,
+      request.resources,
       inputs.map((input) => input.definition),
     ),
   };
@@ -113,6 +118,23 @@ export async function createRun(
   }
   const fingerprint = runFingerprint(inputs, plan, target ? targetFingerprintPart(target) : null);
   const reusable = await findReusable(db, groupId, fingerprint);
+  return { host, account, inputs, target, spec, runId, plan, fingerprint, reusable };
+}
+
+export async function createRun(
+  deps: RunDeps,
+  principal: Principal,
+  groupId: string,
+  request: { spec: RunSpecRequest; onDuplicate: OnDuplicate },
+  extra: { resubmittedFrom?: string; ip?: string | null } = {},
+): Promise<RunSummary> {
+  const { db } = deps;
+  const { host, account, target, spec, runId, plan, fingerprint, reusable } = await prepareRun(
+    db,
+    principal,
+    groupId,
+    request.spec,
+  );
   if (reusable && request.onDuplicate === "ask") {
     throw conflict(
       `A finished run with identical inputs exists: "${reusable.name}" (run ${reusable.id}). ` +

@@ -15,6 +15,7 @@ export * from "./names";
 export * from "./recipes";
 export * from "./results";
 export * from "./run-folder";
+export * from "./run-preview";
 export * from "./runs";
 export * from "./science-ionization";
 export * from "./science-rates";

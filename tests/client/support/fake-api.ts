@@ -153,9 +153,11 @@ export function installFakeApi(initial: Partial<FakeApiState> = {}) {
       return new HttpResponse(null, { status: 204 });
     }),
     http.get("/api/admin/users", () => HttpResponse.json({ users: state.users })),
-    http.get("/api/groups/:groupId/runs", ({ params }) =>
-      HttpResponse.json({ runs: state.runs[String(params.groupId)] ?? [] }),
-    ),
+    // One page holding every run (tests/client/runs-table.test.tsx checks the list's query itself).
+    http.get("/api/groups/:groupId/runs", ({ params }) => {
+      const runs = state.runs[String(params.groupId)] ?? [];
+      return HttpResponse.json({ runs, total: runs.length, page: 1, pageSize: 50 });
+    }),
     http.get("/api/runs/:runId", ({ params }) => {
       const run = findRun(String(params.runId));
       return run ? HttpResponse.json(run) : apiError(404, "not_found", "No such run.");

@@ -1,14 +1,13 @@
 /**
- * Reading runs: lists, the detail page (events, collected files, timings in stage order), one
+ * Reading runs: summaries (the list: run-list.service), the detail page (events, collected files, timings in stage order), one
  * collected file (the log: run-log.service). Every read checks the caller's role.
  */
-import { and, desc, eq } from "drizzle-orm";
+import { and, eq } from "drizzle-orm";
 import { alias } from "drizzle-orm/pg-core";
 import { coreHoursFromSeconds } from "../../shared/core-hours";
 import {
   type RunDetail,
   type RunProgress,
-  type RunState,
   type RunSummary,
   runSpecSchema,
   runStageProgressSchema,
@@ -30,7 +29,7 @@ const summaryColumns = {
 };
 
 /** Runs with the names of who submitted them and who asked to cancel them, and their target's. */
-function selectSummaries(db: Database) {
+export function selectSummaries(db: Database) {
   return db
     .select(summaryColumns)
     .from(runs)
@@ -50,7 +49,7 @@ function progressOf(run: typeof runs.$inferSelect): RunProgress | null {
   return { ...stored.data, stageIndex: index + 1, stageCount: stages.length };
 }
 
-function toSummary(row: {
+export function toSummary(row: {
   run: typeof runs.$inferSelect;
   submittedByName: string | null;
   cancelRequestedByName: string | null;
@@ -110,20 +109,6 @@ export async function visibleRun(
     throw error;
   });
   return run;
-}
-
-export async function listRuns(
-  db: Database,
-  principal: Principal,
-  groupId: string,
-  filters: { state?: RunState; limit: number },
-): Promise<RunSummary[]> {
-  await requireGroupRole(db, principal, groupId, "collaborator");
-  const where = filters.state
-    ? and(eq(runs.groupId, groupId), eq(runs.state, filters.state))
-    : eq(runs.groupId, groupId);
-  const rows = await selectSummaries(db).where(where).orderBy(desc(runs.createdAt)).limit(filters.limit);
-  return rows.map(toSummary);
 }
 
 export async function getRunDetail(db: Database, principal: Principal, runId: string): Promise<RunDetail> {

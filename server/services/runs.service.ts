@@ -6,5 +6,6 @@
 
 export { cancelRun, resubmitRun } from "./run-cancel.service";
 export { createRun, RUN_DIR_PREFIX, type RunDeps, remoteRunDir } from "./run-create.service";
+export { listRuns } from "./run-list.service";
 export { openRunLogDownload, readRunLog } from "./run-log.service";
-export { getRunDetail, listRuns, readArtifact } from "./run-reads.service";
+export { getRunDetail, readArtifact } from "./run-reads.service";

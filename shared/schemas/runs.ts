@@ -188,7 +188,96 @@ export const runSummarySchema = z.object({
   finishedAt: isoDateTimeSchema.nullable(),
 });
 export type RunSummary = z.infer<typeof runSummarySchema>;
-export const runListSchema = z.object({ runs: z.array(runSummarySchema) });
+/**
+ * A page of a group's runs. `total` counts every run the filters match (all pages); `page` and
+ * `pageSize` are the ones the server applied.
+ */
+export const runListSchema = z.object({
+  runs: z.array(runSummarySchema),
+  total: z.number().int().min(0),
+  page: z.number().int().min(1),
+  pageSize: z.number().int().min(1),
+});
+export type RunList = z.infer<typeof runListSchema>;
+
+/** Columns `GET /api/groups/:groupId/runs` sorts by; ties are broken by the run's id. */
+export const runListSortSchema = z.enum(
+  ["createdAt", "updatedAt", "state", "name", "target", "recipe", "host", "submittedBy"],
+  { error: "sort must be one of createdAt, updatedAt, state, name, target, recipe, host, submittedBy" },
+);
+export type RunListSort = z.infer<typeof runListSortSchema>;
+export const RUN_LIST_PAGE_SIZE_DEFAULT = 50;
+export const RUN_LIST_PAGE_SIZE_MAX = 200;
+/** The deepest page one may ask for: bounds the rows a request makes PostgreSQL skip. */
+export const RUN_LIST_PAGE_MAX = 10_000;
+
+/** One value or several, repeated (`?state=a&state=b`) or comma-separated (`?state=a,b`). */
+const listOf = <T extends z.ZodType>(item: T, name: string) =>
+  z.preprocess(
+    (value) => {
+      const values = Array.isArray(value) ? value : [value];
+      return values.flatMap((entry) => (typeof entry === "string" ? entry.split(",") : [entry]));
+    },
+    z.array(item).max(20, { error: `${name} takes at most 20 values` }),
+  );
+
+const idFilter = (name: string) => z.uuid({ error: `${name} must be a UUID` }).optional();
+/** A calendar date (`2026-12-01`, the whole day in UTC) or an instant with its offset. */
+const dateBound = (name: string) =>
+  z.union([z.iso.date(), z.iso.datetime({ offset: true })], {
+    error: `${name} must be a date (YYYY-MM-DD) or a date-time with offset`,
+  });
+const wholeNumber = (name: string, min: number, max: number) =>
+  z.coerce
+    .number({ error: `${name} must be a whole number` })
+    .int({ error: `${name} must be a whole number` })
+    .min(min, { error: `${name} must be at least ${min}` })
+    .max(max, { error: `${name} must be at most ${max}` });
+
+/**
+ * The query of `GET /api/groups/:groupId/runs`: filters (several states; one target, recipe, host,
+ * submitter; created between two dates, both days included), one sort column and direction, and a page.
+ * `limit` is the older name of `pageSize` (the command line's `--limit`, up to 500, first page only).
+ */
+export const runListQuerySchema = z
+  .strictObject(
+    {
+      state: listOf(
+        z.enum(runStateSchema.options, {
+          error: `state must be among ${runStateSchema.options.join(", ")}`,
+        }),
+        "state",
+      ).optional(),
+      targetId: idFilter("targetId"),
+      recipeId: idFilter("recipeId"),
+      hostId: idFilter("hostId"),
+      submittedById: idFilter("submittedById"),
+      createdFrom: dateBound("createdFrom").optional(),
+      createdTo: dateBound("createdTo").optional(),
+      sort: runListSortSchema.default("createdAt"),
+      order: z.enum(["asc", "desc"], { error: "order must be asc or desc" }).default("desc"),
+      page: wholeNumber("page", 1, RUN_LIST_PAGE_MAX).default(1),
+      pageSize: wholeNumber("pageSize", 1, RUN_LIST_PAGE_SIZE_MAX).optional(),
+      limit: wholeNumber("limit", 1, 500).optional(),
+    },
+    {
+      error: (issue) =>
+        issue.code === "unrecognized_keys" ? `unknown query parameter: ${issue.keys.join(", ")}` : undefined,
+    },
+  )
+  .refine((query) => query.pageSize === undefined || query.limit === undefined, {
+    error: "give pageSize or limit, not both",
+    path: ["limit"],
+  })
+  .refine(
+    (query) =>
+      query.createdFrom === undefined ||
+      query.createdTo === undefined ||
+      query.createdFrom.slice(0, 10) <= query.createdTo.slice(0, 10),
+    { error: "createdFrom must not be after createdTo", path: ["createdFrom"] },
+  );
+export type RunListQuery = z.infer<typeof runListQuerySchema>;
+export type RunListQueryInput = z.input<typeof runListQuerySchema>;
 
 export const runDetailSchema = runSummarySchema.extend({
   spec: runSpecSchema,

@@ -223,7 +223,16 @@ export const runs = pgTable(
     finishedAt: timestamp("finished_at", { withTimezone: true }),
   },
   (t) => [
-    index("runs_group_created_idx").on(t.groupId, t.createdAt),
+    // The group's runs list (server/services/run-list.service.ts): one index per sort column and per
+    // filter with the default sort, each ending in id for the tiebreak, so a page is an index range scan.
+    index("runs_group_created_id_idx").on(t.groupId, t.createdAt.desc(), t.id.desc()),
+    index("runs_group_updated_id_idx").on(t.groupId, t.updatedAt.desc(), t.id.desc()),
+    index("runs_group_state_created_idx").on(t.groupId, t.state, t.createdAt.desc(), t.id.desc()),
+    index("runs_group_name_id_idx").on(t.groupId, t.name, t.id),
+    index("runs_group_target_created_idx").on(t.groupId, t.targetId, t.createdAt.desc(), t.id.desc()),
+    index("runs_group_recipe_created_idx").on(t.groupId, t.recipeId, t.createdAt.desc(), t.id.desc()),
+    index("runs_group_host_created_idx").on(t.groupId, t.hostId, t.createdAt.desc(), t.id.desc()),
+    index("runs_group_submitter_created_idx").on(t.groupId, t.submittedBy, t.createdAt.desc(), t.id.desc()),
     index("runs_host_state_idx").on(t.hostId, t.state),
     index("runs_waiting_for_slot_idx")
       .on(t.hostId, t.waitingForSlotSince)

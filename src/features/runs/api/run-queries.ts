@@ -1,15 +1,21 @@
 import {
   codeSchema,
   FINAL_RUN_STATES,
+  hostListSchema,
+  memberListSchema,
   type RunSummary,
+  recipeListSchema,
   recipeSchema,
   runDetailSchema,
   runListSchema,
   runLogSchema,
+  targetListSchema,
 } from "@shared/schemas";
-import { queryOptions } from "@tanstack/react-query";
+import { keepPreviousData, queryOptions } from "@tanstack/react-query";
 import { api } from "@/lib/api-client";
 import { appendLogChunks, bytesFromBase64, EMPTY_LOG_TEXT, type LogText } from "../log-text";
+import type { RunFilterOptions } from "../table/run-filters";
+import { DEFAULT_VIEW, queryFromView, type RunListView, searchFromView } from "../table/run-list-params";
 
 /** While anything is unfinished the page refreshes itself at this pace (live streaming comes later). */
 const REFRESH_WHILE_ACTIVE_MS = 3000;
@@ -21,13 +27,54 @@ export const isFinished = (run: Pick<RunSummary, "state">) => FINAL_RUN_STATES.i
 
 export const runQueries = {
   all: ["runs"] as const,
-  list: (groupId: string) =>
+  /** Every page and view of a group's list (for live updates and invalidation). */
+  lists: (groupId: string) => [...runQueries.all, "list", groupId] as const,
+  /** One page of a group's runs in a view (filters, sort, page: table/run-list-params.ts). */
+  list: (groupId: string, view: RunListView = DEFAULT_VIEW) =>
     queryOptions({
-      queryKey: [...runQueries.all, "list", groupId] as const,
-      queryFn: ({ signal }) =>
-        api.get(`/api/groups/${encodeURIComponent(groupId)}/runs`, runListSchema, { signal }),
+      queryKey: [...runQueries.lists(groupId), queryFromView(view)] as const,
+      queryFn: ({ signal }) => {
+        const search = searchFromView(view);
+        const suffix = search.size > 0 ? `?${search}` : "";
+        return api.get(`/api/groups/${encodeURIComponent(groupId)}/runs${suffix}`, runListSchema, {
+          signal,
+        });
+      },
+      // The previous page stays on screen while the next one loads.
+      placeholderData: keepPreviousData,
       refetchInterval: (query) =>
         query.state.data?.runs.some((run) => !isFinished(run)) ? REFRESH_WHILE_ACTIVE_MS : false,
+    }),
+  /**
+   * The group's targets (isotopologues too), recipes, hosts and members, as the list's filters offer
+   * them and its recipe and host columns name them. A list the caller may not read is left empty.
+   */
+  filterOptions: (groupId: string) =>
+    queryOptions({
+      queryKey: [...runQueries.all, "filter-options", groupId] as const,
+      queryFn: async ({ signal }): Promise<RunFilterOptions> => {
+        const group = `/api/groups/${encodeURIComponent(groupId)}`;
+        const orNone = <T>(request: Promise<T>) => request.catch(() => null);
+        const [targets, recipes, hosts, members] = await Promise.all([
+          orNone(api.get(`${group}/targets`, targetListSchema, { signal })),
+          orNone(api.get(`${group}/recipes`, recipeListSchema, { signal })),
+          orNone(api.get(`${group}/hosts`, hostListSchema, { signal })),
+          orNone(api.get(`${group}/members`, memberListSchema, { signal })),
+        ]);
+        const byName = (a: { name: string }, b: { name: string }) => a.name.localeCompare(b.name);
+        return {
+          targets: (targets?.targets ?? [])
+            .flatMap((target) => [target, ...target.isotopologues])
+            .map(({ id, name }) => ({ id, name }))
+            .sort(byName),
+          recipes: (recipes?.recipes ?? []).map(({ id, name }) => ({ id, name })).sort(byName),
+          hosts: (hosts?.hosts ?? []).map(({ id, name }) => ({ id, name })).sort(byName),
+          submitters: (members?.members ?? [])
+            .map((member) => ({ id: member.userId, name: member.displayName }))
+            .sort(byName),
+        };
+      },
+      staleTime: 60_000,
     }),
   detail: (runId: string) =>
     queryOptions({

@@ -5,10 +5,13 @@ import {
   codeExportSchema,
   codeImportSchema,
   codeListSchema,
+  codePreviewRequestSchema,
+  codePreviewSchema,
   codeSchema,
 } from "../../shared/schemas/codes";
 import { requirePrincipal } from "../auth/principal";
 import { parseBody, parseParams, shape } from "../http/validate";
+import { previewCode } from "../services/code-preview.service";
 import {
   createCode,
   deleteCode,
@@ -60,6 +63,14 @@ export function codeRoutes({ db }: RouteContext): Router {
     const principal = requirePrincipal(req);
     const { codeId } = parseParams(codeParams, req);
     res.json(shape(codeSchema, await getCode(db, principal, codeId)));
+  });
+
+  // A POST because parameters are a body; it renders and returns, writing nothing.
+  router.post("/codes/:codeId/preview", async (req, res) => {
+    const principal = requirePrincipal(req);
+    const { codeId } = parseParams(codeParams, req);
+    const request = parseBody(codePreviewRequestSchema, req);
+    res.json(shape(codePreviewSchema, await previewCode(db, principal, codeId, request)));
   });
 
   router.delete("/codes/:codeId", async (req, res) => {

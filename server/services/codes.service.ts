@@ -102,7 +102,7 @@ export async function listCodes(db: Database, principal: Principal, groupId: str
   return rows.map(toCode);
 }
 
-async function codeForCaller(db: Database, principal: Principal, codeId: string) {
+export async function codeForCaller(db: Database, principal: Principal, codeId: string) {
   const [row] = await db.select().from(codes).where(eq(codes.id, codeId));
   if (!row) throw notFound("Code");
   const role = await requireRoleFor(db, principal, row.groupId, "collaborator", "Code");

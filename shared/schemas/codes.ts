@@ -108,3 +108,33 @@ export type CodeExport = z.infer<typeof codeExportSchema>;
 export const codeImportSchema = codeExportSchema.extend({
   codes: z.array(codeDefinitionSchema).min(1).max(100),
 });
+
+/** Longest text of one rendered file a preview returns; the rest is cut and the file marked truncated. */
+export const CODE_PREVIEW_FILE_CHARS = 200_000;
+
+/**
+ * A preview of a code's input files: rendered for a target of the group (or none) with the given
+ * parameters, which the code's schema checks and completes with its defaults first, as for a run.
+ */
+export const codePreviewRequestSchema = z.strictObject({
+  targetId: uuidSchema.nullable().default(null),
+  parameters: z.record(z.string(), z.unknown()).default({}),
+});
+export type CodePreviewRequest = z.input<typeof codePreviewRequestSchema>;
+
+export const codePreviewSchema = z.object({
+  /** The parameters as rendered: the given values with the schema's defaults filled in. */
+  parameters: z.record(z.string(), z.unknown()),
+  target: z.object({ id: uuidSchema, name: z.string(), version: z.number().int() }).nullable(),
+  files: z.array(
+    z.object({
+      fileName: z.string(),
+      sizeBytes: z.number().int().min(0),
+      text: z.string(),
+      truncated: z.boolean(),
+    }),
+  ),
+  /** The command-line arguments after rendering (empty ones left out, as in a run). */
+  arguments: z.array(z.string()),
+});
+export type CodePreview = z.infer<typeof codePreviewSchema>;

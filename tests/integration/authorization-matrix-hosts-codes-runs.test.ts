@@ -304,6 +304,14 @@ const CASES: MatrixCase[] = [
   },
   { name: "read a code", method: "GET", path: () => `/api/codes/${codeId}`, expected: groupRead(200) },
   {
+    // Rendering writes nothing, so whoever may read the code may preview its input files.
+    name: "preview a code's input files",
+    method: "POST",
+    path: () => `/api/codes/${codeId}/preview`,
+    body: () => ({ parameters: { molecule: "N2" } }),
+    expected: groupRead(200),
+  },
+  {
     name: "delete a code someone else registered",
     method: "DELETE",
     path: async () => `/api/codes/${await freshCode(groupAdminId)}`,

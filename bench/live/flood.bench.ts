@@ -26,7 +26,8 @@
  * With streaming (commit 4f41943, and 9c076a0 in the server):
  *   all 600 000 lines once and in order, sha256 equal, 460 chunks, no pause; 19 901 lines/s arrived
  *   while the job wrote, largest backlog 25 902 lines (1.3 s of output), the last line arrived 0.20 s
- *   after the job wrote it. CPU s: PostgreSQL 3.9, server 2.3, worker 3.3, host 2.6 (+1.0 its
+ *   after the job wrote it. A second run: 512 chunks, 19 955 lines/s, backlog 1.1 s, last line 0.06 s
+ *   (written → stored 0.04 s, stored → delivered 0.02 s). CPU s: PostgreSQL 3.9, server 2.3, worker 3.3, host 2.6 (+1.0 its
  *   commands), client 2.1. Peak RSS: server 204 MiB, worker 180, host 127, client 230.
  */
 import { connectLive } from "../../tests/integration/support/live-client";

@@ -38,9 +38,11 @@ const nameIn = (options: { id: string; name: string }[], id: string) =>
   options.find((option) => option.id === id)?.name ?? "—";
 
 function columnsFor(groupId: string, canAct: boolean, options: RunFilterOptions): ColumnDef<RunSummary>[] {
+  // Sortable columns have an accessor (TanStack Table sorts only those); the server does the sorting.
   const columns: ColumnDef<RunSummary>[] = [
     {
       id: "name",
+      accessorFn: (run) => run.name,
       header: "Run",
       cell: ({ row: { original: run } }) => (
         <>
@@ -55,6 +57,7 @@ function columnsFor(groupId: string, canAct: boolean, options: RunFilterOptions)
     },
     {
       id: "state",
+      accessorFn: (run) => run.state,
       header: "State",
       cell: ({ row: { original: run } }) => (
         <div className="flex max-w-xs flex-col gap-1">
@@ -68,22 +71,26 @@ function columnsFor(groupId: string, canAct: boolean, options: RunFilterOptions)
     },
     {
       id: "target",
+      accessorFn: (run) => run.targetName,
       header: "Target",
       cell: ({ row: { original: run } }) =>
         run.targetId ? <RunTarget run={run} /> : <span className="text-ink-400">—</span>,
     },
     {
       id: "recipe",
+      accessorFn: (run) => run.recipeId,
       header: "Recipe",
       cell: ({ row: { original: run } }) => nameIn(options.recipes, run.recipeId),
     },
     {
       id: "host",
+      accessorFn: (run) => run.hostId,
       header: "Host",
       cell: ({ row: { original: run } }) => nameIn(options.hosts, run.hostId),
     },
     {
       id: "submittedBy",
+      accessorFn: (run) => run.submittedByName,
       header: "Submitted by",
       cell: ({ row: { original: run } }) => run.submittedByName ?? "—",
     },
@@ -99,6 +106,7 @@ function columnsFor(groupId: string, canAct: boolean, options: RunFilterOptions)
     },
     {
       id: "createdAt",
+      accessorFn: (run) => run.createdAt,
       header: "Submitted",
       cell: ({ row: { original: run } }) => (
         <span className="text-xs whitespace-nowrap">{formatDateTime(run.createdAt)}</span>
@@ -239,7 +247,7 @@ export function RunsTable({
     <>
       {notices}
       {filters}
-      {canAct && selected.length > 0 ? (
+      {canAct ? (
         <BulkActions selected={selected} onDone={() => setSelection({ view: viewKey, rows: {} })} />
       ) : null}
       {runs.data.runs.length === 0 ? (

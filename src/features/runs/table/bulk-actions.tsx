@@ -35,6 +35,7 @@ async function eachRun(runs: RunSummary[], act: (id: string) => Promise<unknown>
 }
 
 /**
+ * A toolbar while runs are selected, and the report of the last action (kept after the selection clears).
  * Cancel the selected unfinished runs (after a confirmation) or resubmit the selected finished ones, as
  * they were. Each run is one request; the report names every run that failed and why.
  */
@@ -63,34 +64,36 @@ export function BulkActions({ selected, onDone }: { selected: RunSummary[]; onDo
   const succeeded = (report?.outcomes.length ?? 0) - failed.length;
   const verb = report?.action === "cancel" ? "Cancelled" : "Resubmitted";
   return (
-    <div className="mb-3 flex flex-col gap-2">
-      <div
-        role="toolbar"
-        aria-label="Selected runs"
-        className="flex flex-wrap items-center gap-2 rounded-lg border border-ink-100 bg-ink-50/70 px-3 py-2 text-sm"
-      >
-        <span className="mr-2 text-ink-700" aria-live="polite">
-          {selected.length} selected
-        </span>
-        <Button
-          size="sm"
-          variant="ghost-danger"
-          disabled={cancellable.length === 0 || bulk.isPending}
-          onClick={() => setConfirming(true)}
-          aria-haspopup="dialog"
+    <div className="mb-3 flex flex-col gap-2 empty:hidden">
+      {selected.length > 0 ? (
+        <div
+          role="toolbar"
+          aria-label="Selected runs"
+          className="flex flex-wrap items-center gap-2 rounded-lg border border-ink-100 bg-ink-50/70 px-3 py-2 text-sm"
         >
-          Cancel {cancellable.length} {cancellable.length === 1 ? "run" : "runs"}…
-        </Button>
-        <Button
-          size="sm"
-          variant="secondary"
-          disabled={resubmittable.length === 0 || bulk.isPending}
-          pending={bulk.isPending && bulk.variables === "resubmit"}
-          onClick={() => bulk.mutate("resubmit")}
-        >
-          Resubmit {resubmittable.length} {resubmittable.length === 1 ? "run" : "runs"}
-        </Button>
-      </div>
+          <span className="mr-2 text-ink-700" aria-live="polite">
+            {selected.length} selected
+          </span>
+          <Button
+            size="sm"
+            variant="ghost-danger"
+            disabled={cancellable.length === 0 || bulk.isPending}
+            onClick={() => setConfirming(true)}
+            aria-haspopup="dialog"
+          >
+            Cancel {cancellable.length} {cancellable.length === 1 ? "run" : "runs"}…
+          </Button>
+          <Button
+            size="sm"
+            variant="secondary"
+            disabled={resubmittable.length === 0 || bulk.isPending}
+            pending={bulk.isPending && bulk.variables === "resubmit"}
+            onClick={() => bulk.mutate("resubmit")}
+          >
+            Resubmit {resubmittable.length} {resubmittable.length === 1 ? "run" : "runs"}
+          </Button>
+        </div>
+      ) : null}
       {report ? (
         <Notice
           tone={failed.length > 0 ? "error" : "success"}

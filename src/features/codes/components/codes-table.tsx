@@ -10,7 +10,17 @@ import { codeQueries } from "../api/code-queries";
 const names = (list: string[]) => (list.length === 0 ? "—" : list.join(", "));
 
 /** The group's codes as the API lists them: each registered name and version with what it reads and writes. */
-export function CodesTable({ groupId, groupName }: { groupId: string; groupName: string }) {
+export function CodesTable({
+  groupId,
+  groupName,
+  selectedId = null,
+  onSelect,
+}: {
+  groupId: string;
+  groupName: string;
+  selectedId?: string | null;
+  onSelect?: (codeId: string) => void;
+}) {
   const codes = useQuery(codeQueries.list(groupId));
   if (codes.isPending) return <TableSkeleton rows={4} label="Loading codes" />;
   if (codes.isError)
@@ -18,8 +28,8 @@ export function CodesTable({ groupId, groupName }: { groupId: string; groupName:
   if (codes.data.codes.length === 0) {
     return (
       <EmptyState icon={<Cpu className="size-5" aria-hidden="true" />} title="No codes registered yet">
-        Codes registered through the API are listed here by name and version, with the files they read and
-        write.
+        Register a code, or import a file of definitions, and it is listed here by name and version with the
+        files it reads and writes.
       </EmptyState>
     );
   }
@@ -38,9 +48,21 @@ export function CodesTable({ groupId, groupName }: { groupId: string; groupName:
       </THead>
       <TBody>
         {codes.data.codes.map(({ id, definition, createdAt }) => (
-          <TR key={id}>
+          <TR key={id} className={id === selectedId ? "bg-flux-50" : undefined}>
             <TD>
-              <div className="font-medium text-ink-900">{definition.name}</div>
+              {onSelect ? (
+                <button
+                  type="button"
+                  className="text-left font-medium text-flux-800 underline-offset-2 hover:underline"
+                  aria-current={id === selectedId ? "true" : undefined}
+                  aria-label={`${definition.name} ${definition.version}: show details`}
+                  onClick={() => onSelect(id)}
+                >
+                  {definition.name}
+                </button>
+              ) : (
+                <div className="font-medium text-ink-900">{definition.name}</div>
+              )}
               {definition.description ? (
                 <div className="mt-1 max-w-xs text-xs text-ink-500">{definition.description}</div>
               ) : null}

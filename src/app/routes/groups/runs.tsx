@@ -1,6 +1,7 @@
 import { useQuery, useQueryClient } from "@tanstack/react-query";
 import { useState } from "react";
 import { Link, useNavigate, useParams } from "react-router-dom";
+import { buttonClasses } from "@/components/ui/button";
 import { ErrorState } from "@/components/ui/error-state";
 import { PageHeader } from "@/components/ui/page-header";
 import { TableSkeleton } from "@/components/ui/skeleton";
@@ -35,7 +36,16 @@ export function RunsRoute() {
         eyebrow={group.name}
         title="Runs"
         description="Calculations on your group's hosts, from submission to collected output, newest first."
-        actions={<LiveIndicator status={live} />}
+        actions={
+          <>
+            <LiveIndicator status={live} />
+            {canAct ? (
+              <Link to={`${paths.group(groupId, "runs")}/new`} className={buttonClasses({ size: "sm" })}>
+                New run
+              </Link>
+            ) : null}
+          </>
+        }
       />
       <RunsTable
         groupId={groupId}

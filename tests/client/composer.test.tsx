@@ -1,0 +1,288 @@
+/**
+ * The run composer (`/groups/:groupId/runs/new`) against the fake API: the stage's parameter form is drawn
+ * from its code's JSON Schema and checked with it before anything is sent; the server's preview
+ * (`POST /api/groups/:groupId/runs/preview`, shared/schemas/run-preview.ts) shows the cost and balance
+ * with units, and an identical finished run is offered for reuse before any allocation is spent.
+ */
+import type { Code, Host, Recipe, RunDetail, RunPreview } from "@shared/schemas";
+import { screen, waitFor, within } from "@testing-library/react";
+import { HttpResponse, http } from "msw";
+import { describe, expect, it } from "vitest";
+import { installFakeApi } from "./support/fake-api";
+import { KESTREL_ID, kestrel, people } from "./support/fixtures";
+import { renderApp } from "./support/render-app";
+import { kestrelRuns } from "./support/run-fixtures";
+import { server } from "./support/server";
+import { TARGET_IDS, targetList } from "./support/target-fixtures";
+
+const RECIPE_ID = "5a1e0000-0000-4000-8000-0000000000aa";
+const HOST_ID = "5a1e0000-0000-4000-8000-0000000000bb";
+const CODE_ID = "c0de0000-0000-4000-8000-000000000002";
+const NEW_RUN_ID = "5a1e0000-0000-4000-8000-000000000077";
+const EARLIER_RUN_ID = "5a1e0000-0000-4000-8000-000000000002";
+
+const recipe: Recipe = {
+  id: RECIPE_ID,
+  groupId: KESTREL_ID,
+  name: "elastic",
+  description: "",
+  stages: [{ name: "scatter", codeId: CODE_ID, codeName: "radial-scatter", codeVersion: "1.0" }],
+  createdAt: "2026-11-01T09:00:00.000Z",
+};
+
+/** The parameters of Sigmaflow's demo scattering code (deploy/demo/codes/radial-scatter.ts), abridged. */
+const parameters = {
+  type: "object",
+  additionalProperties: false,
+  required: ["polarizabilityBohr3"],
+  properties: {
+    lmax: { type: "integer", minimum: 0, maximum: 12, default: 6, description: "Highest partial wave l." },
+    energiesEv: {
+      type: "array",
+      items: { type: "number", exclusiveMinimum: 0, maximum: 1000 },
+      minItems: 1,
+      maxItems: 2000,
+      default: [0.1, 1, 10],
+      description: "Collision energies in eV, strictly increasing.",
+    },
+    polarizabilityBohr3: {
+      type: "number",
+      minimum: 0,
+      maximum: 1000,
+      description: "Mean dipole polarizability of the target, bohr³.",
+    },
+    model: { type: "string", enum: ["static", "static-polarization"], default: "static-polarization" },
+  },
+};
+
+const code: Code = {
+  id: CODE_ID,
+  groupId: KESTREL_ID,
+  createdAt: "2026-11-01T09:00:00.000Z",
+  definition: {
+    name: "radial-scatter",
+    version: "1.0",
+    description: "",
+    executable: "/usr/bin/true",
+    arguments: [],
+    setupLines: [],
+    inputTemplates: [],
+    parameters,
+    outputFiles: [],
+    outputRules: { progress: [], timings: [] },
+    resultFiles: [],
+    defaults: { cores: 1, wallTimeMinutes: 60 },
+  },
+};
+
+const host: Host = {
+  id: HOST_ID,
+  groupId: KESTREL_ID,
+  name: "tern",
+  address: "tern.example",
+  port: 22,
+  scheduler: "slurm",
+  remoteBaseDir: "/scratch/sigmaflow",
+  maxConcurrentRuns: 4,
+  hostKeyFingerprint: "SHA256:abc",
+  hostKeyConfirmed: true,
+  status: "ok",
+  statusMessage: null,
+  createdAt: "2026-11-01T09:00:00.000Z",
+};
+
+type SpecBody = {
+  name: string;
+  targetId?: string;
+  parameters: Record<string, Record<string, unknown>>;
+  resources: { cores?: number; wallTimeMinutes?: number };
+};
+
+/** The preview as the server would answer it: cost = cores × wall time, out of 1000 core-hours. */
+function previewOf(spec: SpecBody, reusable: RunPreview["reusable"]): RunPreview {
+  const cores = spec.resources.cores ?? 1;
+  const wallTimeMinutes = spec.resources.wallTimeMinutes ?? 60;
+  const costCoreHours = (cores * wallTimeMinutes) / 60;
+  const file = (relativePath: string, text: string) => ({
+    relativePath,
+    sizeBytes: text.length,
+    sha256: "0".repeat(64),
+    text,
+    truncated: false,
+  });
+  return {
+    resources: { cores, wallTimeMinutes },
+    costCoreHours,
+    allocation: {
+      id: "a110c000-0000-4000-8000-000000000001",
+      name: "Winter quarter",
+      availableCoreHoursBefore: 1000,
+      availableCoreHoursAfter: 1000 - costCoreHours,
+    },
+    refusal: null,
+    fingerprint: "f".repeat(64),
+    stages: [
+      {
+        index: 1,
+        name: "scatter",
+        codeName: "radial-scatter",
+        codeVersion: "1.0",
+        parameters: spec.parameters.scatter ?? {},
+        files: [file("stage-1-scatter/input.json", JSON.stringify(spec.parameters.scatter))],
+      },
+    ],
+    script: file("job.sh", "#!/bin/sh\n"),
+    reusable,
+  };
+}
+
+function setUp(options: { reusable?: RunPreview["reusable"] } = {}) {
+  const runs = kestrelRuns();
+  const api = installFakeApi({
+    me: people.tomas,
+    groups: [{ ...kestrel, myRole: "member" }],
+    runs: { [KESTREL_ID]: runs },
+  });
+  const previews: SpecBody[] = [];
+  const submissions: { spec: SpecBody; onDuplicate: string; csrf: string | null }[] = [];
+  server.use(
+    http.get("/api/groups/:groupId/targets", () => HttpResponse.json(targetList())),
+    http.get("/api/groups/:groupId/recipes", () => HttpResponse.json({ recipes: [recipe] })),
+    http.get("/api/groups/:groupId/hosts", () => HttpResponse.json({ hosts: [host] })),
+    http.get("/api/recipes/:recipeId", () => HttpResponse.json(recipe)),
+    http.get("/api/codes/:codeId", () => HttpResponse.json(code)),
+    http.get("/api/runs/:runId/results", ({ params }) =>
+      HttpResponse.json({ runId: params.runId, state: "none", message: "", caution: "", results: [] }),
+    ),
+    http.post("/api/groups/:groupId/runs/preview", async ({ request }) => {
+      const { spec } = (await request.json()) as { spec: SpecBody };
+      previews.push(spec);
+      return HttpResponse.json(previewOf(spec, options.reusable ?? null));
+    }),
+    http.post("/api/groups/:groupId/runs", async ({ request }) => {
+      const body = (await request.json()) as { spec: SpecBody; onDuplicate: string };
+      submissions.push({ ...body, csrf: request.headers.get("x-csrf-token") });
+      const created: RunDetail = {
+        ...runs[0]!,
+        id: NEW_RUN_ID,
+        name: body.spec.name,
+        state: "queued",
+        events: [],
+      };
+      api.state.runs[KESTREL_ID]!.unshift(created);
+      return HttpResponse.json(created, { status: 201 });
+    }),
+  );
+  return { api, previews, submissions };
+}
+
+async function openComposer() {
+  const rendered = renderApp(`/groups/${KESTREL_ID}/runs/new`);
+  const { user } = rendered;
+  await screen.findByRole("heading", { name: "New run" });
+  await user.type(screen.getByLabelText("Run name"), "Water elastic");
+  await user.selectOptions(await screen.findByLabelText("Target"), TARGET_IDS.water);
+  await user.selectOptions(screen.getByLabelText("Recipe"), RECIPE_ID);
+  await user.selectOptions(await screen.findByLabelText("Host"), HOST_ID);
+  // The stage's fields appear once its code is read; the unit comes from the schema's description.
+  await screen.findByLabelText("polarizabilityBohr3 (bohr³)");
+  return rendered;
+}
+
+describe("run composer", () => {
+  it("shows a value the code's schema refuses beside its field and sends nothing", async () => {
+    const { previews, submissions } = setUp();
+    const { user } = await openComposer();
+    const lmax = screen.getByLabelText("lmax");
+    // Defaults are pre-filled from the schema.
+    expect(lmax).toHaveValue("6");
+    expect(screen.getByLabelText("model")).toHaveValue("static-polarization");
+    await user.clear(lmax);
+    await user.type(lmax, "40");
+    await user.type(screen.getByLabelText("polarizabilityBohr3 (bohr³)"), "9.6");
+    await waitFor(() => expect(lmax).toHaveAttribute("aria-invalid", "true"));
+    const errorId = lmax
+      .getAttribute("aria-describedby")!
+      .split(" ")
+      .find((id) => id.endsWith("-error"))!;
+    expect(document.getElementById(errorId)).toHaveTextContent("must be <= 12");
+    expect(screen.getByRole("button", { name: "Submit run" })).toBeDisabled();
+    // The required parameter left empty is named at its field too.
+    await user.clear(screen.getByLabelText("polarizabilityBohr3 (bohr³)"));
+    await waitFor(() =>
+      expect(screen.getByLabelText("polarizabilityBohr3 (bohr³)")).toHaveAttribute("aria-invalid", "true"),
+    );
+    await user.click(screen.getByRole("button", { name: "Submit run" }));
+    expect(submissions).toHaveLength(0);
+    expect(previews).toHaveLength(0);
+  });
+
+  it("shows the cost and balance in core-hours before submitting, then opens the new run", async () => {
+    const { previews, submissions } = setUp();
+    const { user, router } = await openComposer();
+    await user.type(screen.getByLabelText("polarizabilityBohr3 (bohr³)"), "9.6");
+    await user.type(screen.getByLabelText("Cores"), "4");
+    await user.type(screen.getByLabelText("Wall-time limit (min)"), "90");
+    const summary = await screen.findByLabelText("Allocation cost");
+    // 4 cores × 90 min = 6 core-hours, out of 1000 available.
+    await waitFor(() => expect(summary).toHaveTextContent("6 core-hours (4 cores × 90 min)"));
+    expect(summary).toHaveTextContent("1,000 core-hours available → 994 core-hours after");
+    expect(previews.at(-1)).toMatchObject({
+      name: "Water elastic",
+      targetId: TARGET_IDS.water,
+      resources: { cores: 4, wallTimeMinutes: 90 },
+      parameters: { scatter: { lmax: 6, polarizabilityBohr3: 9.6, model: "static-polarization" } },
+    });
+    await user.click(screen.getByRole("button", { name: "Submit run" }));
+    await waitFor(() =>
+      expect(router.state.location.pathname).toBe(`/groups/${KESTREL_ID}/runs/${NEW_RUN_ID}`),
+    );
+    expect(submissions).toHaveLength(1);
+    expect(submissions[0]).toMatchObject({ onDuplicate: "ask", spec: previews.at(-1) });
+    expect(submissions[0]!.csrf).toBeTruthy();
+  });
+
+  it("fills the energies from the grid builder (log spacing, eV)", async () => {
+    const { previews } = setUp();
+    const { user } = await openComposer();
+    await user.type(screen.getByLabelText("polarizabilityBohr3 (bohr³)"), "9.6");
+    const grid = screen.getByRole("group", { name: /energiesEv: energy grid/ });
+    for (const [label, value] of [
+      ["Start (eV)", "1"],
+      ["End (eV)", "10"],
+      ["Points", "10"],
+    ] as const) {
+      await user.clear(within(grid).getByLabelText(label));
+      await user.type(within(grid).getByLabelText(label), value);
+    }
+    expect(within(grid).getByText(/^10 points \(eV\): 1, 1\.292, 1\.668/)).toBeInTheDocument();
+    await user.click(within(grid).getByRole("button", { name: "Use these 10 energies" }));
+    await waitFor(() => expect(previews.at(-1)?.parameters.scatter?.energiesEv).toHaveLength(10));
+    const energies = previews.at(-1)!.parameters.scatter!.energiesEv as number[];
+    // Log spacing E_k = 1 eV · 10^(k/9) (analytic): E_1 = 10^(1/9) = 1.29155 eV, last exactly 10 eV.
+    expect(energies[0]).toBe(1);
+    expect(energies[1]).toBeCloseTo(10 ** (1 / 9), 12);
+    expect(energies[9]).toBe(10);
+  });
+
+  it("offers an identical finished run's results before spending allocation", async () => {
+    const { submissions } = setUp({
+      reusable: {
+        id: EARLIER_RUN_ID,
+        name: "Water elastic (earlier)",
+        finishedAt: "2026-12-01T08:00:00.000Z",
+        resultsState: "derived",
+      },
+    });
+    const { user } = await openComposer();
+    await user.type(screen.getByLabelText("polarizabilityBohr3 (bohr³)"), "9.6");
+    const offer = await screen.findByRole("region", { name: "These inputs already ran" });
+    expect(offer).toHaveTextContent("“Water elastic (earlier)”");
+    expect(offer).toHaveTextContent("results: derived");
+    expect(offer).toHaveTextContent("costs 0 core-hours");
+    expect(screen.queryByRole("button", { name: "Submit run" })).toBeNull();
+    await user.click(within(offer).getByRole("button", { name: "Reuse its results" }));
+    await waitFor(() => expect(submissions).toHaveLength(1));
+    expect(submissions[0]!.onDuplicate).toBe("reuse");
+  });
+});

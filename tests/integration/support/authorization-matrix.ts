@@ -51,14 +51,16 @@ export function describeMatrix(
       for (const caller of CALLERS) {
         it(`${testCase.method} ${testCase.name} as ${caller} → ${testCase.expected[caller]}`, async () => {
           const { baseUrl, tokens } = context();
-          const headers: Record<string, string> = { "content-type": "application/json" };
+          const body = testCase.body?.();
+          // A FormData body (an upload) is sent as multipart/form-data with the boundary fetch chooses.
+          const multipart = body instanceof FormData;
+          const headers: Record<string, string> = multipart ? {} : { "content-type": "application/json" };
           const token = tokens.get(caller);
           if (token) headers.authorization = `Bearer ${token}`;
-          const body = testCase.body?.();
           const response = await fetch(`${baseUrl}${await testCase.path()}`, {
             method: testCase.method,
             headers,
-            body: body === undefined ? undefined : JSON.stringify(body),
+            body: body === undefined ? undefined : multipart ? body : JSON.stringify(body),
           });
           const text = await response.text();
           expect(response.status, text).toBe(testCase.expected[caller]);

@@ -370,6 +370,18 @@ const CASES: MatrixCase[] = [
     body: () => ({ name: `target-${suffix()}`, xyz: "2\nhydrogen fluoride\nH 0 0 0\nF 0 0 0.917\n" }),
     expected: groupWrite(201),
   },
+  {
+    name: "enter a target from an uploaded XYZ file",
+    method: "POST",
+    path: () => `/api/groups/${groupId}/targets/upload`,
+    body: () => {
+      const form = new FormData();
+      form.append("name", `uploaded-${suffix()}`);
+      form.append("file", new Blob(["2\nhydrogen fluoride\nH 0 0 0\nF 0 0 0.917\n"]), "hf.xyz");
+      return form;
+    },
+    expected: groupWrite(201),
+  },
   { name: "read a target", method: "GET", path: () => `/api/targets/${targetId}`, expected: groupRead(200) },
   {
     name: "read a target version",

@@ -64,7 +64,12 @@ export function CodesTable({
                 <div className="font-medium text-ink-900">{definition.name}</div>
               )}
               {definition.description ? (
-                <div className="mt-1 max-w-xs text-xs text-ink-500">{definition.description}</div>
+                <div
+                  className="mt-1 line-clamp-2 max-w-sm text-xs text-ink-500"
+                  title={definition.description}
+                >
+                  {definition.description}
+                </div>
               ) : null}
             </TD>
             <TD className="font-mono text-xs">{definition.version}</TD>

@@ -82,7 +82,11 @@ export function DefinitionEditor({ groupId, basedOn, onRegistered, onCancel }: P
     },
     onError: (error) => {
       const details = isApiRequestError(error) ? problemSchema(error.details) : [];
-      setSummary(error.message);
+      setSummary(
+        details.length > 0
+          ? `Nothing was registered: the server found ${details.length === 1 ? "a problem" : `${details.length} problems`}.`
+          : error.message,
+      );
       setProblems(details);
     },
   });
@@ -174,7 +178,19 @@ export function DefinitionEditor({ groupId, basedOn, onRegistered, onCancel }: P
           <Button onClick={submit} pending={register.isPending}>
             {basedOn ? "Register this version" : "Register code"}
           </Button>
-          <Button variant="secondary" onClick={onCancel} disabled={register.isPending}>
+          <Button
+            variant="secondary"
+            onClick={() => {
+              try {
+                setText(JSON.stringify(JSON.parse(text), null, 2));
+              } catch (error) {
+                setSummary(`Not JSON: ${(error as Error).message}`);
+              }
+            }}
+          >
+            Format JSON
+          </Button>
+          <Button variant="ghost" onClick={onCancel} disabled={register.isPending}>
             Cancel
           </Button>
         </div>

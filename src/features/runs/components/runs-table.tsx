@@ -45,14 +45,14 @@ function columnsFor(groupId: string, canAct: boolean, options: RunFilterOptions)
       accessorFn: (run) => run.name,
       header: "Run",
       cell: ({ row: { original: run } }) => (
-        <>
+        <div className="min-w-48">
           <Link to={paths.run(groupId, run.id)} className="font-medium text-flux-800 hover:underline">
             {run.name}
           </Link>
           <div className="font-mono text-xs text-ink-500">
             {run.cores} × {run.wallTimeMinutes} min
           </div>
-        </>
+        </div>
       ),
     },
     {
@@ -60,7 +60,7 @@ function columnsFor(groupId: string, canAct: boolean, options: RunFilterOptions)
       accessorFn: (run) => run.state,
       header: "State",
       cell: ({ row: { original: run } }) => (
-        <div className="flex max-w-xs flex-col gap-1">
+        <div className="flex max-w-xs min-w-36 flex-col gap-1">
           <div>
             <RunStateBadge state={run.state} />
           </div>
@@ -107,6 +107,8 @@ function columnsFor(groupId: string, canAct: boolean, options: RunFilterOptions)
     {
       id: "createdAt",
       accessorFn: (run) => run.createdAt,
+      // Newest first on the first click; names and states start from the top of the alphabet or lifecycle.
+      sortDescFirst: true,
       header: "Submitted",
       cell: ({ row: { original: run } }) => (
         <span className="text-xs whitespace-nowrap">{formatDateTime(run.createdAt)}</span>
@@ -205,7 +207,6 @@ export function RunsTable({
     manualPagination: true,
     enableSortingRemoval: false,
     enableMultiSort: false,
-    sortDescFirst: true,
     rowCount: runs.data?.total ?? 0,
     state: {
       sorting,
@@ -277,7 +278,7 @@ export function RunsTable({
                                 ? "descending"
                                 : "none"
                         }
-                        className={header.column.id === "select" ? "w-8 pr-0" : undefined}
+                        className={header.column.id === "select" ? "w-8 pr-0! pl-4!" : "px-3!"}
                       >
                         {sortable ? (
                           <button
@@ -307,10 +308,10 @@ export function RunsTable({
                       key={cell.id}
                       className={
                         cell.column.id === "select"
-                          ? "w-8 pr-0"
+                          ? "w-8 pr-0! pl-4!"
                           : cell.column.id === "actions"
-                            ? "text-right"
-                            : undefined
+                            ? "px-3! text-right"
+                            : "px-3!"
                       }
                     >
                       {flexRender(cell.column.columnDef.cell, cell.getContext())}

@@ -33,12 +33,14 @@ const numberOrUndefined = (value: unknown) => (typeof value === "number" ? value
 function unitOf(name: string, property: Record<string, unknown>): string | null {
   if (typeof property.unit === "string" && property.unit.trim()) return property.unit.trim();
   const description = typeof property.description === "string" ? property.description : "";
-  const trailing = /,\s*([^\s,.()]{1,12})\.?$/u.exec(description);
+  // "…, bohr." / "…, bohr³ (1 Å³ = 6.748 bohr³)." / "…, hartree"
+  const trailing = /,\s*([^\s,.()]{1,12})\s*(?:\(.*\))?\.?$/u.exec(description);
   if (trailing?.[1]) return trailing[1];
   const inUnit = /\bin\s+(eV|meV|hartree|bohr|Å|K|s|min)\b/u.exec(description);
   if (inUnit?.[1]) return inUnit[1];
   if (/Ev$/.test(name)) return "eV";
-  if (/Bohr\d?$/.test(name)) return "bohr";
+  if (/Bohr3$/.test(name)) return "bohr³";
+  if (/Bohr$/.test(name)) return "bohr";
   return null;
 }
 

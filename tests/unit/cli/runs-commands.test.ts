@@ -132,6 +132,9 @@ describe("runs list", () => {
             state: "done",
           }),
         ],
+        total: 2,
+        page: 1,
+        pageSize: 50,
       },
     }));
     expect(await run(["list"])).toBe(0);
@@ -149,7 +152,7 @@ describe("runs list", () => {
       body: me([membership(GROUP_ID, "plasma", "Plasma chemistry"), membership(RUN_ID, "astro", "Astro")]),
     }));
     api.routes.set(`GET /api/groups/${GROUP_ID}/runs`, () => ({
-      body: { runs: [runSummary({ state: "failed" })] },
+      body: { runs: [runSummary({ state: "failed" })], total: 1, page: 1, pageSize: 20 },
     }));
     expect(await run(["list", "--group", "PLASMA", "--state", "failed", "--limit", "20", "--json"])).toBe(0);
     expect(api.requests.map((r) => r.line)).toEqual([
@@ -178,7 +181,9 @@ describe("runs list", () => {
   });
 
   it("says so when the group has no runs", async () => {
-    api.routes.set(`GET /api/groups/${GROUP_ID}/runs`, () => ({ body: { runs: [] } }));
+    api.routes.set(`GET /api/groups/${GROUP_ID}/runs`, () => ({
+      body: { runs: [], total: 0, page: 1, pageSize: 50 },
+    }));
     expect(await run(["list", "--group", GROUP_ID])).toBe(0);
     expect(stdout).toBe("No runs in this group yet.\n");
     expect(api.requests.map((r) => r.line)).toEqual([`GET /api/groups/${GROUP_ID}/runs`]);

@@ -31,7 +31,8 @@ function hintOf(field: SchemaField) {
           : maximum !== undefined
             ? `at most ${maximum}`
             : null;
-    parts.push([integer ? "Whole number" : null, range].filter(Boolean).join(", ") || null);
+    const bounds = [integer ? "Whole number" : null, range].filter(Boolean).join(", ");
+    parts.push(bounds ? `${bounds}.` : null);
   }
   if (field.defaultValue !== undefined && field.kind.type !== "energy-grid") {
     parts.push(`Default ${JSON.stringify(field.defaultValue)}.`);

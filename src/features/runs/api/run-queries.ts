@@ -40,8 +40,9 @@ export const runQueries = {
           signal,
         });
       },
-      // The previous page stays on screen while the next one loads.
-      placeholderData: keepPreviousData,
+      // The previous page stays on screen while the next one loads (never another group's).
+      placeholderData: (previous, previousQuery) =>
+        previousQuery?.queryKey[2] === groupId ? keepPreviousData(previous) : undefined,
       refetchInterval: (query) =>
         query.state.data?.runs.some((run) => !isFinished(run)) ? REFRESH_WHILE_ACTIVE_MS : false,
     }),

@@ -5,18 +5,66 @@
  */
 import {
   CODE_PREVIEW_FILE_CHARS,
+  type CodeDefinition,
   type CodePreview,
   type CodePreviewRequest,
   codeDefinitionSchema,
 } from "../../shared/schemas/codes";
+import type { TargetTemplateContext } from "../../shared/schemas/targets";
 import type { Principal } from "../auth/principal";
 import type { Database } from "../db/client";
 import { validateParameters } from "../execution/parameters";
 import { targetTemplateContext } from "../execution/target-context";
-import { renderCodeFiles } from "../execution/templates/render";
+import { type RenderedCode, renderCodeFiles } from "../execution/templates/render";
+import { RENDER_TIME_LIMIT_MS } from "../execution/templates/sandbox";
 import { AppError } from "../http/errors";
 import { codeForCaller } from "./codes.service";
 import { loadRunTarget } from "./targets.service";
+
+/**
+ * Longest a whole preview may spend rendering. Each template already stops at RENDER_TIME_LIMIT_MS, but a
+ * code has up to 20 templates and 50 arguments, and rendering holds the server's event loop; so the
+ * preview renders one template at a time and stops once this much time has gone, which bounds a request
+ * to about this plus one template's limit.
+ */
+export const PREVIEW_RENDER_BUDGET_MS = 2 * RENDER_TIME_LIMIT_MS;
+
+/**
+ * The same rendering as a run's plan (renderCodeFiles, per template, with the same escaping, context and
+ * limits), one template at a time under PREVIEW_RENDER_BUDGET_MS.
+ */
+export function renderWithinBudget(
+  definition: CodeDefinition,
+  parameters: Record<string, unknown>,
+  target: TargetTemplateContext | null,
+  now: () => number = Date.now,
+): RenderedCode {
+  const started = now();
+  const overBudget = (what: string) => {
+    if (now() - started <= PREVIEW_RENDER_BUDGET_MS) return;
+    throw new AppError(
+      422,
+      "template_failed",
+      `Rendering this code's templates took longer than ${PREVIEW_RENDER_BUDGET_MS} ms in all (stopped before ${what}); shorten its loops.`,
+    );
+  };
+  const files: RenderedCode["files"] = [];
+  try {
+    for (const input of definition.inputTemplates) {
+      overBudget(input.fileName);
+      files.push(
+        ...renderCodeFiles({ ...definition, inputTemplates: [input], arguments: [] }, parameters, target)
+          .files,
+      );
+    }
+    overBudget("the arguments");
+    const { argv } = renderCodeFiles({ ...definition, inputTemplates: [] }, parameters, target);
+    return { files, argv };
+  } catch (error) {
+    if (error instanceof AppError) throw error;
+    throw new AppError(422, "template_failed", (error as Error).message);
+  }
+}
 
 function previewText(content: string) {
   const sizeBytes = Buffer.byteLength(content, "utf8");
@@ -60,12 +108,11 @@ export async function previewCode(
     }
   }
 
-  let rendered: ReturnType<typeof renderCodeFiles>;
-  try {
-    rendered = renderCodeFiles(definition, checked.parameters, target ? targetTemplateContext(target) : null);
-  } catch (error) {
-    throw new AppError(422, "template_failed", (error as Error).message);
-  }
+  const rendered = renderWithinBudget(
+    definition,
+    checked.parameters,
+    target ? targetTemplateContext(target) : null,
+  );
   return {
     parameters: checked.parameters,
     target: target

@@ -30,7 +30,9 @@ export function apiUrl(path: string): string {
 async function send(path: string, options: RequestOptions): Promise<Response> {
   const method = options.method ?? "GET";
   const headers = new Headers({ accept: "application/json" });
-  if (options.body !== undefined) headers.set("content-type", "application/json");
+  // FormData (a file upload) is sent as multipart/form-data with the boundary fetch chooses.
+  const multipart = options.body instanceof FormData;
+  if (options.body !== undefined && !multipart) headers.set("content-type", "application/json");
   if (method !== "GET") {
     const csrfToken = readCsrfToken();
     if (csrfToken) headers.set("x-csrf-token", csrfToken);
@@ -42,7 +44,12 @@ async function send(path: string, options: RequestOptions): Promise<Response> {
       method,
       headers,
       credentials: "same-origin",
-      body: options.body === undefined ? undefined : JSON.stringify(options.body),
+      body:
+        options.body === undefined
+          ? undefined
+          : multipart
+            ? (options.body as FormData)
+            : JSON.stringify(options.body),
       signal: options.signal,
     });
   } catch (cause) {
@@ -93,6 +100,10 @@ export const api = {
   },
   post<S extends z.ZodType>(path: string, body: unknown, schema: S) {
     return send(path, { method: "POST", body }).then((response) => parseBody(response, schema));
+  },
+  /** A multipart/form-data POST, e.g. an uploaded file beside text fields. */
+  postForm<S extends z.ZodType>(path: string, form: FormData, schema: S) {
+    return send(path, { method: "POST", body: form }).then((response) => parseBody(response, schema));
   },
   patch<S extends z.ZodType>(path: string, body: unknown, schema: S) {
     return send(path, { method: "PATCH", body }).then((response) => parseBody(response, schema));

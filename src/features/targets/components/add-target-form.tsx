@@ -1,6 +1,6 @@
 import { type CreateTargetRequest, createTargetRequestSchema } from "@shared/schemas";
 import { useMutation, useQueryClient } from "@tanstack/react-query";
-import { type FormEvent, useState } from "react";
+import { type DragEvent, type FormEvent, useState } from "react";
 import { Link } from "react-router-dom";
 import { Button } from "@/components/ui/button";
 import { Field } from "@/components/ui/field";
@@ -11,7 +11,7 @@ import { describeError } from "@/lib/describe-error";
 import type { FieldErrors } from "@/lib/field-errors";
 import { readTextFields, validateWith, visibleFieldErrors } from "@/lib/form-errors";
 import { paths } from "@/lib/paths";
-import { createTarget } from "../api/target-commands";
+import { createTarget, uploadTarget } from "../api/target-commands";
 import { targetQueries } from "../api/target-queries";
 
 const XYZ_EXAMPLE =
@@ -27,8 +27,12 @@ const wholeNumber = (text: string | undefined) => (text?.trim() ? Number(text.tr
 export function AddTargetForm({ groupId }: { groupId: string }) {
   const queryClient = useQueryClient();
   const [clientErrors, setClientErrors] = useState<FieldErrors | null>(null);
+  const [file, setFile] = useState<File | null>(null);
   const create = useMutation({
-    mutationFn: (request: CreateTargetRequest) => createTarget(groupId, request),
+    mutationFn: (
+      request: CreateTargetRequest | { upload: File; name: string; charge?: number; multiplicity?: number },
+    ) =>
+      "upload" in request ? uploadTarget(groupId, request, request.upload) : createTarget(groupId, request),
     onSuccess: () => queryClient.invalidateQueries({ queryKey: targetQueries.all }),
   });
   const visible = visibleFieldErrors(clientErrors, create.error);
@@ -36,7 +40,24 @@ export function AddTargetForm({ groupId }: { groupId: string }) {
   const xyzError =
     visible.errors.xyz ??
     (visible.unplaced && hasStatus(create.error, 422) ? create.error?.message : undefined);
-  const otherError = visible.unplaced && !hasStatus(create.error, 422) ? create.error : null;
+  // An upload's refusals (413 too large, 422 naming the line) belong beside the file.
+  const fileError =
+    file && create.error && (hasStatus(create.error, 413) || hasStatus(create.error, 422))
+      ? (visible.errors.file ?? visible.errors.xyz ?? create.error.message)
+      : undefined;
+  const otherError =
+    visible.unplaced && !hasStatus(create.error, 422) && !(file && hasStatus(create.error, 413))
+      ? create.error
+      : null;
+
+  function onDrop(event: DragEvent<HTMLFormElement>) {
+    event.preventDefault();
+    const dropped = event.dataTransfer.files[0];
+    if (dropped) {
+      create.reset();
+      setFile(dropped);
+    }
+  }
 
   function handleSubmit(event: FormEvent<HTMLFormElement>) {
     event.preventDefault();
@@ -44,7 +65,8 @@ export function AddTargetForm({ groupId }: { groupId: string }) {
     const fields = readTextFields(form);
     const checked = validateWith(createTargetRequestSchema, {
       name: fields.name ?? "",
-      xyz: fields.xyz ?? "",
+      // With a file chosen the server reads the file; the text only has to pass the check here.
+      xyz: file ? "file" : (fields.xyz ?? ""),
       charge: wholeNumber(fields.charge),
       multiplicity: wholeNumber(fields.multiplicity),
     });
@@ -54,12 +76,25 @@ export function AddTargetForm({ groupId }: { groupId: string }) {
       return;
     }
     setClientErrors(null);
-    create.mutate(checked.data, { onSuccess: () => form.reset() });
+    const done = {
+      onSuccess: () => {
+        form.reset();
+        setFile(null);
+      },
+    };
+    if (file) {
+      const { name, charge, multiplicity } = checked.data;
+      create.mutate({ upload: file, name, charge, multiplicity }, done);
+    } else {
+      create.mutate(checked.data, done);
+    }
   }
 
   return (
     <form
       onSubmit={handleSubmit}
+      onDragOver={(event) => event.preventDefault()}
+      onDrop={onDrop}
       noValidate
       aria-label="Add a target from XYZ"
       className="flex flex-col gap-4"
@@ -88,6 +123,28 @@ export function AddTargetForm({ groupId }: { groupId: string }) {
             spellCheck={false}
             className="font-mono text-xs"
             placeholder={XYZ_EXAMPLE}
+          />
+        )}
+      </Field>
+      <Field
+        label="XYZ file"
+        error={fileError}
+        hint={
+          file
+            ? `${file.name} (${file.size} bytes) will be uploaded instead of the text above.`
+            : "Or drop an XYZ file onto this form, or choose one (at most 256 KiB): Sigmaflow reads it on the server."
+        }
+      >
+        {(control) => (
+          <Input
+            {...control}
+            type="file"
+            accept=".xyz,text/plain,chemical/x-xyz"
+            className="h-auto py-1.5"
+            onChange={(event) => {
+              create.reset();
+              setFile(event.target.files?.[0] ?? null);
+            }}
           />
         )}
       </Field>

@@ -258,6 +258,16 @@ describe("codes: export and import", () => {
     ]);
   });
 
+  it("imports a file holding one bare definition as a document of one", async () => {
+    signIn();
+    const state = installCodesApi([orbitals]);
+    renderApp(codesPath);
+    const file = new File([JSON.stringify(solver)], "kmatrix-solver.json", { type: "application/json" });
+    await userEvent.upload(await screen.findByLabelText("Import file…"), file);
+    expect(await screen.findByText(/Imported 1 definition from kmatrix-solver.json/)).toBeInTheDocument();
+    expect(state.imports).toEqual([{ format: "sigmaflow-code-definitions", version: 1, codes: [solver] }]);
+  });
+
   it("refuses a file that is not an export document, naming the path, and sends nothing", async () => {
     signIn();
     const state = installCodesApi([orbitals]);

@@ -31,7 +31,7 @@ export type ReadImport = { ok: true; document: CodeExport } | { ok: false; probl
 const zodProblems = (error: z.ZodError): ImportProblem[] =>
   error.issues.map((issue) => ({ path: issue.path.map(String).join("."), message: issue.message }));
 
-/** Reads an export file: JSON, then the import contract (1 to 100 definitions). */
+/** Reads an export file, or a file of one definition: JSON, then the import contract (1 to 100 definitions). */
 export async function readImportFile(file: File): Promise<ReadImport> {
   if (file.size > MAX_IMPORT_BYTES) {
     return {
@@ -45,7 +45,12 @@ export async function readImportFile(file: File): Promise<ReadImport> {
   } catch (error) {
     return { ok: false, problems: [{ path: "", message: `Not JSON: ${(error as Error).message}` }] };
   }
-  const checked = codeImportSchema.safeParse(parsed);
+  // A file holding one bare definition (as the API registers it) is taken as a document of one.
+  const isBare =
+    typeof parsed === "object" && parsed !== null && !Array.isArray(parsed) && !("format" in parsed);
+  const checked = codeImportSchema.safeParse(
+    isBare ? { format: "sigmaflow-code-definitions", version: 1, codes: [parsed] } : parsed,
+  );
   if (!checked.success) return { ok: false, problems: zodProblems(checked.error) };
   return { ok: true, document: checked.data };
 }

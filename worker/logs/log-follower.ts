@@ -16,7 +16,7 @@
 import { eq } from "drizzle-orm";
 import { runs } from "../../server/db/schema";
 import type { WorkerContext } from "../context";
-import { loadRun, planOf, type RunRow } from "../run-runtime";
+import { planOf, type RunRow } from "../run-runtime";
 import type { RemoteSession } from "../ssh/pool";
 import type { RemoteStream, RemoteStreamEnd } from "../ssh/remote-stream";
 import { appendLogChunk, type LogPosition } from "./log-store";
@@ -240,19 +240,20 @@ export class LogFollowers {
   }
 
   private async start(run: RunRow, session: RemoteSession): Promise<boolean> {
-    const fresh = await loadRun(this.ctx, run.id);
-    if (fresh?.state !== "running") return false;
-    const plan = planOf(fresh);
+    // The poll's copy of the row: if a chunk was stored since, the stream's first append finds the
+    // offset moved, takes the stored position and skips those bytes (no query per poll for logs that
+    // wait for a spare channel).
+    const plan = planOf(run);
     const position: LogPosition = {
-      offsetBytes: fresh.logOffsetBytes,
-      seq: fresh.logSeq,
-      progress: storedProgress(fresh.progress),
+      offsetBytes: run.logOffsetBytes,
+      seq: run.logSeq,
+      progress: storedProgress(run.progress),
     };
     const log = new FollowedLog(this.ctx, run.id, compileOutputRules(plan), position, this.options, (end) =>
       this.gone(log, end),
     );
     const stream = await session.openStream(
-      followCommand(`${fresh.remoteDir}/${plan.logName}`, position.offsetBytes),
+      followCommand(`${run.remoteDir}/${plan.logName}`, position.offsetBytes),
       { onData: (bytes) => log.receive(bytes), onEnd: (end) => log.ended(end) },
       { spareSlots: this.options.spareSlots },
     );

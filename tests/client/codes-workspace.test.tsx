@@ -416,4 +416,35 @@ describe("recipes: the builder", () => {
       },
     ]);
   });
+
+  it("copies a saved recipe into the builder, stages and codes included", async () => {
+    signIn();
+    const state = installCodesApi([orbitals, solver]);
+    const [scfId, solverId] = state.codes.map((c) => c.id);
+    state.recipes.push({
+      id: "2ec10000-0000-4000-8000-000000000002",
+      groupId: KESTREL_ID,
+      name: "orbitals-to-kmatrix",
+      description: "Orbitals, then K-matrices",
+      stages: [
+        { name: "orbitals", codeId: scfId!, codeName: "orbital-scf", codeVersion: "2.0" },
+        { name: "solve", codeId: solverId!, codeName: "kmatrix-solver", codeVersion: "1.0" },
+      ],
+      createdAt: CREATED,
+    });
+    renderApp(codesPath);
+    const saved = await screen.findByRole("list", { name: "Stages of orbitals-to-kmatrix" });
+    expect(within(saved).getByRole("listitem", { name: "From stage 1 to stage 2" })).toHaveTextContent(
+      "orbitals.dat",
+    );
+    await userEvent.click(screen.getByRole("button", { name: "Copy orbitals-to-kmatrix into a new recipe" }));
+    expect(screen.getByLabelText("Recipe name")).toHaveValue("orbitals-to-kmatrix-copy");
+    expect(screen.getByLabelText("Stage 1 name")).toHaveValue("orbitals");
+    expect(screen.getByLabelText("Stage 2 code")).toHaveValue(solverId);
+    await userEvent.click(screen.getByRole("button", { name: "Remove stage 2" }));
+    expect(screen.queryByLabelText("Stage 2 code")).not.toBeInTheDocument();
+    expect(screen.getByRole("list", { name: "Stages of the new recipe" })).not.toHaveTextContent(
+      "orbitals.dat",
+    );
+  });
 });

@@ -41,12 +41,28 @@ function fieldMessages(error: unknown): Record<string, string> {
 
 type DraftStage = { key: number; name: string; codeId: string };
 
-function RecipeBuilder({ groupId, codes, onDone }: { groupId: string; codes: Code[]; onDone: () => void }) {
+type BuilderStart = { name: string; description: string; stages: { name: string; codeId: string }[] };
+
+const EMPTY_START: BuilderStart = { name: "", description: "", stages: [{ name: "stage-1", codeId: "" }] };
+
+function RecipeBuilder({
+  groupId,
+  codes,
+  start,
+  onDone,
+}: {
+  groupId: string;
+  codes: Code[];
+  start: BuilderStart;
+  onDone: () => void;
+}) {
   const queryClient = useQueryClient();
-  const [name, setName] = useState("");
-  const [description, setDescription] = useState("");
-  const [nextKey, setNextKey] = useState(2);
-  const [stages, setStages] = useState<DraftStage[]>([{ key: 1, name: "stage-1", codeId: "" }]);
+  const [name, setName] = useState(start.name);
+  const [description, setDescription] = useState(start.description);
+  const [nextKey, setNextKey] = useState(start.stages.length + 1);
+  const [stages, setStages] = useState<DraftStage[]>(() =>
+    start.stages.map((stage, index) => ({ key: index + 1, ...stage })),
+  );
   const create = useMutation({
     mutationFn: () =>
       createRecipe(groupId, {
@@ -85,7 +101,7 @@ function RecipeBuilder({ groupId, codes, onDone }: { groupId: string; codes: Cod
     <Card>
       <CardHeader
         title="New recipe"
-        description="Stages run one after another on one host; each stage's collected files are copied into the next stage's folder."
+        description="Stages run one after another on one host; each stage's collected files are copied into the next stage's folder. A saved recipe does not change: to change one, copy it into a new recipe."
       />
       <CardBody>
         <form
@@ -211,10 +227,12 @@ function RecipeItem({
   recipe,
   byId,
   canWrite,
+  onCopy,
 }: {
   recipe: Recipe;
   byId: Map<string, Code>;
   canWrite: boolean;
+  onCopy: (start: BuilderStart) => void;
 }) {
   const queryClient = useQueryClient();
   const [confirming, setConfirming] = useState(false);
@@ -242,9 +260,28 @@ function RecipeItem({
           </p>
         </div>
         {canWrite ? (
-          <Button size="sm" variant="ghost-danger" onClick={() => setConfirming(true)}>
-            Delete
-          </Button>
+          <div className="flex gap-1">
+            <Button
+              size="sm"
+              variant="ghost"
+              aria-label={`Copy ${recipe.name} into a new recipe`}
+              onClick={() =>
+                onCopy({
+                  name: `${recipe.name}-copy`,
+                  description: recipe.description,
+                  stages: recipe.stages.map((stage) => ({
+                    name: stage.name,
+                    codeId: byId.has(stage.codeId) ? stage.codeId : "",
+                  })),
+                })
+              }
+            >
+              Copy
+            </Button>
+            <Button size="sm" variant="ghost-danger" onClick={() => setConfirming(true)}>
+              Delete
+            </Button>
+          </div>
         ) : null}
       </div>
       <StageChain stages={chain} label={`Stages of ${recipe.name}`} />
@@ -270,7 +307,8 @@ function RecipeItem({
 export function RecipesPanel({ groupId, canWrite }: { groupId: string; canWrite: boolean }) {
   const recipes = useQuery(recipeQueries.list(groupId));
   const codes = useQuery(codeQueries.list(groupId));
-  const [building, setBuilding] = useState(false);
+  const [building, setBuilding] = useState<{ key: number; start: BuilderStart } | null>(null);
+  const build = (start: BuilderStart) => setBuilding({ key: (building?.key ?? 0) + 1, start });
   const codeList = codes.data?.codes ?? [];
   const byId = new Map(codeList.map((code) => [code.id, code]));
   return (
@@ -281,7 +319,7 @@ export function RecipesPanel({ groupId, canWrite }: { groupId: string; canWrite:
           description="Chains of stages, each running one registered code version."
           actions={
             canWrite && !building ? (
-              <Button size="sm" onClick={() => setBuilding(true)} disabled={codeList.length === 0}>
+              <Button size="sm" onClick={() => build(EMPTY_START)} disabled={codeList.length === 0}>
                 New recipe
               </Button>
             ) : null
@@ -301,14 +339,20 @@ export function RecipesPanel({ groupId, canWrite }: { groupId: string; canWrite:
           ) : (
             <ul>
               {recipes.data.recipes.map((recipe) => (
-                <RecipeItem key={recipe.id} recipe={recipe} byId={byId} canWrite={canWrite} />
+                <RecipeItem key={recipe.id} recipe={recipe} byId={byId} canWrite={canWrite} onCopy={build} />
               ))}
             </ul>
           )}
         </CardBody>
       </Card>
       {building ? (
-        <RecipeBuilder groupId={groupId} codes={codeList} onDone={() => setBuilding(false)} />
+        <RecipeBuilder
+          key={building.key}
+          groupId={groupId}
+          codes={codeList}
+          start={building.start}
+          onDone={() => setBuilding(null)}
+        />
       ) : null}
     </div>
   );

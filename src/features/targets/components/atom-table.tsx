@@ -41,7 +41,7 @@ type AtomTableProps = {
 export function AtomTable({ atoms, errors, onChange }: AtomTableProps) {
   const update = (index: number, patch: Partial<DraftAtom>) =>
     onChange(atoms.map((atom, i) => (i === index ? { ...atom, ...patch } : atom)));
-  const cell = "px-2 py-1.5 align-top";
+  const cell = "px-1.5 py-1.5 align-top";
   return (
     <div>
       <div className="overflow-x-auto rounded-xl border border-ink-100 bg-white">
@@ -85,7 +85,7 @@ export function AtomTable({ atoms, errors, onChange }: AtomTableProps) {
               return (
                 <tr key={atom.key}>
                   <td className={cn(cell, "pt-3 font-mono text-xs text-ink-500")}>{n}</td>
-                  <td className={cn(cell, "w-20")}>
+                  <td className={cn(cell, "w-16 min-w-16")}>
                     <Input
                       aria-label={`Atom ${n} element`}
                       value={atom.symbol}
@@ -97,7 +97,7 @@ export function AtomTable({ atoms, errors, onChange }: AtomTableProps) {
                     />
                     <ErrorText id={errorId("symbol")} text={fieldError("symbol")} />
                   </td>
-                  <td className={cn(cell, "min-w-56")}>
+                  <td className={cn(cell, "min-w-44")}>
                     <Select
                       aria-label={`Atom ${n} isotope`}
                       controlSize="sm"
@@ -119,13 +119,13 @@ export function AtomTable({ atoms, errors, onChange }: AtomTableProps) {
                     </Select>
                   </td>
                   {(["x", "y", "z"] as const).map((axis) => (
-                    <td key={axis} className={cn(cell, "w-32")}>
+                    <td key={axis} className={cn(cell, "min-w-26")}>
                       <Input
                         aria-label={`Atom ${n} ${axis} (Å)`}
                         value={atom[axis]}
                         inputMode="decimal"
                         onChange={(event) => update(i, { [axis]: event.target.value })}
-                        className="h-8 font-mono text-xs"
+                        className="h-8 px-2 font-mono text-xs"
                         autoComplete="off"
                         {...aria(axis)}
                       />

@@ -44,7 +44,11 @@ function draw(viewer: Viewer, inspection: TargetInspection) {
       dashed: true,
     });
   }
+  // The container may have been laid out after the viewer measured it.
+  viewer.resize();
   viewer.zoomTo();
+  // zoomTo frames the atoms only (minimumZoomToDistance below); step back so the axis arrows fit too.
+  viewer.zoom(0.7);
   viewer.render();
 }
 
@@ -74,7 +78,11 @@ export function MoleculeView({ inspection }: { inspection: TargetInspection }) {
     import("3dmol")
       .then((mol) => {
         if (cancelled || !container.current) return;
-        viewer.current = mol.createViewer(container.current, { backgroundColor: "white" });
+        viewer.current = mol.createViewer(container.current, {
+          backgroundColor: "white",
+          // 3Dmol frames at least 5 Å by default, which leaves a small molecule a speck.
+          minimumZoomToDistance: 1,
+        });
         draw(viewer.current, latest.current);
         setView({ state: "ready" });
       })

@@ -155,7 +155,7 @@ export function TargetEditor({ groupId, target, onSaved }: TargetEditorProps) {
         onSubmit={onSubmit}
         noValidate
         aria-label={target ? `Edit ${target.name}` : "New target"}
-        className="grid gap-6 xl:grid-cols-[minmax(0,3fr)_minmax(0,2fr)]"
+        className="grid gap-6 xl:grid-cols-[minmax(0,2fr)_minmax(22rem,1fr)]"
       >
         <div className="flex flex-col gap-4">
           <div className="grid gap-4 sm:grid-cols-[minmax(0,1fr)_7rem_9rem]">

@@ -31,6 +31,10 @@ function install() {
         { status: 201 },
       );
     }),
+    http.patch("/api/targets/:targetId", async ({ request }) => {
+      posts.push(await request.json());
+      return HttpResponse.json(waterDetail());
+    }),
     http.post("/api/targets/:targetId/isotopologues", async ({ request }) => {
       posts.push(await request.json());
       const created: TargetDetail = {
@@ -163,5 +167,22 @@ describe("target editor", () => {
         { atom: 3, massNumber: 2 },
       ],
     });
+  });
+
+  it("edits a target's current version and saves it as a new version", async () => {
+    const { posts } = install();
+    const { user } = renderApp(`${targetsPath}/${TARGET_IDS.water}`);
+    await user.click(await screen.findByRole("button", { name: "Edit" }));
+    const form = screen.getByRole("form", { name: "Edit Water" });
+    expect(within(form).getByLabelText("Atom 2 x (Å)")).toHaveValue("0.757220");
+    const x = within(form).getByLabelText("Atom 3 x (Å)");
+    await user.clear(x);
+    await user.type(x, "-0.8");
+    // One O–H bond longer: the mirror plane between the hydrogens is gone.
+    await waitFor(() => expect(derivedValue("Point group / Abelian subgroup")).toBe("Cs / Cs"));
+    await user.click(within(form).getByRole("button", { name: "Save as a new version" }));
+    await waitFor(() => expect(posts).toHaveLength(1));
+    expect(posts[0]).toMatchObject({ name: "Water", charge: 0, multiplicity: 1 });
+    expect((posts[0] as { atoms: { xAngstrom: number }[] }).atoms[2]!.xAngstrom).toBe(-0.8);
   });
 });

@@ -307,9 +307,19 @@ describe("the workspace for a newcomer", () => {
     // --- The live view of the run. ---
     await page.getByRole("link", { name: RUN_NAME }).click();
     await page.waitForURL(new RegExp(`/runs/${runId}$`));
+    await expect
+      .poll(() => page.getByRole("heading", { level: 1, name: RUN_NAME }).isVisible(), WAIT)
+      .toBe(true);
     await expect.poll(() => page.getByRole("status", { name: "Updates: live" }).isVisible(), WAIT).toBe(true);
     const state = () => page.getByText("State", { exact: true }).first().locator("xpath=..").textContent();
     await expect.poll(state, WAIT).toMatch(/queued|staging|submitted|running|collecting|held|done|failed/);
+    // The page shows the state the server holds (polled together: the run moves on while we look).
+    await expect
+      .poll(async () => {
+        const held = (await api("GET", `/api/runs/${runId}`)).body.state as string;
+        return (await state())?.includes(held) ?? false;
+      }, WAIT)
+      .toBe(true);
     await screenshot(page, "newcomer-live-view");
   });
 });

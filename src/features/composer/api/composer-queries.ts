@@ -1,25 +1,19 @@
 import {
-  codeSchema,
   hostListSchema,
   type RunPreviewRequest,
   type RunSpecRequest,
   recipeListSchema,
-  recipeSchema,
   runPreviewSchema,
   runSummarySchema,
   targetListSchema,
 } from "@shared/schemas";
 import { queryOptions } from "@tanstack/react-query";
 import { api } from "@/lib/api-client";
+import { fetchStageSchemas } from "@/lib/stage-schemas";
 
 const group = (groupId: string) => `/api/groups/${encodeURIComponent(groupId)}`;
 
-export type StageSchema = {
-  stage: string;
-  codeName: string;
-  codeVersion: string;
-  parameters: Record<string, unknown>;
-};
+export type { StageSchema } from "@/lib/stage-schemas";
 
 export const composerQueries = {
   all: ["composer"] as const,
@@ -42,24 +36,7 @@ export const composerQueries = {
   stageSchemas: (recipeId: string) =>
     queryOptions({
       queryKey: [...composerQueries.all, "stage-schemas", recipeId] as const,
-      queryFn: async ({ signal }): Promise<StageSchema[]> => {
-        const recipe = await api.get(`/api/recipes/${encodeURIComponent(recipeId)}`, recipeSchema, {
-          signal,
-        });
-        return Promise.all(
-          recipe.stages.map(async (stage) => {
-            const code = await api.get(`/api/codes/${encodeURIComponent(stage.codeId)}`, codeSchema, {
-              signal,
-            });
-            return {
-              stage: stage.name,
-              codeName: stage.codeName,
-              codeVersion: stage.codeVersion,
-              parameters: code.definition.parameters,
-            };
-          }),
-        );
-      },
+      queryFn: ({ signal }) => fetchStageSchemas(recipeId, signal),
       staleTime: Number.POSITIVE_INFINITY,
     }),
   /** What submitting this spec would cost, render and reuse; the server stores nothing. */

@@ -1,11 +1,9 @@
 import {
-  codeSchema,
   FINAL_RUN_STATES,
   hostListSchema,
   memberListSchema,
   type RunSummary,
   recipeListSchema,
-  recipeSchema,
   runDetailSchema,
   runListSchema,
   runLogSchema,
@@ -13,6 +11,7 @@ import {
 } from "@shared/schemas";
 import { keepPreviousData, queryOptions } from "@tanstack/react-query";
 import { api } from "@/lib/api-client";
+import { fetchStageSchemas } from "@/lib/stage-schemas";
 import { appendLogChunks, bytesFromBase64, EMPTY_LOG_TEXT, type LogText } from "../log-text";
 import type { RunFilterOptions } from "../table/run-filters";
 import { DEFAULT_VIEW, queryFromView, type RunListView, searchFromView } from "../table/run-list-params";
@@ -91,24 +90,7 @@ export const runQueries = {
   stageParameters: (recipeId: string) =>
     queryOptions({
       queryKey: [...runQueries.all, "stage-parameters", recipeId] as const,
-      queryFn: async ({ signal }) => {
-        const recipe = await api.get(`/api/recipes/${encodeURIComponent(recipeId)}`, recipeSchema, {
-          signal,
-        });
-        return Promise.all(
-          recipe.stages.map(async (stage) => {
-            const code = await api.get(`/api/codes/${encodeURIComponent(stage.codeId)}`, codeSchema, {
-              signal,
-            });
-            return {
-              stage: stage.name,
-              codeName: stage.codeName,
-              codeVersion: stage.codeVersion,
-              parameters: code.definition.parameters,
-            };
-          }),
-        );
-      },
+      queryFn: ({ signal }) => fetchStageSchemas(recipeId, signal),
       staleTime: Number.POSITIVE_INFINITY,
     }),
   /**

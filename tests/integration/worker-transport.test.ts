@@ -452,9 +452,14 @@ describe("direct scheduler", () => {
     );
     await directScheduler.cancel(session, { ...job, jobId });
     // KILL is sent before cancel returns; on a busy machine the process takes a moment to be gone.
-    await waitFor("the stubborn child to be gone", () => isLive(childPid), (live) => !live, {
-      timeoutMs: 5000,
-    });
+    await waitFor(
+      "the stubborn child to be gone",
+      () => isLive(childPid),
+      (live) => !live,
+      {
+        timeoutMs: 5000,
+      },
+    );
     expect((await stateOf({ ...job, jobId }))?.state).toBe("cancelled");
     expect(await liveInSession(Number(jobId))).toEqual([]);
   });

@@ -185,7 +185,7 @@ async function openComposer() {
   await user.selectOptions(screen.getByLabelText("Recipe"), RECIPE_ID);
   await user.selectOptions(await screen.findByLabelText("Host"), HOST_ID);
   // The stage's fields appear once its code is read; the unit comes from the schema's description.
-  await screen.findByLabelText("polarizabilityBohr3 (bohr³)");
+  await screen.findByLabelText("Polarizability (bohr³)");
   return rendered;
 }
 
@@ -196,21 +196,41 @@ describe("run composer", () => {
     const lmax = screen.getByLabelText("lmax");
     // Defaults are pre-filled from the schema.
     expect(lmax).toHaveValue("6");
-    expect(screen.getByLabelText("model")).toHaveValue("static-polarization");
+    expect(screen.getByLabelText("Model")).toHaveValue("static-polarization");
     await user.clear(lmax);
     await user.type(lmax, "40");
-    await user.type(screen.getByLabelText("polarizabilityBohr3 (bohr³)"), "9.6");
+    await user.type(screen.getByLabelText("Polarizability (bohr³)"), "9.6");
     await waitFor(() => expect(lmax).toHaveAttribute("aria-invalid", "true"));
     const errorId = lmax
       .getAttribute("aria-describedby")!
       .split(" ")
       .find((id) => id.endsWith("-error"))!;
-    expect(document.getElementById(errorId)).toHaveTextContent("must be <= 12");
+    // The schema's "maximum: 12" as a sentence, and the hint's bounds as a sentence too.
+    expect(document.getElementById(errorId)).toHaveTextContent(/^At most 12\.$/);
+    const hintId = lmax
+      .getAttribute("aria-describedby")!
+      .split(" ")
+      .find((id) => id.endsWith("-hint"))!;
+    expect(document.getElementById(hintId)).toHaveTextContent(
+      /^Highest partial wave l\. A whole number from 0 to 12\. Default: 6\.$/,
+    );
+    // A bound with a unit names it.
+    const polarizability = screen.getByLabelText("Polarizability (bohr³)");
+    await user.clear(polarizability);
+    await user.type(polarizability, "2000");
+    await waitFor(() => expect(polarizability).toHaveAttribute("aria-invalid", "true"));
+    const polarizabilityError = polarizability
+      .getAttribute("aria-describedby")!
+      .split(" ")
+      .find((id) => id.endsWith("-error"))!;
+    expect(document.getElementById(polarizabilityError)).toHaveTextContent(/^At most 1000 bohr³\.$/);
+    // The collision energies are labelled in words with their unit.
+    expect(screen.getByText("Energies (eV)")).toBeInTheDocument();
     expect(screen.getByRole("button", { name: "Submit run" })).toBeDisabled();
     // The required parameter left empty is named at its field too.
-    await user.clear(screen.getByLabelText("polarizabilityBohr3 (bohr³)"));
+    await user.clear(screen.getByLabelText("Polarizability (bohr³)"));
     await waitFor(() =>
-      expect(screen.getByLabelText("polarizabilityBohr3 (bohr³)")).toHaveAttribute("aria-invalid", "true"),
+      expect(screen.getByLabelText("Polarizability (bohr³)")).toHaveAttribute("aria-invalid", "true"),
     );
     await user.click(screen.getByRole("button", { name: "Submit run" }));
     expect(submissions).toHaveLength(0);
@@ -220,7 +240,7 @@ describe("run composer", () => {
   it("shows the cost and balance in core-hours before submitting, then opens the new run", async () => {
     const { previews, submissions } = setUp();
     const { user, router } = await openComposer();
-    await user.type(screen.getByLabelText("polarizabilityBohr3 (bohr³)"), "9.6");
+    await user.type(screen.getByLabelText("Polarizability (bohr³)"), "9.6");
     await user.type(screen.getByLabelText("Cores"), "4");
     await user.type(screen.getByLabelText("Wall-time limit (min)"), "90");
     const summary = await screen.findByLabelText("Allocation cost");
@@ -245,8 +265,8 @@ describe("run composer", () => {
   it("fills the energies from the grid builder (log spacing, eV)", async () => {
     const { previews } = setUp();
     const { user } = await openComposer();
-    await user.type(screen.getByLabelText("polarizabilityBohr3 (bohr³)"), "9.6");
-    const grid = screen.getByRole("group", { name: /energiesEv: energy grid/ });
+    await user.type(screen.getByLabelText("Polarizability (bohr³)"), "9.6");
+    const grid = screen.getByRole("group", { name: /Energies: energy grid/ });
     for (const [label, value] of [
       ["Start (eV)", "1"],
       ["End (eV)", "10"],
@@ -275,7 +295,7 @@ describe("run composer", () => {
       },
     });
     const { user } = await openComposer();
-    await user.type(screen.getByLabelText("polarizabilityBohr3 (bohr³)"), "9.6");
+    await user.type(screen.getByLabelText("Polarizability (bohr³)"), "9.6");
     const offer = await screen.findByRole("region", { name: "These inputs already ran" });
     expect(offer).toHaveTextContent("“Water elastic (earlier)”");
     expect(offer).toHaveTextContent("results: derived");

@@ -238,14 +238,14 @@ describe("the workspace for a newcomer", () => {
     await expect.poll(() => hostSelect.locator(`option[value="${hostId}"]`).count(), WAIT).toBe(1);
     await hostSelect.selectOption(hostId);
 
-    const polarizability = composer.getByLabel(/^polarizabilityBohr3\b/);
+    const polarizability = composer.getByLabel("Polarizability (bohr³)", { exact: true });
     await expect.poll(() => polarizability.count(), WAIT).toBe(1);
     // The schema allows 0 to 1000 bohr³; 2000 is out of range.
     await polarizability.fill("2000");
     await composer.getByLabel("Run name").click();
     await expect.poll(() => polarizability.getAttribute("aria-invalid"), WAIT).toBe("true");
     const message = await describedByText(polarizability);
-    expect(message).toMatch(/1000/);
+    expect(message).toMatch(/At most 1000 bohr³\./);
     // The message sits in the same field as the input, under its label.
     const fieldBox = polarizability.locator("xpath=..");
     expect(await fieldBox.getByRole("alert").textContent()).toMatch(/1000/);

@@ -1,3 +1,5 @@
+import { wordsOfName } from "./field-text";
+
 /**
  * The fields of a stage's parameter form, read from its code's JSON Schema: one field per top-level
  * property, with its label, unit, description and default. Anything the form cannot draw as a plain
@@ -7,13 +9,21 @@
 export type FieldKind =
   | { type: "enum"; options: readonly (string | number | boolean | null)[] }
   | { type: "boolean" }
-  | { type: "number"; integer: boolean; minimum?: number; maximum?: number }
+  | {
+      type: "number";
+      integer: boolean;
+      minimum?: number;
+      maximum?: number;
+      exclusiveMinimum?: number;
+      exclusiveMaximum?: number;
+    }
   | { type: "string"; maxLength?: number }
   | { type: "energy-grid"; maxItems?: number }
   | { type: "json" };
 
 export type SchemaField = {
   name: string;
+  /** The schema's `title`, else the name in words without its unit suffix ("Polarizability"). */
   label: string;
   kind: FieldKind;
   required: boolean;
@@ -67,6 +77,8 @@ function kindOf(name: string, property: Record<string, unknown>, unit: string | 
         integer: property.type === "integer",
         minimum: numberOrUndefined(property.minimum),
         maximum: numberOrUndefined(property.maximum),
+        exclusiveMinimum: numberOrUndefined(property.exclusiveMinimum),
+        exclusiveMaximum: numberOrUndefined(property.exclusiveMaximum),
       };
     case "string":
       return { type: "string", maxLength: numberOrUndefined(property.maxLength) };
@@ -85,7 +97,10 @@ export function fieldsOfSchema(schema: Record<string, unknown>): SchemaField[] {
       const unit = unitOf(name, property);
       return {
         name,
-        label: typeof property.title === "string" ? property.title : name,
+        label:
+          typeof property.title === "string" && property.title.trim()
+            ? property.title.trim()
+            : wordsOfName(name),
         kind: kindOf(name, property, unit),
         required: required.has(name),
         unit,

@@ -186,6 +186,7 @@ export function ComposerForm({ groupId, onSubmitted, onOpenRun }: Props) {
             label="Target"
             hint="Its latest version is used and kept with the run."
             error={serverFor("targetId")}
+            className="sm:col-span-2"
           >
             {(wiring) => (
               <Select {...wiring} {...register("targetId")}>
@@ -203,7 +204,11 @@ export function ComposerForm({ groupId, onSubmitted, onOpenRun }: Props) {
               </Select>
             )}
           </Field>
-          <Field label="Recipe" error={formState.errors.recipeId?.message ?? serverFor("recipeId")}>
+          <Field
+            label="Recipe"
+            error={formState.errors.recipeId?.message ?? serverFor("recipeId")}
+            className="sm:col-span-2"
+          >
             {(wiring) => (
               <Select {...wiring} {...register("recipeId")}>
                 <option value="">Choose a recipe…</option>
@@ -215,19 +220,19 @@ export function ComposerForm({ groupId, onSubmitted, onOpenRun }: Props) {
               </Select>
             )}
           </Field>
-          <Field label="Host" error={formState.errors.hostId?.message ?? serverFor("hostId")}>
-            {(wiring) => (
-              <Select {...wiring} {...register("hostId")}>
-                <option value="">Choose a host…</option>
-                {(hosts.data?.hosts ?? []).map((host) => (
-                  <option key={host.id} value={host.id} disabled={!host.hostKeyConfirmed}>
-                    {host.name} ({host.scheduler}){host.hostKeyConfirmed ? "" : " — host key not confirmed"}
-                  </option>
-                ))}
-              </Select>
-            )}
-          </Field>
-          <div className="grid grid-cols-2 gap-3 sm:col-span-2">
+          <div className="grid gap-3 sm:col-span-2 sm:grid-cols-3">
+            <Field label="Host" error={formState.errors.hostId?.message ?? serverFor("hostId")}>
+              {(wiring) => (
+                <Select {...wiring} {...register("hostId")}>
+                  <option value="">Choose a host…</option>
+                  {(hosts.data?.hosts ?? []).map((host) => (
+                    <option key={host.id} value={host.id} disabled={!host.hostKeyConfirmed}>
+                      {host.name} ({host.scheduler}){host.hostKeyConfirmed ? "" : " — host key not confirmed"}
+                    </option>
+                  ))}
+                </Select>
+              )}
+            </Field>
             <Field
               label="Cores"
               hint="Empty: the most any stage's code asks for."

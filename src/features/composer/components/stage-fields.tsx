@@ -3,6 +3,7 @@ import { Field } from "@/components/ui/field";
 import { Input, Textarea } from "@/components/ui/input";
 import { Select } from "@/components/ui/select";
 import type { StageSchema } from "../api/composer-queries";
+import { errorSentence, hintOfField, labelOfField } from "../field-text";
 import type { SchemaField } from "../parameter-fields";
 import { EnergyGridBuilder } from "./energy-grid-builder";
 
@@ -17,29 +18,8 @@ export type ComposerValues = {
   parameters: Record<string, Record<string, unknown>>;
 };
 
-const labelOf = (field: SchemaField) => (field.unit ? `${field.label} (${field.unit})` : field.label);
-
-function hintOf(field: SchemaField) {
-  const parts = [field.description];
-  if (field.kind.type === "number") {
-    const { minimum, maximum, integer } = field.kind;
-    const range =
-      minimum !== undefined && maximum !== undefined
-        ? `${minimum} to ${maximum}`
-        : minimum !== undefined
-          ? `at least ${minimum}`
-          : maximum !== undefined
-            ? `at most ${maximum}`
-            : null;
-    const bounds = [integer ? "Whole number" : null, range].filter(Boolean).join(", ");
-    parts.push(bounds ? `${bounds}.` : null);
-  }
-  if (field.defaultValue !== undefined && field.kind.type !== "energy-grid") {
-    parts.push(`Default ${JSON.stringify(field.defaultValue)}.`);
-  }
-  if (field.required) parts.push("Required.");
-  return parts.filter(Boolean).join(" ");
-}
+const labelOf = labelOfField;
+const hintOf = hintOfField;
 
 type Props = {
   stage: StageSchema;
@@ -67,7 +47,8 @@ export function StageFields({ stage, index, fields, register, control, errors, s
       <div className="grid gap-3 sm:grid-cols-2">
         {fields.map((field) => {
           const name = `parameters.${stage.stage}.${field.name}` as const;
-          const error = stageErrors[field.name]?.message ?? serverErrors[field.name];
+          const message = stageErrors[field.name]?.message ?? serverErrors[field.name];
+          const error = message ? errorSentence(message, field.unit) : undefined;
           const hint = hintOf(field);
           if (field.kind.type === "energy-grid") {
             const { maxItems } = field.kind;
@@ -126,7 +107,7 @@ export function StageFields({ stage, index, fields, register, control, errors, s
               <Field
                 key={field.name}
                 label={labelOf(field)}
-                hint={`${hint} JSON.`}
+                hint={hint ? `${hint} Written as JSON.` : "Written as JSON."}
                 error={error}
                 className="sm:col-span-2"
               >

@@ -16,10 +16,11 @@ import { ErrorState } from "@/components/ui/error-state";
 import { Notice } from "@/components/ui/notice";
 import { TableSkeleton } from "@/components/ui/skeleton";
 import { Table, TBody, TD, TH, THead, TR } from "@/components/ui/table";
-import { formatDateTime } from "@/lib/format";
+import { cn } from "@/lib/cn";
 import { paths } from "@/lib/paths";
 import { isFinished, runQueries } from "../api/run-queries";
 import { formatCoreHours as coreHours } from "../format-core-hours";
+import { formatUtcMinute, formatUtcSecond } from "../format-time";
 import { BulkActions } from "../table/bulk-actions";
 import { hasFilters, type RunFilterOptions, RunFilters } from "../table/run-filters";
 import { type RunListView, searchFromView, viewFromSearch } from "../table/run-list-params";
@@ -36,6 +37,15 @@ const NO_OPTIONS: RunFilterOptions = { targets: [], recipes: [], hosts: [], subm
 
 const nameIn = (options: { id: string; name: string }[], id: string) =>
   options.find((option) => option.id === id)?.name ?? "—";
+
+/** A short name kept on one line; the whole of it in a tooltip when the column cuts it. */
+function OneLine({ text }: { text: string }) {
+  return (
+    <span className="block max-w-48 truncate whitespace-nowrap" title={text}>
+      {text}
+    </span>
+  );
+}
 
 function columnsFor(groupId: string, canAct: boolean, options: RunFilterOptions): ColumnDef<RunSummary>[] {
   // Sortable columns have an accessor (TanStack Table sorts only those); the server does the sorting.
@@ -80,26 +90,34 @@ function columnsFor(groupId: string, canAct: boolean, options: RunFilterOptions)
       id: "recipe",
       accessorFn: (run) => run.recipeId,
       header: "Recipe",
-      cell: ({ row: { original: run } }) => nameIn(options.recipes, run.recipeId),
+      cell: ({ row: { original: run } }) => <OneLine text={nameIn(options.recipes, run.recipeId)} />,
     },
     {
       id: "host",
       accessorFn: (run) => run.hostId,
       header: "Host",
-      cell: ({ row: { original: run } }) => nameIn(options.hosts, run.hostId),
+      cell: ({ row: { original: run } }) => <OneLine text={nameIn(options.hosts, run.hostId)} />,
     },
     {
       id: "submittedBy",
       accessorFn: (run) => run.submittedByName,
       header: "Submitted by",
-      cell: ({ row: { original: run } }) => run.submittedByName ?? "—",
+      cell: ({ row: { original: run } }) => <OneLine text={run.submittedByName ?? "—"} />,
     },
     {
       id: "coreHours",
-      header: "Core-hours (reserved / charged)",
+      header: () => (
+        <span
+          className="inline-flex flex-col leading-tight whitespace-nowrap"
+          title="Core-hours reserved / charged"
+        >
+          <span>Core-hours</span>
+          <span className="text-[10px] font-normal tracking-normal normal-case">reserved / charged</span>
+        </span>
+      ),
       enableSorting: false,
       cell: ({ row: { original: run } }) => (
-        <span className="font-mono text-xs">
+        <span className="font-mono text-xs whitespace-nowrap">
           {coreHours(run.reservedCoreHours)} / {coreHours(run.chargedCoreHours)}
         </span>
       ),
@@ -109,9 +127,15 @@ function columnsFor(groupId: string, canAct: boolean, options: RunFilterOptions)
       accessorFn: (run) => run.createdAt,
       // Newest first on the first click; names and states start from the top of the alphabet or lifecycle.
       sortDescFirst: true,
-      header: "Submitted",
+      header: "Submitted (UTC)",
       cell: ({ row: { original: run } }) => (
-        <span className="text-xs whitespace-nowrap">{formatDateTime(run.createdAt)}</span>
+        <time
+          dateTime={run.createdAt}
+          title={formatUtcSecond(run.createdAt)}
+          className="font-mono text-xs whitespace-nowrap"
+        >
+          {formatUtcMinute(run.createdAt)}
+        </time>
       ),
     },
   ];
@@ -278,7 +302,13 @@ export function RunsTable({
                                 ? "descending"
                                 : "none"
                         }
-                        className={header.column.id === "select" ? "w-8 pr-0! pl-4!" : "px-3!"}
+                        className={
+                          header.column.id === "select"
+                            ? "w-8 pr-0! pl-4!"
+                            : header.index === group.headers.length - 1
+                              ? "pr-5! pl-3! whitespace-nowrap"
+                              : "px-3! whitespace-nowrap"
+                        }
                       >
                         {sortable ? (
                           <button
@@ -303,16 +333,14 @@ export function RunsTable({
             <TBody>
               {table.getRowModel().rows.map((row) => (
                 <TR key={row.id}>
-                  {row.getVisibleCells().map((cell) => (
+                  {row.getVisibleCells().map((cell, i, cells) => (
                     <TD
                       key={cell.id}
-                      className={
-                        cell.column.id === "select"
-                          ? "w-8 pr-0! pl-4!"
-                          : cell.column.id === "actions"
-                            ? "px-3! text-right"
-                            : "px-3!"
-                      }
+                      className={cn(
+                        cell.column.id === "select" ? "w-8 pr-0! pl-4!" : "px-3!",
+                        cell.column.id === "actions" && "text-right",
+                        i === cells.length - 1 && cell.column.id !== "select" && "pr-5!",
+                      )}
                     >
                       {flexRender(cell.column.columnDef.cell, cell.getContext())}
                     </TD>

@@ -88,7 +88,7 @@ export function RunFilters({ view, options, onChange }: Props) {
             )}
           </Field>
         ))}
-        <Field label="Created from" hint="UTC day, included">
+        <Field label="Submitted from (UTC)" hint="Whole day, included.">
           {(control) => (
             <Input
               {...control}
@@ -100,7 +100,7 @@ export function RunFilters({ view, options, onChange }: Props) {
             />
           )}
         </Field>
-        <Field label="Created to" hint="UTC day, included">
+        <Field label="Submitted to (UTC)" hint="Whole day, included.">
           {(control) => (
             <Input
               {...control}

@@ -74,8 +74,10 @@ describe("target editor", () => {
     expect(numbers(derivedValue("Centre of mass (Å)"))[2]).toBeCloseTo(0.06564, 4);
 
     const isotope = within(form).getByLabelText("Atom 2 isotope");
-    // The picker shows mass (u) and natural abundance (%) of each isotope (NIST: ²H 2.014102 u, 0.0115 %).
-    expect(within(isotope).getByRole("option", { name: /^2 — 2\.014102 u, 0\.0115 %$/ })).toBeInTheDocument();
+    // The picker shows nuclide, mass (u) and natural abundance (%) of each isotope (NIST: ²H 2.014102 u, 0.0115 %).
+    expect(
+      within(isotope).getByRole("option", { name: /^²H · 2\.014102 u · 0\.0115 %$/ }),
+    ).toBeInTheDocument();
     await user.selectOptions(isotope, "2");
 
     // HDO has only the molecular plane left: Cs.
@@ -161,7 +163,7 @@ describe("target editor", () => {
     await user.click(screen.getByRole("button", { name: "Create isotopologue" }));
     await waitFor(() => expect(posts).toHaveLength(1));
     expect(posts[0]).toEqual({
-      name: "Water ([2H]2O)",
+      name: "Water (²H₂O)",
       isotopes: [
         { atom: 2, massNumber: 2 },
         { atom: 3, massNumber: 2 },

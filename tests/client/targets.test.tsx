@@ -1,10 +1,11 @@
 /**
  * The targets pages against the fake API (shared/schemas/targets.ts is the contract): the group's targets
  * with isotopologues under their parent, a target's current version with its atoms, derived properties
- * and versions, the XYZ form with the server's objection beside the text, and the target a run names.
+ * and versions, the one way to enter a target (the editor) with the server's refusal shown, and the target a
+ * run names.
  */
 import type { TargetDetail } from "@shared/schemas";
-import { screen, waitFor, within } from "@testing-library/react";
+import { screen, within } from "@testing-library/react";
 import { HttpResponse, http } from "msw";
 import { describe, expect, it } from "vitest";
 import { apiError, installFakeApi } from "./support/fake-api";
@@ -89,66 +90,71 @@ describe("targets", () => {
     );
   });
 
-  it("shows the server's objection to an XYZ text beside the text", async () => {
+  it("sends the editor's atoms with the CSRF token and shows the server's refusal", async () => {
     install();
     const posts: { body: unknown; csrf: string | null }[] = [];
     server.use(
       http.post("/api/groups/:groupId/targets", async ({ request }) => {
         posts.push({ body: await request.json(), csrf: request.headers.get("x-csrf-token") });
-        // The server's shape for XYZ text it cannot read (server/services/target-geometry.ts).
+        // The server's answer to a name the group already uses (server/services/targets.service.ts).
         return apiError(
-          422,
-          "invalid_xyz",
-          "The XYZ text cannot be used: Line 4: expected an element and three coordinates in Å, found 3 fields.",
-          { path: "xyz", line: 4 },
+          409,
+          "conflict",
+          'This group already has a target named "Water"; choose another name.',
+          {
+            path: "name",
+          },
         );
       }),
     );
     const { user } = renderApp(targetsPath);
-    const form = await screen.findByRole("form", { name: "Add a target from XYZ" });
-    await user.type(within(form).getByLabelText("Name"), "Ammonia");
-    const xyz = within(form).getByLabelText("XYZ");
-    await user.type(xyz, "4{Enter}ammonia{Enter}N 0 0 0.1{Enter}H 0.94 0{Enter}");
-    await user.click(within(form).getByRole("button", { name: "Add target" }));
+    const form = await screen.findByRole("form", { name: "New target" });
+    // One way in: the editor; the page has no second form asking for an XYZ file.
+    expect(screen.getAllByLabelText("XYZ file")).toHaveLength(1);
+    await user.type(within(form).getByLabelText("Name"), "Water");
+    await user.type(within(form).getByLabelText("XYZ text"), "1{Enter}helium{Enter}He 0 0 0");
+    await user.click(within(form).getByRole("button", { name: "Read into the table" }));
+    expect(within(form).getByLabelText("Atom 1 element")).toHaveValue("He");
+    await user.click(within(form).getByRole("button", { name: "Save target" }));
 
-    await waitFor(() => expect(xyz).toHaveAccessibleDescription(/Line 4: expected an element/));
+    expect(await within(form).findByText(/already has a target named "Water"/)).toBeInTheDocument();
     expect(posts).toHaveLength(1);
     expect(posts[0]!.csrf).toBe(people.tomas.csrfToken);
-    expect(posts[0]!.body).toEqual({
-      name: "Ammonia",
+    expect(posts[0]!.body).toMatchObject({
+      name: "Water",
       charge: 0,
-      notes: "",
-      xyz: "4\nammonia\nN 0 0 0.1\nH 0.94 0\n",
+      atoms: [{ symbol: "He", xAngstrom: 0, yAngstrom: 0, zAngstrom: 0 }],
     });
   });
 
-  it("checks the name before sending and confirms a target entered", async () => {
+  it("checks the name before sending and opens the target entered", async () => {
     install();
     let created: TargetDetail | null = null;
     server.use(
       http.post("/api/groups/:groupId/targets", () => {
-        created = { ...waterDetail(), id: "7a260000-0000-4000-8000-000000000009", name: "Water again" };
+        created = waterDetail();
         return HttpResponse.json(created, { status: 201 });
       }),
     );
     const { user } = renderApp(targetsPath);
-    const form = await screen.findByRole("form", { name: "Add a target from XYZ" });
-    await user.type(within(form).getByLabelText("XYZ"), "1{Enter}{Enter}He 0 0 0");
-    await user.click(within(form).getByRole("button", { name: "Add target" }));
-    expect(within(form).getByLabelText("Name")).toHaveAccessibleDescription("Give the target a name.");
+    const form = await screen.findByRole("form", { name: "New target" });
+    await user.type(within(form).getByLabelText("XYZ text"), "1{Enter}{Enter}He 0 0 0");
+    await user.click(within(form).getByRole("button", { name: "Read into the table" }));
+    await user.click(within(form).getByRole("button", { name: "Save target" }));
+    expect(within(form).getByLabelText("Name")).toHaveAccessibleDescription(/name/i);
     expect(created).toBeNull();
 
-    await user.type(within(form).getByLabelText("Name"), "Water again");
-    await user.click(within(form).getByRole("button", { name: "Add target" }));
-    const notice = await within(form).findByRole("status");
-    expect(notice).toHaveTextContent("Target Water again entered: H2O, point group C2v.");
+    await user.type(within(form).getByLabelText("Name"), "Water");
+    await user.click(within(form).getByRole("button", { name: "Save target" }));
+    expect(await screen.findByRole("heading", { level: 1, name: "Water" })).toBeInTheDocument();
+    expect(created).not.toBeNull();
   });
 
   it("gives collaborators the list without the form", async () => {
     install("collaborator");
     renderApp(targetsPath);
     await screen.findByRole("table", { name: `Targets of ${kestrel.name}` });
-    expect(screen.queryByRole("form", { name: "Add a target from XYZ" })).not.toBeInTheDocument();
+    expect(screen.queryByRole("form", { name: "New target" })).not.toBeInTheDocument();
   });
 
   it("names a run's target and version with a link to it", async () => {

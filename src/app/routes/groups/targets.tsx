@@ -7,11 +7,11 @@ import { ErrorState } from "@/components/ui/error-state";
 import { PageHeader } from "@/components/ui/page-header";
 import { TableSkeleton } from "@/components/ui/skeleton";
 import { targetQueries } from "@/features/targets/api/target-queries";
-import { AddTargetForm } from "@/features/targets/components/add-target-form";
 import { IsotopologueForm } from "@/features/targets/components/isotopologue-form";
 import { TargetDetailView } from "@/features/targets/components/target-detail";
 import { TargetEditor } from "@/features/targets/components/target-editor";
 import { TargetsTable } from "@/features/targets/components/targets-table";
+import { Formula } from "@/lib/formula";
 import { paths } from "@/lib/paths";
 import { roleInGroup } from "@/lib/permissions";
 import { useCurrentGroup } from "./use-current-group";
@@ -49,17 +49,6 @@ export function TargetsRoute() {
           </CardBody>
         </Card>
       ) : null}
-      {canEdit ? (
-        <Card className="mt-8">
-          <CardHeader
-            title="Add a target from XYZ"
-            description="Paste an XYZ file; Sigmaflow finds the point group and derives the rest."
-          />
-          <CardBody>
-            <AddTargetForm groupId={groupId} />
-          </CardBody>
-        </Card>
-      ) : null}
     </>
   );
 }
@@ -86,8 +75,8 @@ export function TargetRoute() {
         title={target.data.name}
         description={
           <>
-            {target.data.formula}, {target.data.pointGroup}; used by {target.data.runCount}{" "}
-            {target.data.runCount === 1 ? "run" : "runs"}.
+            <Formula formula={target.data.formula} />, {target.data.pointGroup}; used by{" "}
+            {target.data.runCount} {target.data.runCount === 1 ? "run" : "runs"}.
             {parentId ? (
               <>
                 {" "}

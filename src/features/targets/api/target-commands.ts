@@ -12,23 +12,6 @@ export function createTarget(groupId: string, request: CreateTargetRequest) {
   return api.post(`/api/groups/${encodeURIComponent(groupId)}/targets`, request, targetSummarySchema);
 }
 
-/**
- * Enters a new target from an XYZ file, uploaded as multipart/form-data (field "file", at most 256 KiB)
- * beside the name, charge and multiplicity; the server reads it and names the line at fault.
- */
-export function uploadTarget(
-  groupId: string,
-  fields: { name: string; charge?: number; multiplicity?: number },
-  file: File,
-) {
-  const form = new FormData();
-  form.append("name", fields.name);
-  if (fields.charge !== undefined) form.append("charge", String(fields.charge));
-  if (fields.multiplicity !== undefined) form.append("multiplicity", String(fields.multiplicity));
-  form.append("file", file, file.name);
-  return api.postForm(`/api/groups/${encodeURIComponent(groupId)}/targets/upload`, form, targetSummarySchema);
-}
-
 /** Saves a new version of a target (what is left out keeps the current version's value). */
 export function updateTarget(targetId: string, request: UpdateTargetRequest) {
   return api.patch(`/api/targets/${encodeURIComponent(targetId)}`, request, targetDetailSchema);

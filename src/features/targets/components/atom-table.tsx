@@ -1,3 +1,4 @@
+import { getElement, isElementSymbol } from "@shared/science/elements";
 import { Plus, Trash2 } from "lucide-react";
 import { Button } from "@/components/ui/button";
 import { Input } from "@/components/ui/input";
@@ -11,13 +12,27 @@ function freeX(atoms: DraftAtom[]) {
   return xs.length ? Math.max(...xs) + 1 : 0;
 }
 
+/** The isotope an atom gets when none is chosen (the element's default, as the server applies it). */
+function mostCommon(symbol: string, choices: ReturnType<typeof isotopeChoices>) {
+  if (!isElementSymbol(symbol)) return null;
+  const massNumber = getElement(symbol).defaultIsotope?.massNumber;
+  return choices.find((choice) => choice.massNumber === massNumber) ?? null;
+}
+
 const percent = (value: number) => (value >= 1 ? value.toFixed(2) : value.toPrecision(3));
 
-/** "2 — 2.014102 u, 0.0115 %" for the isotope picker. */
-function isotopeLabel(choice: ReturnType<typeof isotopeChoices>[number]) {
+const SUPERSCRIPT = "⁰¹²³⁴⁵⁶⁷⁸⁹";
+const superscript = (n: number) =>
+  String(n)
+    .split("")
+    .map((d) => SUPERSCRIPT[Number(d)])
+    .join("");
+
+/** "²H · 2.014102 u · 0.0115 %" for the isotope picker: nuclide, mass and natural abundance. */
+function isotopeLabel(symbol: string, choice: ReturnType<typeof isotopeChoices>[number]) {
   const abundance =
     choice.abundancePercent === null ? "not natural" : `${percent(choice.abundancePercent)} %`;
-  return `${choice.massNumber} — ${choice.massU.toFixed(6)} u, ${abundance}`;
+  return `${superscript(choice.massNumber)}${symbol} · ${choice.massU.toFixed(6)} u · ${abundance}`;
 }
 
 function ErrorText({ id, text }: { id: string; text?: string }) {
@@ -56,7 +71,7 @@ export function AtomTable({ atoms, errors, onChange }: AtomTableProps) {
                 Element
               </th>
               <th scope="col" className="px-2 py-2">
-                Isotope (mass, abundance)
+                Isotope · mass (u) · abundance
               </th>
               <th scope="col" className="px-2 py-2">
                 x (Å)
@@ -82,6 +97,7 @@ export function AtomTable({ atoms, errors, onChange }: AtomTableProps) {
                   ? { "aria-invalid": true as const, "aria-describedby": errorId(field) }
                   : {};
               const choices = isotopeChoices(atom.symbol, atom.massNumber);
+              const common = mostCommon(atom.symbol, choices);
               return (
                 <tr key={atom.key}>
                   <td className={cn(cell, "pt-3 font-mono text-xs text-ink-500")}>{n}</td>
@@ -97,7 +113,7 @@ export function AtomTable({ atoms, errors, onChange }: AtomTableProps) {
                     />
                     <ErrorText id={errorId("symbol")} text={fieldError("symbol")} />
                   </td>
-                  <td className={cn(cell, "min-w-44")}>
+                  <td className={cell}>
                     <Select
                       aria-label={`Atom ${n} isotope`}
                       controlSize="sm"
@@ -108,25 +124,30 @@ export function AtomTable({ atoms, errors, onChange }: AtomTableProps) {
                           massNumber: event.target.value === "" ? null : Number(event.target.value),
                         })
                       }
-                      className="font-mono text-xs"
+                      className="w-[18.5rem] tabular-nums"
                     >
-                      <option value="">most common</option>
-                      {choices.map((choice) => (
-                        <option key={choice.massNumber} value={choice.massNumber}>
-                          {isotopeLabel(choice)}
-                        </option>
-                      ))}
+                      <option value="">{common ? isotopeLabel(atom.symbol, common) : "most common"}</option>
+                      {choices
+                        // The first option already stands for the most common isotope, unless it is pinned.
+                        .filter((choice) => choice !== common || atom.massNumber === choice.massNumber)
+                        .map((choice) => (
+                          <option key={choice.massNumber} value={choice.massNumber}>
+                            {isotopeLabel(atom.symbol, choice)}
+                          </option>
+                        ))}
                     </Select>
                   </td>
                   {(["x", "y", "z"] as const).map((axis) => (
-                    <td key={axis} className={cn(cell, "min-w-26")}>
+                    <td key={axis} className={cell}>
                       <Input
                         aria-label={`Atom ${n} ${axis} (Å)`}
                         value={atom[axis]}
                         inputMode="decimal"
                         onChange={(event) => update(i, { [axis]: event.target.value })}
-                        className="h-8 px-2 font-mono text-xs"
+                        // Room for "-12.345678" while typing; digits of equal width line up in columns.
+                        className="h-8 min-w-[calc(11ch+1.5rem)] font-mono text-xs tabular-nums"
                         autoComplete="off"
+                        spellCheck={false}
                         {...aria(axis)}
                       />
                       <ErrorText id={errorId(axis)} text={fieldError(axis)} />

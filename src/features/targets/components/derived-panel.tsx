@@ -1,6 +1,7 @@
 import type { BasisCoverageReport } from "@shared/science/basis-coverage";
 import { Button } from "@/components/ui/button";
 import { Notice } from "@/components/ui/notice";
+import { Formula } from "@/lib/formula";
 import type { DerivedTarget } from "../lib/derive-target";
 import { formatCoordinate } from "../lib/target-draft";
 import { ChargeChart } from "./charge-chart";
@@ -17,11 +18,11 @@ const ROTOR_WORDS = {
 const sig = (value: number | null) => (value === null ? "—" : String(Number(value.toPrecision(6))));
 const triple = (values: readonly (number | null)[]) => values.map(sig).join(", ");
 
-function Row({ label, children }: { label: string; children: React.ReactNode }) {
+function Row({ label, children, wide }: { label: string; children: React.ReactNode; wide?: boolean }) {
   return (
-    <div className="flex flex-col gap-0.5">
+    <div className={wide ? "flex min-w-0 flex-col gap-0.5 sm:col-span-2" : "flex min-w-0 flex-col gap-0.5"}>
       <dt className="text-xs text-ink-500">{label}</dt>
-      <dd className="font-mono text-sm text-ink-900">{children}</dd>
+      <dd className="font-mono text-sm break-words text-ink-900 tabular-nums">{children}</dd>
     </div>
   );
 }
@@ -74,17 +75,17 @@ export function DerivedPanel(props: DerivedPanelProps) {
       ) : null}
       {derived.problem ? <Notice tone="warning">{derived.problem}</Notice> : null}
       {inspection ? (
-        <dl className="grid gap-3 sm:grid-cols-2" aria-label="Derived properties">
+        <dl className="grid gap-x-6 gap-y-3 sm:grid-cols-2" aria-label="Derived properties">
           <Row label="Point group / Abelian subgroup">
             {inspection.pointGroup} / {inspection.abelianSubgroup}
           </Row>
           <Row label="Formula, mass (u)">
-            {inspection.formula}, {sig(inspection.totalMassU)}
+            <Formula formula={inspection.formula} />, {sig(inspection.totalMassU)}
           </Row>
           <Row label="Centre of mass (Å)">
-            <span>{inspection.centreOfMassAngstrom.map(formatCoordinate).join(", ")}</span>
+            <span className="block">{inspection.centreOfMassAngstrom.map(formatCoordinate).join(", ")}</span>
             {offCentre ? (
-              <Button variant="secondary" size="sm" className="ml-2" onClick={props.onRecentre}>
+              <Button variant="secondary" size="sm" className="mt-1.5" onClick={props.onRecentre}>
                 Recentre
               </Button>
             ) : null}
@@ -93,7 +94,7 @@ export function DerivedPanel(props: DerivedPanelProps) {
           <Row label="Rotational constants A, B, C (cm⁻¹)">{triple(inspection.rotationalConstantsCm1)}</Row>
           <Row label="Rotational constants A, B, C (MHz)">{triple(inspection.rotationalConstantsMHz)}</Row>
           <Row label="Nuclear repulsion (Eₕ)">{sig(inspection.nuclearRepulsionHartree)}</Row>
-          <Row label="Electrons, spin">
+          <Row label="Electrons, spin" wide>
             <span className={derived.spin?.ok ? "text-ink-900" : "text-ember-700"}>
               {derived.spin?.message}
             </span>

@@ -9,6 +9,7 @@ import { Notice } from "@/components/ui/notice";
 import { Select } from "@/components/ui/select";
 import { describeError } from "@/lib/describe-error";
 import { fieldErrorsFromError } from "@/lib/field-errors";
+import { Formula, formulaText } from "@/lib/formula";
 import { createIsotopologue } from "../api/target-commands";
 import { targetQueries } from "../api/target-queries";
 import { isotopeChoices } from "../lib/target-draft";
@@ -34,7 +35,7 @@ export function IsotopologueForm({ target, onCreated, onCancel }: IsotopologueFo
   );
   const formula = hillFormula(resolved.map((atom, i) => ({ symbol: atom.symbol, massNumber: choices[i]! })));
   const [name, setName] = useState<string | null>(null);
-  const shownName = name ?? `${target.name} (${formula})`;
+  const shownName = name ?? `${target.name} (${formulaText(formula)})`;
   const changed = resolved.flatMap((atom, i) =>
     choices[i] !== atom.massNumber ? [{ atom: i + 1, massNumber: choices[i]! }] : [],
   );
@@ -95,7 +96,7 @@ export function IsotopologueForm({ target, onCreated, onCancel }: IsotopologueFo
         </div>
       </fieldset>
       <p className="text-sm text-ink-700">
-        Formula: <span className="font-mono">{formula}</span>
+        Formula: <Formula formula={formula} className="font-mono" />
       </p>
       {tried && nothingChanged ? (
         <p role="alert" className="text-sm font-medium text-ember-700">

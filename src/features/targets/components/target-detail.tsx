@@ -3,6 +3,7 @@ import { Link } from "react-router-dom";
 import { Card, CardBody, CardHeader } from "@/components/ui/card";
 import { Table, TBody, TD, TH, THead, TR } from "@/components/ui/table";
 import { formatDateTime } from "@/lib/format";
+import { Formula } from "@/lib/formula";
 import { paths } from "@/lib/paths";
 
 /** Fixed decimals for coordinates (Å), as geometry files print them. */
@@ -43,7 +44,9 @@ export function TargetDetailView({ target }: { target: TargetDetail }) {
         />
         <CardBody>
           <dl className="grid gap-4 sm:grid-cols-3">
-            <Property label="Formula">{derived.formula}</Property>
+            <Property label="Formula">
+              <Formula formula={derived.formula} />
+            </Property>
             <Property label="Point group / Abelian subgroup">
               {derived.pointGroup} / {derived.abelianSubgroup}
             </Property>

@@ -155,7 +155,9 @@ export function TargetEditor({ groupId, target, onSaved }: TargetEditorProps) {
         onSubmit={onSubmit}
         noValidate
         aria-label={target ? `Edit ${target.name}` : "New target"}
-        className="grid gap-6 xl:grid-cols-[minmax(0,2fr)_minmax(22rem,1fr)]"
+        // The derived panel follows the atoms at the page's full width: beside them it would squeeze the
+        // coordinates and the isotope picker.
+        className="flex flex-col gap-8"
       >
         <div className="flex flex-col gap-4">
           <div className="grid gap-4 sm:grid-cols-[minmax(0,1fr)_7rem_9rem]">

@@ -6,6 +6,7 @@ import { EmptyState } from "@/components/ui/empty-state";
 import { ErrorState } from "@/components/ui/error-state";
 import { TableSkeleton } from "@/components/ui/skeleton";
 import { Table, TBody, TD, TH, THead, TR } from "@/components/ui/table";
+import { Formula } from "@/lib/formula";
 import { paths } from "@/lib/paths";
 import { targetQueries } from "../api/target-queries";
 
@@ -26,7 +27,9 @@ function TargetRow({ target, parentName }: { target: TargetSummary; parentName?:
         </Link>
         {parentName ? <div className="text-xs text-ink-500">isotopologue of {parentName}</div> : null}
       </TD>
-      <TD className="font-mono text-xs">{target.formula}</TD>
+      <TD className="font-mono text-xs">
+        <Formula formula={target.formula} />
+      </TD>
       <TD className="font-mono text-xs">
         {target.pointGroup}
         {target.abelianSubgroup !== target.pointGroup ? ` / ${target.abelianSubgroup}` : ""}

@@ -7,6 +7,7 @@ import {
   codeListSchema,
   codePreviewRequestSchema,
   codePreviewSchema,
+  codeRetirementRequestSchema,
   codeSchema,
 } from "../../shared/schemas/codes";
 import { requirePrincipal } from "../auth/principal";
@@ -19,6 +20,7 @@ import {
   getCode,
   importCodes,
   listCodes,
+  setCodeRetired,
 } from "../services/codes.service";
 import { clientIp, type RouteContext } from "./context";
 
@@ -71,6 +73,13 @@ export function codeRoutes({ db }: RouteContext): Router {
     const { codeId } = parseParams(codeParams, req);
     const request = parseBody(codePreviewRequestSchema, req);
     res.json(shape(codePreviewSchema, await previewCode(db, principal, codeId, request)));
+  });
+
+  router.patch("/codes/:codeId", async (req, res) => {
+    const principal = requirePrincipal(req);
+    const { codeId } = parseParams(codeParams, req);
+    const { retired } = parseBody(codeRetirementRequestSchema, req);
+    res.json(shape(codeSchema, await setCodeRetired(db, principal, codeId, retired, clientIp(req))));
   });
 
   router.delete("/codes/:codeId", async (req, res) => {

@@ -26,7 +26,13 @@ export function toCode(row: CodeRow): Code {
     groupId: row.groupId,
     definition: codeDefinitionSchema.parse(row.definition),
     createdAt: row.createdAt.toISOString(),
+    retiredAt: row.retiredAt ? row.retiredAt.toISOString() : null,
   };
+}
+
+/** The plain refusal for a retired code version, as recipe creation and run submission give it. */
+export function retiredCodeMessage(name: string, version: string): string {
+  return `${name} ${version} is retired; use a newer version or bring it back.`;
 }
 
 /** Templates read the run's target as `target`, so no parameter may take that name. */
@@ -190,6 +196,48 @@ export async function deleteCode(db: Database, principal: Principal, codeId: str
       details: { name: code.name, version: code.version },
       ip,
     });
+  });
+}
+
+/**
+ * Retires a code version or brings it back. Like registering, any member of the group may do it (not
+ * collaborators): it is reversible and removes nothing, and existing runs and recipes keep the version.
+ */
+export async function setCodeRetired(
+  db: Database,
+  principal: Principal,
+  codeId: string,
+  retired: boolean,
+  ip: string | null,
+): Promise<Code> {
+  const { row: code, role } = await codeForCaller(db, principal, codeId);
+  if (!principal.isSiteAdmin && role === "collaborator") {
+    throw forbidden("Only the group's members and admins can retire a code or bring it back.");
+  }
+  return db.transaction(async (tx) => {
+    // Recipe creation and run submission hold FOR SHARE on their codes, so retiring waits for them.
+    const [current] = await tx.select().from(codes).where(eq(codes.id, codeId)).for("update");
+    if (!current) throw notFound("Code");
+    if ((current.retiredAt !== null) === retired) return toCode(current);
+    const [row] = await tx
+      .update(codes)
+      .set(
+        retired
+          ? { retiredAt: sql`now()`, retiredBy: principal.userId }
+          : { retiredAt: null, retiredBy: null },
+      )
+      .where(eq(codes.id, codeId))
+      .returning();
+    await recordAudit(tx, {
+      actorUserId: principal.userId,
+      groupId: code.groupId,
+      action: retired ? "code.retire" : "code.restore",
+      targetType: "code",
+      targetId: codeId,
+      details: { name: code.name, version: code.version },
+      ip,
+    });
+    return toCode(row!);
   });
 }
 

@@ -11,6 +11,7 @@ import { pgErrorCode } from "../db/pg-errors";
 import { codes, recipes, runs } from "../db/schema";
 import { AppError, conflict, forbidden, notFound } from "../http/errors";
 import { requireGroupRole, requireRoleFor } from "./access";
+import { retiredCodeMessage } from "./codes.service";
 
 type RecipeRow = typeof recipes.$inferSelect;
 type CodeLabel = { id: string; name: string; version: string };
@@ -73,7 +74,7 @@ export async function createRecipe(
   return db.transaction(async (tx) => {
     // FOR SHARE keeps these codes from being deleted until this recipe is committed.
     const found = await tx
-      .select({ id: codes.id, name: codes.name, version: codes.version })
+      .select({ id: codes.id, name: codes.name, version: codes.version, retiredAt: codes.retiredAt })
       .from(codes)
       .where(and(eq(codes.groupId, groupId), inArray(codes.id, codeIds)))
       .for("share");
@@ -89,6 +90,16 @@ export async function createRecipe(
         `${missing[0]!.path}: pick a code registered in this group for every stage.`,
         missing,
       );
+    }
+    const retired = input.stages
+      .map((stage, index) => ({ code: labels.get(stage.codeId)!, index }))
+      .filter(({ code }) => code.retiredAt !== null)
+      .map(({ code, index }) => ({
+        path: `stages.${index}.codeId`,
+        message: retiredCodeMessage(code.name, code.version),
+      }));
+    if (retired.length > 0) {
+      throw new AppError(422, "retired_code", `${retired[0]!.path}: ${retired[0]!.message}`, retired);
     }
     const stages: RecipeStage[] = input.stages.map((stage) => ({ name: stage.name, codeId: stage.codeId }));
     const [row] = await tx

@@ -11,6 +11,7 @@ import { codes, recipes } from "../db/schema";
 import { validateParameters } from "../execution/parameters";
 import type { StageInput } from "../execution/run-plan";
 import { AppError } from "../http/errors";
+import { retiredCodeMessage } from "./codes.service";
 
 export async function loadStages(
   db: Database,
@@ -41,6 +42,21 @@ export async function loadStages(
   const byId = new Map(
     codeRows.map((row) => [row.id, codeDefinitionSchema.parse(row.definition) as CodeDefinition]),
   );
+  // A retired code version keeps its existing runs, but no new run (nor its preview) may use it.
+  const retired = stages.flatMap((stage) => {
+    const row = codeRows.find((r) => r.id === stage.codeId);
+    return row?.retiredAt
+      ? [
+          {
+            path: `spec.parameters.${stage.name}`,
+            message: `Stage ${stage.name}: ${retiredCodeMessage(row.name, row.version)}`,
+          },
+        ]
+      : [];
+  });
+  if (retired.length > 0) {
+    throw new AppError(422, "retired_code", retired[0]!.message, retired);
+  }
   const unknownStages = Object.keys(spec.parameters).filter((name) => !stages.some((s) => s.name === name));
   if (unknownStages.length > 0) {
     throw new AppError(

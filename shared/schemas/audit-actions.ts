@@ -46,6 +46,8 @@ export const AUDIT_ACTIONS = {
   "code.create": { target: "code", sentence: "registered the code {target}" },
   "code.import": { target: "code", sentence: "imported the codes {target}" },
   "code.delete": { target: "code", sentence: "deleted the code {target}" },
+  "code.retire": { target: "code", sentence: "retired the code {target}" },
+  "code.restore": { target: "code", sentence: "brought back the code {target}" },
   "recipe.create": { target: "recipe", sentence: "created the recipe {target}" },
   "recipe.delete": { target: "recipe", sentence: "deleted the recipe {target}" },
   "target.create": { target: "target", sentence: "entered the target {target}" },

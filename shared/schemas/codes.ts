@@ -91,9 +91,20 @@ export const codeSchema = z.object({
   groupId: uuidSchema,
   definition: codeDefinitionSchema,
   createdAt: isoDateTimeSchema,
+  /**
+   * When this version was retired, or null: a retired version keeps its runs and recipes but no new
+   * recipe or run may use it until it is brought back. (Optional on input so older documents still read.)
+   */
+  retiredAt: isoDateTimeSchema.nullable().optional(),
 });
 export type Code = z.infer<typeof codeSchema>;
 export const codeListSchema = z.object({ codes: z.array(codeSchema) });
+
+/** Retires a code version (no new recipes or runs with it) or brings it back. */
+export const codeRetirementRequestSchema = z.strictObject({
+  retired: z.boolean({ error: "retired must be true or false" }),
+});
+export type CodeRetirementRequest = z.infer<typeof codeRetirementRequestSchema>;
 
 /** A group's code definitions as exported (a group may have none). */
 export const codeExportSchema = z.strictObject({

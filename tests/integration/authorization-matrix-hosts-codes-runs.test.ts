@@ -325,6 +325,14 @@ const CASES: MatrixCase[] = [
     expected: groupWrite(204),
   },
   {
+    // Retiring is reversible and removes nothing, so any member may do it, as with registering.
+    name: "retire a code version",
+    method: "PATCH",
+    path: async () => `/api/codes/${await freshCode(groupAdminId)}`,
+    body: () => ({ retired: true }),
+    expected: groupWrite(200),
+  },
+  {
     name: "export codes",
     method: "GET",
     path: () => `/api/groups/${groupId}/codes/export`,

@@ -110,6 +110,9 @@ export const codes = pgTable(
     definition: jsonb("definition").notNull(),
     createdBy: uuid("created_by").references(() => users.id, { onDelete: "set null" }),
     createdAt: createdAt(),
+    /** When this version was retired: no new recipe or run may use it until it is brought back. */
+    retiredAt: timestamp("retired_at", { withTimezone: true }),
+    retiredBy: uuid("retired_by").references(() => users.id, { onDelete: "set null" }),
   },
   (t) => [uniqueIndex("codes_group_name_version_key").on(t.groupId, t.name, t.version)],
 );

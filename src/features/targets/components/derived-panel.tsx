@@ -101,7 +101,7 @@ export function DerivedPanel(props: DerivedPanelProps) {
           </Row>
         </dl>
       ) : null}
-      <div className="grid gap-3 sm:grid-cols-2">
+      <div className="grid gap-3 sm:grid-cols-[minmax(0,20rem)_minmax(0,14rem)]">
         <label className="flex flex-col gap-1 text-sm font-medium text-ink-800">
           Basis set for the coverage check
           <select

@@ -56,6 +56,13 @@ export const JSON_BODY_LIMIT = "100kb";
  */
 export const TARGET_JSON_BODY_LIMIT = "640kb";
 
+/**
+ * Run submissions, previews and resubmissions may carry extra input files (at most 384 KiB decoded,
+ * shared/schemas/run-extra-files.ts), which base64 makes 512 KiB of JSON text; a larger body is a 413.
+ */
+export const RUN_JSON_BODY_LIMIT = "640kb";
+const RUN_WRITE_PATHS = ["/groups/:groupId/runs", "/groups/:groupId/runs/preview", "/runs/:runId/resubmit"];
+
 const utf8 = new TextDecoder("utf-8", { fatal: true });
 
 /** body-parser would decode invalid UTF-8 into U+FFFD and store it; refuse such bodies instead. */
@@ -107,6 +114,7 @@ export function createApp(deps: AppDeps) {
     TARGET_WRITE_PATHS,
     express.json({ limit: TARGET_JSON_BODY_LIMIT, strict: true, verify: requireUtf8 }),
   );
+  api.use(RUN_WRITE_PATHS, express.json({ limit: RUN_JSON_BODY_LIMIT, strict: true, verify: requireUtf8 }));
   api.use(express.json({ limit: JSON_BODY_LIMIT, strict: true, verify: requireUtf8 }));
   api.use(sessionMiddleware(deps.pool, config));
   api.use(signIn.passport.session());

@@ -58,6 +58,7 @@ export function applySpecChanges(original: RunSpec, changes: RunSpecChanges): Ru
         ? undefined
         : runAnalysisSchema.parse({ ...original.analysis, ...changes.analysis }),
     parameters,
+    extraFiles: changes.extraFiles ?? original.extraFiles,
     resources: { ...original.resources, ...changes.resources },
     notifyByEmail: changes.notifyByEmail ?? original.notifyByEmail,
   };

@@ -13,7 +13,7 @@ import type { Principal } from "../auth/principal";
 import type { Database } from "../db/client";
 import { withClientTransaction } from "../db/client-transaction";
 import { hosts, runEvents, runs } from "../db/schema";
-import { buildRunPlan, runFingerprint } from "../execution/run-plan";
+import { buildRunPlan, ExtraFileProblem, runFingerprint } from "../execution/run-plan";
 import { resolveResources } from "../execution/run-spec";
 import { targetFingerprintPart, targetTemplateContext } from "../execution/target-context";
 import { AppError, conflict } from "../http/errors";
@@ -112,8 +112,21 @@ export async function prepareRun(
   const runId = crypto.randomUUID();
   let plan: ReturnType<typeof buildRunPlan>;
   try {
-    plan = buildRunPlan(runId, spec.name, inputs, target ? targetTemplateContext(target) : null);
+    plan = buildRunPlan(
+      runId,
+      spec.name,
+      inputs,
+      target ? targetTemplateContext(target) : null,
+      spec.extraFiles ?? [],
+    );
   } catch (error) {
+    if (error instanceof ExtraFileProblem)
+      throw new AppError(
+        422,
+        "validation_failed",
+        `The extra files do not fit the recipe: ${error.message}`,
+        error.problems,
+      );
     throw new AppError(422, "template_failed", (error as Error).message);
   }
   const fingerprint = runFingerprint(inputs, plan, target ? targetFingerprintPart(target) : null);

@@ -81,7 +81,22 @@ export async function previewRun(
       codeName: stage.codeName,
       codeVersion: stage.codeVersion,
       parameters: inputs[i]?.parameters ?? {},
-      files: plan.files.filter((file) => file.relativePath.startsWith(`${stage.dir}/`)).map(previewFile),
+      files: plan.files
+        .filter(
+          (file) =>
+            file.relativePath.startsWith(`${stage.dir}/`) &&
+            !stage.extraFiles?.includes(file.relativePath.slice(stage.dir.length + 1)),
+        )
+        .map(previewFile),
+      // Extra files by size and sha256 only: their bytes are the submitter's own, sent with the spec.
+      extraFiles: (stage.extraFiles ?? []).map((fileName) => {
+        const file = plan.files.find((f) => f.relativePath === `${stage.dir}/${fileName}`)!;
+        return {
+          fileName,
+          sizeBytes: Buffer.from(file.contentBase64, "base64").length,
+          sha256: file.sha256,
+        };
+      }),
     })),
     script: previewFile(script),
     reusable: reusable

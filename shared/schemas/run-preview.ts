@@ -29,6 +29,10 @@ export const runPreviewStageSchema = z.object({
   /** The stage's parameters as the run would store them: the schema's defaults filled in. */
   parameters: z.record(z.string(), z.unknown()),
   files: z.array(runPreviewFileSchema),
+  /** The run spec's extra files for this stage, by size and sha256 (their bytes are not echoed). */
+  extraFiles: z
+    .array(z.object({ fileName: z.string(), sizeBytes: z.number().int().min(0), sha256: z.string() }))
+    .optional(),
 });
 
 /** Why submitting would be refused by the allocation check (before anything else stops it). */

@@ -1,6 +1,7 @@
 import { z } from "zod";
 import { isoDateTimeSchema, uuidSchema } from "./common";
 import { resultsStateSchema, runAnalysisSchema } from "./results";
+import { extraFilesSchema } from "./run-extra-files";
 
 export const runStateSchema = z.enum([
   "queued",
@@ -47,6 +48,8 @@ export const runSpecSchema = z.strictObject({
   analysis: runAnalysisSchema.optional(),
   /** Parameters per stage name, validated against each stage code's declared JSON schema. */
   parameters: z.record(z.string(), z.record(z.string(), z.unknown())).default({}),
+  /** Files staged byte for byte into a stage's folder beside its rendered input files. */
+  extraFiles: extraFilesSchema.optional(),
   resources: runResourcesSchema,
   notifyByEmail: z.boolean().default(false),
 });
@@ -93,6 +96,8 @@ export const runSpecChangesSchema = z.strictObject({
     })
     .optional(),
   parameters: z.record(z.string(), z.record(z.string(), z.unknown())).optional(),
+  /** The whole list of extra files replacing the original's; left out keeps them, `[]` drops them. */
+  extraFiles: extraFilesSchema.optional(),
   resources: runResourcesRequestSchema.optional(),
   notifyByEmail: z.boolean().optional(),
 });

@@ -5,9 +5,11 @@
  * badge and the history, timings and the remaining-time estimate follow progress events, a paused feed is
  * resumed only once the terminal has caught up, and cancelling from the live view shows the new state.
  */
+import type { Code, Recipe } from "@shared/schemas";
 import type { LiveRunState } from "@shared/schemas/live";
 import type { RunDetail } from "@shared/schemas/runs";
 import { act, screen, waitFor, within } from "@testing-library/react";
+import { HttpResponse, http } from "msw";
 import { afterEach, describe, expect, it, vi } from "vitest";
 import { closeLiveClient } from "@/features/live/load-live";
 import { installFakeApi } from "./support/fake-api";
@@ -15,6 +17,7 @@ import { type FakeSocket, fakeSockets } from "./support/fake-socket";
 import { KESTREL_ID, kestrel, people } from "./support/fixtures";
 import { renderApp } from "./support/render-app";
 import { kestrelRuns, RUN_IDS } from "./support/run-fixtures";
+import { server } from "./support/server";
 
 type FakeTerminal = {
   text: string;
@@ -76,12 +79,65 @@ function chunk(seq: number, data: Uint8Array, runId = RUN_IDS.running) {
   };
 }
 
-function setUp() {
+/** The fixture runs' recipe: an orbitals stage that reports no per-symmetry times, then two that do. */
+const RECIPE_ID = "5a1e0000-0000-4000-8000-0000000000aa";
+const codeOf = (id: string, name: string, timings: string[]): Code => ({
+  id,
+  groupId: KESTREL_ID,
+  createdAt: "2026-11-01T09:00:00.000Z",
+  definition: {
+    name,
+    version: "1.0",
+    description: "",
+    executable: "/usr/bin/true",
+    arguments: [],
+    setupLines: [],
+    inputTemplates: [],
+    parameters: { type: "object" },
+    outputFiles: [],
+    outputRules: { progress: ["^progress (?<done>[0-9]+)/(?<total>[0-9]+)$"], timings },
+    resultFiles: [],
+    defaults: { cores: 1, wallTimeMinutes: 60 },
+  },
+});
+const codes = [
+  codeOf("c0de0000-0000-4000-8000-000000000001", "orbitals", []),
+  codeOf("c0de0000-0000-4000-8000-000000000002", "regions", [
+    "^symmetry (?<symmetry>\\S+) took (?<seconds>[0-9.]+) s$",
+  ]),
+];
+const recipe: Recipe = {
+  id: RECIPE_ID,
+  groupId: KESTREL_ID,
+  name: "regions",
+  description: "",
+  stages: [
+    { name: "orbitals", codeId: codes[0]!.id, codeName: "orbitals", codeVersion: "1.0" },
+    { name: "inner", codeId: codes[1]!.id, codeName: "regions", codeVersion: "1.0" },
+    { name: "outer", codeId: codes[1]!.id, codeName: "regions", codeVersion: "1.0" },
+  ],
+  createdAt: "2026-11-01T09:00:00.000Z",
+};
+
+/** Codes the page has been sent, so a test knows the page has learnt which stages time symmetries. */
+const codesSent: string[] = [];
+
+function setUp(runs: RunDetail[] = kestrelRuns()) {
+  codesSent.length = 0;
   const api = installFakeApi({
     me: people.tomas,
     groups: [{ ...kestrel, myRole: "member" }],
-    runs: { [KESTREL_ID]: kestrelRuns() },
+    runs: { [KESTREL_ID]: runs },
   });
+  server.use(
+    http.get(`/api/recipes/${RECIPE_ID}`, () => HttpResponse.json(recipe)),
+    http.get("/api/codes/:codeId", ({ params }) => {
+      const code = codes.find((candidate) => candidate.id === params.codeId);
+      if (!code) return HttpResponse.json({ error: "no such code" }, { status: 404 });
+      codesSent.push(code.id);
+      return HttpResponse.json(code);
+    }),
+  );
   const view = renderApp(runPath(RUN_IDS.running));
   return { api, ...view };
 }
@@ -237,6 +293,38 @@ describe("the live run page", () => {
     await waitFor(() => expect(screen.getAllByText("cancelled").length).toBeGreaterThanOrEqual(2));
     // A cancelled run offers resubmission instead.
     expect(await screen.findByRole("button", { name: "Resubmit" })).toBeInTheDocument();
+  });
+
+  it("says nothing about symmetry times while the run is in a stage that reports none", async () => {
+    const runs = kestrelRuns().map((run) =>
+      run.id === RUN_IDS.running
+        ? {
+            ...run,
+            timings: [],
+            progress: { stage: "orbitals", stageIndex: 1, stageCount: 3, done: 1, total: 2, percent: 50 },
+          }
+        : run,
+    );
+    setUp(runs);
+    const socket = await connected();
+    await screen.findByRole("heading", { name: "HNCO cc-pVDZ inner region" });
+    // The orbitals stage's code has no timing rules: no table, no estimate.
+    await waitFor(() => expect(codesSent).toHaveLength(3));
+    await act(() => new Promise((resolve) => setTimeout(resolve, 100)));
+    expect(screen.queryByRole("heading", { name: "Time per symmetry" })).toBeNull();
+    expect(screen.queryByTestId("remaining-time")).toBeNull();
+    // The next stage does time its symmetries: the estimate appears once the run is in it.
+    act(() =>
+      socket.serverEmit("run:progress", {
+        runId: RUN_IDS.running,
+        progress: { stage: "inner", stageIndex: 2, stageCount: 3, done: 0, total: 4, percent: 0 },
+        timings: [],
+      }),
+    );
+    expect(await screen.findByTestId("remaining-time")).toHaveTextContent(
+      "Stage inner: estimate after the first symmetry.",
+    );
+    expect(screen.getByRole("heading", { name: "Time per symmetry" })).toBeInTheDocument();
   });
 
   it("updates the timings and the remaining-time estimate as progress events arrive", async () => {

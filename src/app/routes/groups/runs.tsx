@@ -9,6 +9,7 @@ import { LiveIndicator } from "@/features/live/components/live-indicator";
 import { LiveRunLog } from "@/features/live/components/live-run-log";
 import { SymmetryTimings } from "@/features/live/components/symmetry-timings";
 import { useLiveGroup, useLiveRun } from "@/features/live/hooks/use-live";
+import { showsSymmetryTimings, timedStagesQuery } from "@/features/live/timed-stages";
 import { RunResults } from "@/features/results/components/run-results";
 import { isFinished, runQueries } from "@/features/runs/api/run-queries";
 import { RunActions } from "@/features/runs/components/run-actions";
@@ -70,6 +71,11 @@ export function RunRoute() {
   // While the feed is live, changes arrive as events; otherwise the run's own refresh goes on.
   const detail = runQueries.detail(runId);
   const run = useQuery(live === "live" ? { ...detail, refetchInterval: false } : detail);
+  // Which stages time their symmetries, asked only while the run is unfinished.
+  const timedStages = useQuery({
+    ...timedStagesQuery(run.data?.recipeId ?? ""),
+    enabled: run.data !== undefined && !isFinished(run.data),
+  });
   // The terminal follows the log from the start but appears once the feed has connected (until then the
   // stored log is shown), and stays, holding the log, while the feed reconnects.
   const [feedSeen, setFeedSeen] = useState(false);
@@ -101,11 +107,12 @@ export function RunRoute() {
         log={<LiveRunLog runId={run.data.id} hidden={!feedSeen} />}
         logLive={feedSeen}
         timings={
-          !isFinished(run.data) || run.data.timings.length > 0 ? (
+          showsSymmetryTimings(run.data, isFinished(run.data), timedStages.data) ? (
             <SymmetryTimings
               timings={run.data.timings}
               progress={run.data.progress}
               finished={isFinished(run.data)}
+              timedStages={timedStages.data}
             />
           ) : undefined
         }

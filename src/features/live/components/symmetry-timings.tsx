@@ -22,12 +22,19 @@ export function SymmetryTimings({
   timings,
   progress,
   finished,
+  timedStages,
 }: {
   timings: readonly SymmetryTiming[];
   progress: RunProgress | null;
   finished: boolean;
+  /** Stages whose code reports a time per symmetry (see timed-stages.ts); undefined while unknown. */
+  timedStages: readonly string[] | undefined;
 }) {
-  const estimate = finished ? null : describe(estimateRemaining(progress, timings), progress);
+  // A stage that reports no per-symmetry times (and has none so far) has nothing to estimate from.
+  const stageTimed =
+    progress !== null &&
+    (timedStages?.includes(progress.stage) || timings.some((timing) => timing.stage === progress.stage));
+  const estimate = finished || !stageTimed ? null : describe(estimateRemaining(progress, timings), progress);
   return (
     <div className="flex flex-col gap-2">
       {estimate ? (

@@ -113,7 +113,7 @@ describe("retiring a code version", () => {
     expect((byId.get(scatterCodeId) as { retiredAt: null }).retiredAt).toBeNull();
 
     const label = `${prepareCode.name} ${prepareCode.version}`;
-    const recipe = await newRecipe("with retired");
+    const recipe = await newRecipe("with-retired");
     expect(recipe.status).toBe(422);
     expect(recipe.body.error.details).toEqual([
       {
@@ -162,7 +162,7 @@ describe("retiring a code version", () => {
     const back = await retire(sf.api, prepareCode.id, false);
     expect(back.status, JSON.stringify(back.body)).toBe(200);
     expect(back.body.retiredAt).toBeNull();
-    const recipe = await newRecipe("brought back");
+    const recipe = await newRecipe("brought-back");
     expect(recipe.status, JSON.stringify(recipe.body)).toBe(201);
     const previewed = await sf.api("POST", `/api/groups/${sf.groupId}/runs/preview`, {
       spec: spec("after return").spec,

@@ -28,6 +28,11 @@ export function exportCodes(groupId: string) {
   return api.get(`${groupPath(groupId)}/codes/export`, codeExportSchema);
 }
 
+/** Retires a code version (no new recipes or runs may use it) or brings it back. */
+export function setCodeRetired(codeId: string, retired: boolean) {
+  return api.patch(`/api/codes/${encodeURIComponent(codeId)}`, { retired }, codeSchema);
+}
+
 export function deleteCode(codeId: string) {
   return api.command("DELETE", `/api/codes/${encodeURIComponent(codeId)}`);
 }

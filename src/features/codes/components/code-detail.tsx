@@ -7,7 +7,7 @@ import { Card, CardBody, CardHeader } from "@/components/ui/card";
 import { ConfirmDialog } from "@/components/ui/dialog";
 import { Table, TBody, TD, TH, THead, TR } from "@/components/ui/table";
 import { formatDate } from "@/lib/format";
-import { deleteCode } from "../api/code-commands";
+import { deleteCode, setCodeRetired } from "../api/code-commands";
 import { codeQueries, recipeQueries } from "../api/code-queries";
 import { downloadJson, exportDocument } from "../lib/export-file";
 import { parameterRows, printBounds, printValue } from "../lib/parameter-rows";
@@ -67,6 +67,14 @@ export function CodeDetail({ groupId, code, versions, canWrite, onSelect, onNewV
   const [confirming, setConfirming] = useState(false);
   const { definition } = code;
   const rows = parameterRows(definition.parameters);
+  const [confirmingRetire, setConfirmingRetire] = useState(false);
+  const retirement = useMutation({
+    mutationFn: (retired: boolean) => setCodeRetired(code.id, retired),
+    onSuccess: async () => {
+      setConfirmingRetire(false);
+      await queryClient.invalidateQueries({ queryKey: codeQueries.all });
+    },
+  });
   const remove = useMutation({
     mutationFn: () => deleteCode(code.id),
     onSuccess: async () => {
@@ -101,6 +109,20 @@ export function CodeDetail({ groupId, code, versions, canWrite, onSelect, onNewV
                 <Button size="sm" variant="secondary" onClick={() => onNewVersion(code)}>
                   New version
                 </Button>
+                {code.retiredAt ? (
+                  <Button
+                    size="sm"
+                    variant="secondary"
+                    disabled={retirement.isPending}
+                    onClick={() => retirement.mutate(false)}
+                  >
+                    Bring back
+                  </Button>
+                ) : (
+                  <Button size="sm" variant="secondary" onClick={() => setConfirmingRetire(true)}>
+                    Retire version
+                  </Button>
+                )}
                 <Button size="sm" variant="ghost-danger" onClick={() => setConfirming(true)}>
                   Delete version
                 </Button>
@@ -110,6 +132,17 @@ export function CodeDetail({ groupId, code, versions, canWrite, onSelect, onNewV
         }
       />
       <CardBody className="flex flex-col gap-6">
+        {code.retiredAt ? (
+          <p className="rounded-md bg-ink-50 px-3 py-2 text-sm text-ink-700" role="status">
+            <Badge tone="muted">retired</Badge>{" "}
+            {`Retired ${formatDate(code.retiredAt)}: new recipes and runs cannot use this version; its existing recipes and runs are kept.`}
+          </p>
+        ) : null}
+        {!confirmingRetire && retirement.error ? (
+          <p className="text-sm text-ember-700" role="alert">
+            {retirement.error.message}
+          </p>
+        ) : null}
         <dl className="grid gap-4 text-sm sm:grid-cols-2 lg:grid-cols-4">
           <div>
             <dt className="text-xs font-medium text-ink-500">Executable</dt>
@@ -228,6 +261,22 @@ export function CodeDetail({ groupId, code, versions, canWrite, onSelect, onNewV
 
         <CodePreview key={code.id} groupId={groupId} code={code} />
       </CardBody>
+      <ConfirmDialog
+        open={confirmingRetire}
+        title={`Retire ${definition.name} ${definition.version}?`}
+        confirmLabel="Retire version"
+        tone="primary"
+        pending={retirement.isPending}
+        error={retirement.error}
+        onConfirm={() => retirement.mutate(true)}
+        onClose={() => {
+          setConfirmingRetire(false);
+          retirement.reset();
+        }}
+      >
+        New recipes and runs cannot use a retired version; recipes and runs that already use it are kept. You
+        can bring it back at any time.
+      </ConfirmDialog>
       <ConfirmDialog
         open={confirming}
         title={`Delete ${definition.name} ${definition.version}?`}

@@ -1,13 +1,22 @@
+import type { Code } from "@shared/schemas";
 import { useQuery } from "@tanstack/react-query";
 import { Cpu } from "lucide-react";
+import { Badge } from "@/components/ui/badge";
 import { EmptyState } from "@/components/ui/empty-state";
 import { ErrorState } from "@/components/ui/error-state";
 import { TableSkeleton } from "@/components/ui/skeleton";
 import { Table, TBody, TD, TH, THead, TR } from "@/components/ui/table";
+import { cn } from "@/lib/cn";
 import { formatDate } from "@/lib/format";
 import { codeQueries } from "../api/code-queries";
 
 const names = (list: string[]) => (list.length === 0 ? "—" : list.join(", "));
+
+/** Active versions first, then retired ones, each in the API's order (by name, then registration). */
+const activeFirst = (list: Code[]) => [
+  ...list.filter((code) => !code.retiredAt),
+  ...list.filter((code) => code.retiredAt),
+];
 
 /** The group's codes as the API lists them: each registered name and version with what it reads and writes. */
 export function CodesTable({
@@ -47,8 +56,11 @@ export function CodesTable({
         </TR>
       </THead>
       <TBody>
-        {codes.data.codes.map(({ id, definition, createdAt }) => (
-          <TR key={id} className={id === selectedId ? "bg-flux-50" : undefined}>
+        {activeFirst(codes.data.codes).map(({ id, definition, createdAt, retiredAt }) => (
+          <TR
+            key={id}
+            className={cn(id === selectedId && "bg-flux-50", retiredAt && "text-ink-400 opacity-70")}
+          >
             <TD>
               {onSelect ? (
                 <button
@@ -72,7 +84,14 @@ export function CodesTable({
                 </div>
               ) : null}
             </TD>
-            <TD className="font-mono text-xs">{definition.version}</TD>
+            <TD className="font-mono text-xs">
+              {definition.version}
+              {retiredAt ? (
+                <Badge tone="muted" className="ml-2">
+                  retired
+                </Badge>
+              ) : null}
+            </TD>
             <TD className="font-mono text-xs">{definition.executable}</TD>
             <TD className="font-mono text-xs">{names(definition.inputTemplates.map((t) => t.fileName))}</TD>
             <TD className="font-mono text-xs">{names(definition.outputFiles)}</TD>

@@ -311,6 +311,8 @@ export function RecipesPanel({ groupId, canWrite }: { groupId: string; canWrite:
   const build = (start: BuilderStart) => setBuilding({ key: (building?.key ?? 0) + 1, start });
   const codeList = codes.data?.codes ?? [];
   const byId = new Map(codeList.map((code) => [code.id, code]));
+  // A retired version keeps its recipes, but a new recipe cannot use it, so the builder does not offer it.
+  const activeCodes = codeList.filter((code) => !code.retiredAt);
   return (
     <div className="flex flex-col gap-4">
       <Card>
@@ -319,7 +321,7 @@ export function RecipesPanel({ groupId, canWrite }: { groupId: string; canWrite:
           description="Chains of stages, each running one registered code version."
           actions={
             canWrite && !building ? (
-              <Button size="sm" onClick={() => build(EMPTY_START)} disabled={codeList.length === 0}>
+              <Button size="sm" onClick={() => build(EMPTY_START)} disabled={activeCodes.length === 0}>
                 New recipe
               </Button>
             ) : null
@@ -349,7 +351,7 @@ export function RecipesPanel({ groupId, canWrite }: { groupId: string; canWrite:
         <RecipeBuilder
           key={building.key}
           groupId={groupId}
-          codes={codeList}
+          codes={activeCodes}
           start={building.start}
           onDone={() => setBuilding(null)}
         />

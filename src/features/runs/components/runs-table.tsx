@@ -41,7 +41,7 @@ const nameIn = (options: { id: string; name: string }[], id: string) =>
 /** A short name kept on one line; the whole of it in a tooltip when the column cuts it. */
 function OneLine({ text }: { text: string }) {
   return (
-    <span className="block max-w-48 truncate whitespace-nowrap" title={text}>
+    <span className="block max-w-40 truncate whitespace-nowrap" title={text}>
       {text}
     </span>
   );
@@ -55,7 +55,7 @@ function columnsFor(groupId: string, canAct: boolean, options: RunFilterOptions)
       accessorFn: (run) => run.name,
       header: "Run",
       cell: ({ row: { original: run } }) => (
-        <div className="min-w-48">
+        <div className="min-w-40">
           <Link to={paths.run(groupId, run.id)} className="font-medium text-flux-800 hover:underline">
             {run.name}
           </Link>
@@ -70,7 +70,7 @@ function columnsFor(groupId: string, canAct: boolean, options: RunFilterOptions)
       accessorFn: (run) => run.state,
       header: "State",
       cell: ({ row: { original: run } }) => (
-        <div className="flex max-w-xs min-w-36 flex-col gap-1">
+        <div className="flex max-w-xs min-w-32 flex-col gap-1">
           <div>
             <RunStateBadge state={run.state} />
           </div>
@@ -96,13 +96,13 @@ function columnsFor(groupId: string, canAct: boolean, options: RunFilterOptions)
       id: "host",
       accessorFn: (run) => run.hostId,
       header: "Host",
-      cell: ({ row: { original: run } }) => <OneLine text={nameIn(options.hosts, run.hostId)} />,
+      cell: ({ row: { original: run } }) => nameIn(options.hosts, run.hostId),
     },
     {
       id: "submittedBy",
       accessorFn: (run) => run.submittedByName,
       header: "Submitted by",
-      cell: ({ row: { original: run } }) => <OneLine text={run.submittedByName ?? "—"} />,
+      cell: ({ row: { original: run } }) => run.submittedByName ?? "—",
     },
     {
       id: "coreHours",
@@ -132,9 +132,11 @@ function columnsFor(groupId: string, canAct: boolean, options: RunFilterOptions)
         <time
           dateTime={run.createdAt}
           title={formatUtcSecond(run.createdAt)}
-          className="font-mono text-xs whitespace-nowrap"
+          className="flex flex-col font-mono text-xs whitespace-nowrap"
         >
-          {formatUtcMinute(run.createdAt)}
+          {/* Date above time, so the column stays narrow: "2026-12-05" / "04:54 UTC". */}
+          <span>{formatUtcMinute(run.createdAt).slice(0, 10)}</span>
+          <span>{formatUtcMinute(run.createdAt).slice(11)}</span>
         </time>
       ),
     },
@@ -307,7 +309,9 @@ export function RunsTable({
                             ? "w-8 pr-0! pl-4!"
                             : header.index === group.headers.length - 1
                               ? "pr-5! pl-3! whitespace-nowrap"
-                              : "px-3! whitespace-nowrap"
+                              : header.column.id === "coreHours"
+                                ? "px-3! whitespace-nowrap"
+                                : "px-3!"
                         }
                       >
                         {sortable ? (

@@ -305,4 +305,74 @@ describe("run composer", () => {
     await waitFor(() => expect(submissions).toHaveLength(1));
     expect(submissions[0]!.onDuplicate).toBe("reuse");
   });
+
+  it("attaches extra input files per stage, lists them with their size, and shows refusals beside the control", async () => {
+    const { previews, submissions } = setUp();
+    const { user } = await openComposer();
+    await user.type(screen.getByLabelText("Polarizability (bohr³)"), "9.6");
+    const picker = screen.getByLabelText("Extra input files for scatter");
+    // A text basis file and bytes that are not UTF-8: both must travel as their exact bytes (base64).
+    const basis = new File(["H 0\nS 1 1.00\n"], "basis.gbs");
+    const restartBytes = new Uint8Array([0x00, 0xff, 0xfe, 0x80, 0x0a]);
+    const restart = new File([restartBytes], "restart.bin");
+    await user.upload(picker, [basis, restart]);
+    const list = await screen.findByRole("list", { name: "Extra input files for scatter" });
+    expect(within(list).getByText("basis.gbs")).toBeInTheDocument();
+    // Sizes with their unit: "H 0\n" and "S 1 1.00\n" are 4 + 9 = 13 bytes.
+    expect(within(list).getByText("basis.gbs").parentElement).toHaveTextContent("13 bytes");
+    await waitFor(() =>
+      expect((previews.at(-1) as SpecBody & { extraFiles?: unknown }).extraFiles).toEqual([
+        {
+          stage: "scatter",
+          fileName: "basis.gbs",
+          contentBase64: Buffer.from("H 0\nS 1 1.00\n").toString("base64"),
+        },
+        { stage: "scatter", fileName: "restart.bin", contentBase64: "AP/+gAo=" },
+      ]),
+    );
+    await user.click(within(list).getByRole("button", { name: "Remove basis.gbs" }));
+    await waitFor(() =>
+      expect((previews.at(-1) as SpecBody & { extraFiles?: unknown }).extraFiles).toEqual([
+        { stage: "scatter", fileName: "restart.bin", contentBase64: "AP/+gAo=" },
+      ]),
+    );
+    // Over the per-file limit: refused before anything is sent, the message tied to the picker.
+    await user.upload(picker, new File([new Uint8Array(128 * 1024 + 1)], "huge.bin"));
+    await waitFor(() => expect(picker).toHaveAttribute("aria-invalid", "true"));
+    const errorId = picker
+      .getAttribute("aria-describedby")!
+      .split(" ")
+      .find((id) => id.endsWith("-error"))!;
+    expect(document.getElementById(errorId)).toHaveTextContent(
+      "huge.bin is 131,073 bytes; at most 131,072 bytes (128 KiB) per file.",
+    );
+    expect(previews.some((spec) => JSON.stringify(spec).includes("huge.bin"))).toBe(false);
+    // The server's refusal of a name (it collides with a rendered file) shows beside the control too.
+    server.use(
+      http.post("/api/groups/:groupId/runs/preview", () =>
+        HttpResponse.json(
+          {
+            error: {
+              code: "validation_failed",
+              message: "The extra files do not fit the recipe.",
+              details: [
+                {
+                  path: "spec.extraFiles.1.fileName",
+                  message: "Stage scatter already has a file named input.json.",
+                },
+              ],
+            },
+          },
+          { status: 422 },
+        ),
+      ),
+    );
+    await user.upload(picker, new File(["{}"], "input.json"));
+    await waitFor(() =>
+      expect(document.getElementById(errorId)).toHaveTextContent(
+        "input.json: Stage scatter already has a file named input.json.",
+      ),
+    );
+    expect(submissions).toHaveLength(0);
+  });
 });

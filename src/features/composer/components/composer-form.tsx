@@ -5,8 +5,9 @@ import {
   runResourcesSchema,
   runSpecSchema,
 } from "@shared/schemas";
+import type { ExtraFile } from "@shared/schemas/run-extra-files";
 import { useMutation, useQuery } from "@tanstack/react-query";
-import { useEffect, useMemo, useRef, useState } from "react";
+import { Fragment, useEffect, useMemo, useRef, useState } from "react";
 import { type FieldErrors, type Resolver, useForm, useWatch } from "react-hook-form";
 import { Button } from "@/components/ui/button";
 import { ErrorState } from "@/components/ui/error-state";
@@ -18,6 +19,7 @@ import { fieldErrorsFromDetails } from "@/lib/field-errors";
 import { composerQueries, type StageSchema, submitRun } from "../api/composer-queries";
 import { defaultValuesOf, fieldsOfSchema, parametersOf, type SchemaField } from "../parameter-fields";
 import { checkParameters } from "../parameter-resolver";
+import { ExtraFilesField } from "./extra-files-field";
 import { CostSummary, RenderedFiles, ReuseOffer } from "./run-preview-panel";
 import { type ComposerValues, StageFields } from "./stage-fields";
 
@@ -32,7 +34,7 @@ function checkCount(schema: typeof runResourcesSchema.shape.cores, text: string,
 }
 
 /** The run spec the form's values stand for (what both the preview and the submission send). */
-function specOf(values: ComposerValues, stages: Stage[]): RunSpecRequest {
+function specOf(values: ComposerValues, stages: Stage[], extraFiles: ExtraFile[]): RunSpecRequest {
   const resources: RunSpecRequest["resources"] = {};
   if (values.cores.trim()) resources.cores = Number(values.cores);
   if (values.wallTimeMinutes.trim()) resources.wallTimeMinutes = Number(values.wallTimeMinutes);
@@ -47,6 +49,7 @@ function specOf(values: ComposerValues, stages: Stage[]): RunSpecRequest {
         parametersOf(stage.fields, values.parameters?.[stage.stage] ?? {}),
       ]),
     ),
+    ...(extraFiles.length > 0 ? { extraFiles } : {}),
     resources,
     notifyByEmail: false,
   };
@@ -122,8 +125,10 @@ export function ComposerForm({ groupId, onSubmitted, onOpenRun }: Props) {
     () => (schemas.data ?? []).map((stage) => ({ ...stage, fields: fieldsOfSchema(stage.parameters) })),
     [schemas.data],
   );
-  // A recipe's stages start from their codes' defaults.
+  const [extraFiles, setExtraFiles] = useState<ExtraFile[]>([]);
+  // A recipe's stages start from their codes' defaults, and without extra files.
   useEffect(() => {
+    setExtraFiles([]);
     stagesRef.current = recipeId ? stages : [];
     setValue(
       "parameters",
@@ -134,7 +139,10 @@ export function ComposerForm({ groupId, onSubmitted, onOpenRun }: Props) {
 
   const values = useWatch({ control }) as ComposerValues;
   const ready = formState.isValid && stages.length > 0 && stagesRef.current === stages;
-  const spec = useMemo(() => (ready ? specOf(values, stages) : null), [ready, values, stages]);
+  const spec = useMemo(
+    () => (ready ? specOf(values, stages, extraFiles) : null),
+    [ready, values, stages, extraFiles],
+  );
   const debouncedSpec = useDebounced(spec, PREVIEW_DELAY_MS);
   const previewSpec = spec && JSON.stringify(spec) === JSON.stringify(debouncedSpec) ? debouncedSpec : null;
   const preview = useQuery({
@@ -155,7 +163,7 @@ export function ComposerForm({ groupId, onSubmitted, onOpenRun }: Props) {
   const send = (onDuplicate: OnDuplicate) =>
     handleSubmit((valid) => {
       if (!current) return;
-      submit.mutate({ spec: specOf(valid, stages), onDuplicate });
+      submit.mutate({ spec: specOf(valid, stages, extraFiles), onDuplicate });
     })();
 
   if (targets.isError) return <ErrorState error={targets.error} />;
@@ -220,7 +228,7 @@ export function ComposerForm({ groupId, onSubmitted, onOpenRun }: Props) {
               </Select>
             )}
           </Field>
-          <div className="grid gap-3 sm:col-span-2 sm:grid-cols-3">
+          <div className="grid gap-3 sm:col-span-2 sm:grid-cols-[minmax(0,2fr)_minmax(0,1fr)_minmax(0,1fr)]">
             <Field label="Host" error={formState.errors.hostId?.message ?? serverFor("hostId")}>
               {(wiring) => (
                 <Select {...wiring} {...register("hostId")}>
@@ -251,22 +259,37 @@ export function ComposerForm({ groupId, onSubmitted, onOpenRun }: Props) {
         </section>
         {schemas.isError ? <ErrorState error={schemas.error} /> : null}
         {stages.map((stage, i) => (
-          <StageFields
-            key={`${recipeId}:${stage.stage}`}
-            stage={stage}
-            index={i + 1}
-            fields={stage.fields}
-            register={register}
-            control={control}
-            errors={formState.errors}
-            serverErrors={Object.fromEntries(
-              stage.fields.map((field) => [field.name, serverFor(`parameters.${stage.stage}.${field.name}`)]),
-            )}
-          />
+          <Fragment key={`${recipeId}:${stage.stage}`}>
+            <StageFields
+              stage={stage}
+              index={i + 1}
+              fields={stage.fields}
+              register={register}
+              control={control}
+              errors={formState.errors}
+              serverErrors={Object.fromEntries(
+                stage.fields.map((field) => [
+                  field.name,
+                  serverFor(`parameters.${stage.stage}.${field.name}`),
+                ]),
+              )}
+            />
+            <ExtraFilesField
+              stage={stage.stage}
+              files={extraFiles}
+              onChange={setExtraFiles}
+              serverErrors={Object.fromEntries(
+                extraFiles.map((_, n) => [
+                  n,
+                  serverFor(`extraFiles.${n}.fileName`) ??
+                    serverFor(`extraFiles.${n}.stage`) ??
+                    serverFor(`extraFiles.${n}.contentBase64`),
+                ]),
+              )}
+              serverListError={serverFor("extraFiles")}
+            />
+          </Fragment>
         ))}
-        <p className="text-sm text-ink-500">
-          Extra input files cannot be attached yet: a run receives only the files its codes' templates render.
-        </p>
       </div>
 
       <aside className="space-y-4 lg:sticky lg:top-4 lg:self-start" aria-label="Before submitting">

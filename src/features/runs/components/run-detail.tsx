@@ -5,9 +5,9 @@ import { SymmetryTimingsTable } from "@/components/symmetry-timings-table";
 import { Card, CardBody } from "@/components/ui/card";
 import { Table, TBody, TD, TH, THead, TR } from "@/components/ui/table";
 import { apiUrl } from "@/lib/api-client";
-import { formatDateTime } from "@/lib/format";
 import { isFinished, runQueries } from "../api/run-queries";
 import { formatCoreHours } from "../format-core-hours";
+import { formatUtcSecond } from "../format-time";
 import { RunOrigin } from "./run-origin";
 import { RunProgress } from "./run-progress";
 import { RunStateBadge } from "./run-state-badge";
@@ -106,7 +106,9 @@ export function RunDetailView({
           <TBody>
             {run.events.map((event) => (
               <TR key={`${event.at}-${event.toState}-${event.message ?? ""}`}>
-                <TD className="text-xs">{formatDateTime(event.at)}</TD>
+                <TD className="font-mono text-xs whitespace-nowrap">
+                  <time dateTime={event.at}>{formatUtcSecond(event.at)}</time>
+                </TD>
                 <TD>
                   <RunStateBadge state={event.toState} />
                 </TD>

@@ -43,7 +43,8 @@ const orbitalFile: ResultFile = {
   content: ORBITALS,
 };
 
-describe("deriving in a child process", () => {
+// Each case starts fresh Node child processes; on a busy machine that alone can take seconds.
+describe("deriving in a child process", { timeout: 60_000 }, () => {
   it("gives the same rows and notes as the direct call", async () => {
     const files = [orbitalFile, kMatrixFile({ energies: 40, irreps: 4, channels: 5 })];
     const direct = deriveRunResults(files, analysis, { charge: 0 });

@@ -18,6 +18,7 @@ import {
 import type { Database } from "../db/client";
 import { runEvents, runs, runTimings } from "../db/schema";
 import type { RunPlan } from "../execution/run-plan";
+import { orderTimings } from "../execution/timings-order";
 import type { Logger } from "../logger";
 import { getRunSummary } from "../services/run-reads.service";
 
@@ -230,17 +231,13 @@ export async function readRunProgress(db: Database, runId: string): Promise<Live
     .select()
     .from(runTimings)
     .where(eq(runTimings.runId, run.reusedFrom ?? runId))
-    .orderBy(runTimings.stage, runTimings.symmetry);
-  const stageOrder = (run.plan as RunPlan).stages.map((stage) => stage.name);
-  const byStage = (stage: string) => {
-    const index = stageOrder.indexOf(stage);
-    return index < 0 ? stageOrder.length : index;
-  };
+    .orderBy(runTimings.stage);
   return {
     runId,
     progress: summary.progress,
-    timings: timings
-      .map((t) => ({ stage: t.stage, symmetry: t.symmetry, durationSeconds: t.elapsedMs / 1000 }))
-      .sort((a, b) => byStage(a.stage) - byStage(b.stage)),
+    timings: orderTimings(
+      timings.map((t) => ({ stage: t.stage, symmetry: t.symmetry, durationSeconds: t.elapsedMs / 1000 })),
+      run.plan as RunPlan,
+    ),
   };
 }

@@ -16,6 +16,7 @@ import type { Principal } from "../auth/principal";
 import type { Database } from "../db/client";
 import { runArtifacts, runEvents, runs, runTimings, targets, targetVersions, users } from "../db/schema";
 import type { RunPlan } from "../execution/run-plan";
+import { orderTimings } from "../execution/timings-order";
 import { AppError, notFound } from "../http/errors";
 import { requireGroupRole } from "./access";
 
@@ -133,18 +134,8 @@ export async function getRunDetail(db: Database, principal: Principal, runId: st
       .from(runArtifacts)
       .where(eq(runArtifacts.runId, artifactRunId))
       .orderBy(runArtifacts.stage, runArtifacts.name),
-    db
-      .select()
-      .from(runTimings)
-      .where(eq(runTimings.runId, artifactRunId))
-      .orderBy(runTimings.stage, runTimings.symmetry),
+    db.select().from(runTimings).where(eq(runTimings.runId, artifactRunId)).orderBy(runTimings.stage),
   ]);
-  // Timings in the order the stages run, not alphabetically by stage name.
-  const stageOrder = (run.plan as RunPlan).stages.map((stage) => stage.name);
-  const byStage = (stage: string) => {
-    const index = stageOrder.indexOf(stage);
-    return index < 0 ? stageOrder.length : index;
-  };
   return {
     ...summary!,
     spec: runSpecSchema.parse(run.spec),
@@ -157,9 +148,11 @@ export async function getRunDetail(db: Database, principal: Principal, runId: st
       message: e.message,
     })),
     artifacts,
-    timings: timings
-      .map((t) => ({ stage: t.stage, symmetry: t.symmetry, durationSeconds: t.elapsedMs / 1000 }))
-      .sort((a, b) => byStage(a.stage) - byStage(b.stage)),
+    // Stages in the order they run, symmetries in their character table's order.
+    timings: orderTimings(
+      timings.map((t) => ({ stage: t.stage, symmetry: t.symmetry, durationSeconds: t.elapsedMs / 1000 })),
+      run.plan as RunPlan,
+    ),
   };
 }
 

@@ -102,12 +102,13 @@ describe("a run whose symmetries take seconds each", () => {
     expect(run.state, run.stateMessage).toBe("done");
 
     // Each code prints the time it spent per symmetry; the table holds exactly those numbers, stage by
-    // stage in the recipe's order.
+    // stage in the recipe's order, and within a stage as the D2h character table lists the irreps
+    // (B3g before B2u; F. A. Cotton, "Chemical Applications of Group Theory", 3rd ed., Appendix IIA).
     expect(run.timings).toEqual([
       { stage: "orbitals", symmetry: "Ag", durationSeconds: SECONDS_PER_SYMMETRY },
       { stage: "orbitals", symmetry: "B1u", durationSeconds: SECONDS_PER_SYMMETRY },
-      { stage: "inner", symmetry: "B2u", durationSeconds: SECONDS_PER_SYMMETRY + 0.5 },
       { stage: "inner", symmetry: "B3g", durationSeconds: SECONDS_PER_SYMMETRY + 0.5 },
+      { stage: "inner", symmetry: "B2u", durationSeconds: SECONDS_PER_SYMMETRY + 0.5 },
     ]);
     // The last progress line came from the last stage: " 100% complete".
     expect(run.progress).toEqual({ stage: "inner", stageIndex: 2, stageCount: 2, percent: 100 });

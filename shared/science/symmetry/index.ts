@@ -1,5 +1,6 @@
 export { ABELIAN_TABLES, type AbelianGroupSymbol, type AbelianTable } from "./abelian-tables";
 export { classifyPointGroup, describeOperation, type OperationLabel, type PointGroupName } from "./classify";
+export { irrepComparator, normalizeIrrepLabel } from "./irrep-order";
 export { findSymmetryOperations, operationOrder, type SymmetryOperationRaw } from "./operations";
 export {
   type AbelianSubgroup,

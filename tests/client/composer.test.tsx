@@ -190,6 +190,28 @@ async function openComposer() {
 }
 
 describe("run composer", () => {
+  it("opens without complaints, and names every missing choice when the researcher submits", async () => {
+    const { submissions, previews } = setUp();
+    const { user } = renderApp(`/groups/${KESTREL_ID}/runs/new`);
+    await screen.findByRole("heading", { name: "New run" });
+    const name = screen.getByLabelText("Run name");
+    await screen.findByRole("option", { name: /^elastic/ });
+    // Nothing was typed or chosen yet: no field is marked wrong.
+    for (const label of ["Run name", "Recipe", "Host"]) {
+      expect(screen.getByLabelText(label)).not.toHaveAttribute("aria-invalid", "true");
+    }
+    expect(screen.queryByRole("alert")).toBeNull();
+    // Pressing Submit names the missing name, recipe and host at their fields, and moves to the first.
+    await user.click(screen.getByRole("button", { name: "Submit run" }));
+    await waitFor(() => expect(name).toHaveAttribute("aria-invalid", "true"));
+    await waitFor(() => expect(name).toHaveFocus());
+    expect(screen.getByText("Give the run a name (at most 120 characters).")).toBeInTheDocument();
+    expect(screen.getByText("Choose a recipe.")).toBeInTheDocument();
+    expect(screen.getByText("Choose a host.")).toBeInTheDocument();
+    expect(submissions).toHaveLength(0);
+    expect(previews).toHaveLength(0);
+  });
+
   it("shows a value the code's schema refuses beside its field and sends nothing", async () => {
     const { previews, submissions } = setUp();
     const { user } = await openComposer();
@@ -226,7 +248,6 @@ describe("run composer", () => {
     expect(document.getElementById(polarizabilityError)).toHaveTextContent(/^At most 1000 bohr³\.$/);
     // The collision energies are labelled in words with their unit.
     expect(screen.getByText("Energies (eV)")).toBeInTheDocument();
-    expect(screen.getByRole("button", { name: "Submit run" })).toBeDisabled();
     // The required parameter left empty is named at its field too.
     await user.clear(screen.getByLabelText("Polarizability (bohr³)"));
     await waitFor(() =>

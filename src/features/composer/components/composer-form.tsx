@@ -118,7 +118,17 @@ export function ComposerForm({ groupId, onSubmitted, onOpenRun }: Props) {
       parameters: {},
     },
   });
-  const { register, control, formState, setValue, trigger, handleSubmit } = form;
+  const { register, control, formState, setValue, trigger, handleSubmit, getFieldState } = form;
+  // A message shows once its field was changed or left, or after an attempt to submit: a fresh form
+  // is not a list of complaints.
+  const [attempted, setAttempted] = useState(false);
+  const errorOf = (name: Parameters<typeof getFieldState>[0]): string | undefined => {
+    const state = getFieldState(name, formState);
+    const message = state.error?.message;
+    return (attempted || state.isDirty || state.isTouched) && typeof message === "string"
+      ? message
+      : undefined;
+  };
   const recipeId = useWatch({ control, name: "recipeId" });
   const schemas = useQuery({ ...composerQueries.stageSchemas(recipeId), enabled: Boolean(recipeId) });
   const stages = useMemo<Stage[]>(
@@ -178,16 +188,15 @@ export function ComposerForm({ groupId, onSubmitted, onOpenRun }: Props) {
       onSubmit={(event) => {
         event.preventDefault();
         if (canSubmit && !current?.reusable) void send("ask");
-        else void trigger();
+        else {
+          setAttempted(true);
+          void trigger(undefined, { shouldFocus: true });
+        }
       }}
     >
       <div className="space-y-5">
         <section className="grid gap-3 rounded-xl border border-ink-200 bg-white p-4 sm:grid-cols-2">
-          <Field
-            label="Run name"
-            error={formState.errors.name?.message ?? serverFor("name")}
-            className="sm:col-span-2"
-          >
+          <Field label="Run name" error={errorOf("name") ?? serverFor("name")} className="sm:col-span-2">
             {(wiring) => <Input autoComplete="off" {...wiring} {...register("name")} />}
           </Field>
           <Field
@@ -214,7 +223,7 @@ export function ComposerForm({ groupId, onSubmitted, onOpenRun }: Props) {
           </Field>
           <Field
             label="Recipe"
-            error={formState.errors.recipeId?.message ?? serverFor("recipeId")}
+            error={errorOf("recipeId") ?? serverFor("recipeId")}
             className="sm:col-span-2"
           >
             {(wiring) => (
@@ -229,7 +238,7 @@ export function ComposerForm({ groupId, onSubmitted, onOpenRun }: Props) {
             )}
           </Field>
           <div className="grid gap-3 sm:col-span-2 sm:grid-cols-[minmax(0,2fr)_minmax(0,1fr)_minmax(0,1fr)]">
-            <Field label="Host" error={formState.errors.hostId?.message ?? serverFor("hostId")}>
+            <Field label="Host" error={errorOf("hostId") ?? serverFor("hostId")}>
               {(wiring) => (
                 <Select {...wiring} {...register("hostId")}>
                   <option value="">Choose a host…</option>
@@ -244,14 +253,14 @@ export function ComposerForm({ groupId, onSubmitted, onOpenRun }: Props) {
             <Field
               label="Cores"
               hint="Empty: the most any stage's code asks for."
-              error={formState.errors.cores?.message ?? serverFor("resources.cores")}
+              error={errorOf("cores") ?? serverFor("resources.cores")}
             >
               {(wiring) => <Input inputMode="numeric" {...wiring} {...register("cores")} />}
             </Field>
             <Field
               label="Wall-time limit (min)"
               hint="Empty: the sum of the stages' defaults."
-              error={formState.errors.wallTimeMinutes?.message ?? serverFor("resources.wallTimeMinutes")}
+              error={errorOf("wallTimeMinutes") ?? serverFor("resources.wallTimeMinutes")}
             >
               {(wiring) => <Input inputMode="numeric" {...wiring} {...register("wallTimeMinutes")} />}
             </Field>
@@ -266,7 +275,7 @@ export function ComposerForm({ groupId, onSubmitted, onOpenRun }: Props) {
               fields={stage.fields}
               register={register}
               control={control}
-              errors={formState.errors}
+              errorOf={errorOf}
               serverErrors={Object.fromEntries(
                 stage.fields.map((field) => [
                   field.name,
@@ -320,7 +329,14 @@ export function ComposerForm({ groupId, onSubmitted, onOpenRun }: Props) {
               runAnywayDisabled={!canSubmit}
             />
           ) : (
-            <Button type="submit" disabled={!canSubmit} pending={submit.isPending} className="w-full">
+            // Left enabled while fields are wrong: pressing it names them all and moves to the first.
+            // It waits only for the server's check of a complete form, or refuses with its reason.
+            <Button
+              type="submit"
+              disabled={spec !== null && !canSubmit}
+              pending={submit.isPending}
+              className="w-full"
+            >
               Submit run
             </Button>
           )}

@@ -1,4 +1,4 @@
-import { type Control, Controller, type FieldErrors, type UseFormRegister } from "react-hook-form";
+import { type Control, Controller, type UseFormRegister } from "react-hook-form";
 import { Field } from "@/components/ui/field";
 import { Input, Textarea } from "@/components/ui/input";
 import { Select } from "@/components/ui/select";
@@ -27,14 +27,14 @@ type Props = {
   fields: SchemaField[];
   register: UseFormRegister<ComposerValues>;
   control: Control<ComposerValues>;
-  errors: FieldErrors<ComposerValues>;
+  /** The check's message for a field, once it is worth showing (see the composer). */
+  errorOf: (name: `parameters.${string}.${string}`) => string | undefined;
   /** Messages the server's check gave, by parameter name. */
   serverErrors: Record<string, string | undefined>;
 };
 
 /** One stage's parameters, drawn from its code's JSON Schema, each error beside its field. */
-export function StageFields({ stage, index, fields, register, control, errors, serverErrors }: Props) {
-  const stageErrors = (errors.parameters?.[stage.stage] ?? {}) as Record<string, { message?: string }>;
+export function StageFields({ stage, index, fields, register, control, errorOf, serverErrors }: Props) {
   return (
     <fieldset className="space-y-3 rounded-xl border border-ink-200 bg-white p-4">
       <legend className="px-1 text-sm font-semibold text-ink-900">
@@ -47,7 +47,7 @@ export function StageFields({ stage, index, fields, register, control, errors, s
       <div className="grid gap-3 sm:grid-cols-2">
         {fields.map((field) => {
           const name = `parameters.${stage.stage}.${field.name}` as const;
-          const message = stageErrors[field.name]?.message ?? serverErrors[field.name];
+          const message = errorOf(name) ?? serverErrors[field.name];
           const error = message ? errorSentence(message, field.unit) : undefined;
           const hint = hintOf(field);
           if (field.kind.type === "energy-grid") {

@@ -8,15 +8,14 @@
  * reloading, in the runs list open in another tab. Screenshots land in E2E_ARTIFACTS_DIR.
  */
 import { randomBytes } from "node:crypto";
-import type { Browser, BrowserContext, Page } from "playwright-core";
+import type { BrowserContext, Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it, onTestFailed } from "vitest";
-import { e2eEnv, launchChromium, newPage, screenshot } from "./support/browser";
-import { type DevHost, registerDevHostAsAdmin, spawnWorker, startDevHost } from "./support/engine";
-import { type SessionApi, sessionApi, signInAs } from "./support/session";
+import { e2eEnv, screenshot } from "./support/browser";
+import type { SessionApi } from "./support/session";
+import { DEMO_GROUP_SLUG, openResearcherWorkspace, type ResearcherWorkspace } from "./support/workspace";
 
 const env = e2eEnv();
 const suffix = randomBytes(3).toString("hex");
-const GROUP_SLUG = "kestrel-plasma";
 
 /** Symmetries the code works through, each in `steps` lines 0.4 s apart (about 2.4–4 s each). */
 const SYMMETRIES = [
@@ -74,10 +73,7 @@ const CODE = {
   defaults: { cores: 1, wallTimeMinutes: 5 },
 };
 
-let browser: Browser;
-let closeBrowser: () => Promise<void>;
-let host: DevHost | undefined;
-let worker: ReturnType<typeof spawnWorker> | undefined;
+let desk: ResearcherWorkspace | undefined;
 let context: BrowserContext;
 let page: Page;
 let api: SessionApi;
@@ -86,32 +82,12 @@ let hostId: string;
 let runId: string | undefined;
 
 beforeAll(async () => {
-  ({ browser, close: closeBrowser } = await launchChromium());
-  host = await startDevHost();
-  worker = spawnWorker();
-
-  const admin = await newPage(browser);
-  await signInAs(admin.page, "demo-group-admin");
-  const adminApi = await sessionApi(admin.page);
-  groupId = adminApi.memberships.find((m) => m.groupSlug === GROUP_SLUG)!.groupId;
-  hostId = await registerDevHostAsAdmin(adminApi, groupId, host, `live-view-${suffix}`);
-  await admin.context.close();
-
-  ({ context, page } = await newPage(browser));
-  await signInAs(page, "demo-researcher");
-  api = await sessionApi(page);
+  desk = await openResearcherWorkspace(`live-view-${suffix}`);
+  ({ context, page, api, groupId, hostId } = desk);
 });
 
 afterAll(async () => {
-  if (runId) {
-    const run = await api?.("GET", `/api/runs/${runId}`).catch(() => null);
-    if (run && !["done", "failed", "cancelled"].includes(run.body?.state)) {
-      await api("POST", `/api/runs/${runId}/cancel`).catch(() => undefined);
-    }
-  }
-  await closeBrowser?.();
-  await worker?.stop();
-  await host?.stop();
+  await desk?.close(runId);
 });
 
 /** The rows the terminal shows now (xterm's DOM renderer draws the rows on screen as text). */
@@ -149,9 +125,9 @@ const summaryState = (p: Page) =>
 describe("live run view", () => {
   it("streams the log, timings and estimate of a running run, and shows it cancelled", async () => {
     onTestFailed(() => {
-      console.error(`worker log (warnings and worse):\n${worker?.log() || "(empty)"}`);
+      console.error(`worker log (warnings and worse):\n${desk?.worker.log() || "(empty)"}`);
     });
-    expect(api.memberships.find((m) => m.groupSlug === GROUP_SLUG)?.role).toBe("member");
+    expect(api.memberships.find((m) => m.groupSlug === DEMO_GROUP_SLUG)?.role).toBe("member");
 
     // The researcher registers the code and a one-stage recipe, and submits a run through the API.
     const code = await api("POST", `/api/groups/${groupId}/codes`, CODE);

@@ -10,18 +10,17 @@
  * Screenshots land in E2E_ARTIFACTS_DIR.
  */
 import { randomBytes } from "node:crypto";
-import type { Browser, Locator, Page } from "playwright-core";
+import type { Locator, Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it, onTestFailed } from "vitest";
 import { hfOrbitalsCode } from "../../deploy/demo/codes/psi4-orbitals";
 import { radialScatterCode } from "../../deploy/demo/codes/radial-scatter";
 import { DEMO_RECIPES } from "../../deploy/demo/science-scenario";
-import { e2eEnv, launchChromium, newPage, screenshot } from "./support/browser";
-import { type DevHost, registerDevHostAsAdmin, spawnWorker, startDevHost } from "./support/engine";
-import { type SessionApi, sessionApi, signInAs } from "./support/session";
+import { e2eEnv, screenshot } from "./support/browser";
+import type { SessionApi } from "./support/session";
+import { DEMO_GROUP_SLUG, openResearcherWorkspace, type ResearcherWorkspace } from "./support/workspace";
 
 const env = e2eEnv();
 const suffix = randomBytes(3).toString("hex");
-const GROUP_SLUG = "kestrel-plasma";
 const TARGET_NAME = `Aquilon ${suffix}`;
 const ISOTOPOLOGUE_NAME = `Aquilon ${suffix} fully deuterated`;
 const RUN_NAME = `Aquilon ${suffix} — elastic, first try`;
@@ -49,10 +48,7 @@ function centreOfMass(masses: number[]): number[] {
   return [0, 1, 2].map((k) => ATOMS.reduce((sum, atom, i) => sum + masses[i]! * atom.xyz[k]!, 0) / total);
 }
 
-let browser: Browser;
-let closeBrowser: () => Promise<void>;
-let host: DevHost | undefined;
-let worker: ReturnType<typeof spawnWorker> | undefined;
+let desk: ResearcherWorkspace | undefined;
 let page: Page;
 let api: SessionApi;
 let groupId: string;
@@ -60,33 +56,13 @@ let hostId: string;
 let runId: string | undefined;
 
 beforeAll(async () => {
-  ({ browser, close: closeBrowser } = await launchChromium());
-  host = await startDevHost();
-  worker = spawnWorker();
-
-  const admin = await newPage(browser);
-  await signInAs(admin.page, "demo-group-admin");
-  const adminApi = await sessionApi(admin.page);
-  groupId = adminApi.memberships.find((m) => m.groupSlug === GROUP_SLUG)!.groupId;
-  hostId = await registerDevHostAsAdmin(adminApi, groupId, host, `newcomer-${suffix}`);
-  await admin.context.close();
-
-  ({ page } = await newPage(browser));
-  await signInAs(page, "demo-researcher");
-  api = await sessionApi(page);
+  desk = await openResearcherWorkspace(`newcomer-${suffix}`);
+  ({ page, api, groupId, hostId } = desk);
   await ensureDemoRecipes(api, groupId);
 });
 
 afterAll(async () => {
-  if (runId) {
-    const run = await api?.("GET", `/api/runs/${runId}`).catch(() => null);
-    if (run && !["done", "failed", "cancelled"].includes(run.body?.state)) {
-      await api("POST", `/api/runs/${runId}/cancel`).catch(() => undefined);
-    }
-  }
-  await closeBrowser?.();
-  await worker?.stop();
-  await host?.stop();
+  await desk?.close(runId);
 });
 
 /**
@@ -144,9 +120,9 @@ async function describedByText(control: Locator): Promise<string> {
 describe("the workspace for a newcomer", () => {
   it("enters a target from an XYZ file, composes a run with a corrected error, and finds it", async () => {
     onTestFailed(() => {
-      console.error(`worker log (warnings and worse):\n${worker?.log() || "(empty)"}`);
+      console.error(`worker log (warnings and worse):\n${desk?.worker.log() || "(empty)"}`);
     });
-    expect(api.memberships.find((m) => m.groupSlug === GROUP_SLUG)?.role).toBe("member");
+    expect(api.memberships.find((m) => m.groupSlug === DEMO_GROUP_SLUG)?.role).toBe("member");
 
     // --- Targets: an XYZ file into the editor, then one H made a deuteron. ---
     await page.goto(`${env.appUrl}/groups/${groupId}/targets`);

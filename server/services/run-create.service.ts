@@ -22,7 +22,7 @@ import { requireGroupRole } from "./access";
 import { activeAllocation, reserveAgainstAllocation } from "./allocations.service";
 import { chooseAccount } from "./host-accounts.service";
 import { getRunSummary } from "./run-reads.service";
-import { loadStages } from "./run-stages.service";
+import { holdStageCodes, loadStages } from "./run-stages.service";
 import { loadRunTarget } from "./targets.service";
 
 export type RunDeps = { db: Database; pool: pg.Pool; boss: PgBoss };
@@ -142,7 +142,7 @@ export async function createRun(
   extra: { resubmittedFrom?: string; ip?: string | null } = {},
 ): Promise<RunSummary> {
   const { db } = deps;
-  const { host, account, target, spec, runId, plan, fingerprint, reusable } = await prepareRun(
+  const { host, account, inputs, target, spec, runId, plan, fingerprint, reusable } = await prepareRun(
     db,
     principal,
     groupId,
@@ -164,6 +164,7 @@ export async function createRun(
   const reserveCoreSeconds = reuse ? 0 : spec.resources.cores * spec.resources.wallTimeMinutes * 60;
 
   await withClientTransaction(deps.pool, async ({ db: tx, executeSql }) => {
+    await holdStageCodes(tx, inputs);
     const allocation = await activeAllocation(tx, groupId, new Date());
     if (!allocation)
       throw new AppError(

@@ -6,7 +6,7 @@ import { and, eq, inArray } from "drizzle-orm";
 import { type CodeDefinition, codeDefinitionSchema } from "../../shared/schemas/codes";
 import type { RecipeStage } from "../../shared/schemas/recipes";
 import type { RunSpecRequest } from "../../shared/schemas/runs";
-import type { Database } from "../db/client";
+import type { Database, DbExecutor } from "../db/client";
 import { codes, recipes } from "../db/schema";
 import { validateParameters } from "../execution/parameters";
 import type { StageInput } from "../execution/run-plan";
@@ -42,21 +42,7 @@ export async function loadStages(
   const byId = new Map(
     codeRows.map((row) => [row.id, codeDefinitionSchema.parse(row.definition) as CodeDefinition]),
   );
-  // A retired code version keeps its existing runs, but no new run (nor its preview) may use it.
-  const retired = stages.flatMap((stage) => {
-    const row = codeRows.find((r) => r.id === stage.codeId);
-    return row?.retiredAt
-      ? [
-          {
-            path: `spec.parameters.${stage.name}`,
-            message: `Stage ${stage.name}: ${retiredCodeMessage(row.name, row.version)}`,
-          },
-        ]
-      : [];
-  });
-  if (retired.length > 0) {
-    throw new AppError(422, "retired_code", retired[0]!.message, retired);
-  }
+  refuseRetiredCodes(stages, codeRows);
   const unknownStages = Object.keys(spec.parameters).filter((name) => !stages.some((s) => s.name === name));
   if (unknownStages.length > 0) {
     throw new AppError(
@@ -96,4 +82,50 @@ export async function loadStages(
     );
   }
   return inputs;
+}
+
+type CodeRow = typeof codes.$inferSelect;
+
+/** A retired code version keeps its existing runs, but no new run (nor its preview) may use it. */
+function refuseRetiredCodes(
+  stages: readonly { name: string; codeId: string }[],
+  codeRows: readonly Pick<CodeRow, "id" | "name" | "version" | "retiredAt">[],
+): void {
+  const retired = stages.flatMap((stage) => {
+    const row = codeRows.find((r) => r.id === stage.codeId);
+    return row?.retiredAt
+      ? [
+          {
+            path: `spec.parameters.${stage.name}`,
+            message: `Stage ${stage.name}: ${retiredCodeMessage(row.name, row.version)}`,
+          },
+        ]
+      : [];
+  });
+  if (retired.length > 0) {
+    throw new AppError(422, "retired_code", retired[0]!.message, retired);
+  }
+}
+
+/**
+ * Inside the transaction that stores a run: takes FOR SHARE on the stages' codes and checks again that
+ * none was retired since the run was checked. Retiring takes FOR UPDATE on the code, so it waits for
+ * this transaction, or this one waits for it and then sees the code retired.
+ */
+export async function holdStageCodes(
+  tx: DbExecutor,
+  stages: readonly { name: string; codeId: string }[],
+): Promise<void> {
+  const codeRows = await tx
+    .select({ id: codes.id, name: codes.name, version: codes.version, retiredAt: codes.retiredAt })
+    .from(codes)
+    .where(
+      inArray(
+        codes.id,
+        stages.map((stage) => stage.codeId),
+      ),
+    )
+    .orderBy(codes.id)
+    .for("share");
+  refuseRetiredCodes(stages, codeRows);
 }

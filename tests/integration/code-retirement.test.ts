@@ -17,6 +17,7 @@ import {
 } from "./support/lifecycle-harness";
 import { addMember, createGroup, createUser, tokenFor } from "./support/people";
 import { createTestDatabase, type TestDatabase } from "./support/test-database";
+import { waitFor } from "./support/wait-for";
 
 let database: TestDatabase;
 let sf: Sigmaflow;
@@ -185,4 +186,48 @@ describe("retiring a code version", () => {
       expect.objectContaining({ action: "code.retire", targetName: label, targetExists: true }),
     ]);
   });
+
+  it("refuses a run whose code is retired while the run is being stored", async () => {
+    const runsBefore = await runCount();
+    // The retirement, caught between its row lock and its commit: as PATCH does it, FOR UPDATE first.
+    const retiring = await database.pool.connect();
+    try {
+      await retiring.query("begin");
+      await retiring.query("select 1 from codes where id = $1 for update", [prepareCode.id]);
+      await retiring.query("update codes set retired_at = now() where id = $1", [prepareCode.id]);
+      let answered = false;
+      const submitted = sf.api("POST", `/api/groups/${sf.groupId}/runs`, spec("retired meanwhile"));
+      void submitted.finally(() => {
+        answered = true;
+      });
+      // The submission read the code as active; storing the run must wait for the retirement's outcome.
+      const waiting = await waitFor(
+        "the submission to wait on the code's row lock, or to answer",
+        async () => {
+          if (answered) return "answered";
+          const { rows } = await database.pool.query(
+            "select count(*)::int as n from pg_stat_activity where datname = current_database() and wait_event_type = 'Lock'",
+          );
+          return rows[0].n > 0 ? "waiting" : "neither";
+        },
+        (state) => state !== "neither",
+        { timeoutMs: 15_000 },
+      );
+      expect(waiting, JSON.stringify(answered ? (await submitted).body : null)).toBe("waiting");
+      await retiring.query("commit");
+      const response = await submitted;
+      expect(response.status, JSON.stringify(response.body)).toBe(422);
+      expect(response.body.error.code).toBe("retired_code");
+      expect(await runCount()).toBe(runsBefore);
+    } finally {
+      await retiring.query("rollback").catch(() => {});
+      retiring.release();
+      await database.pool.query("update codes set retired_at = null where id = $1", [prepareCode.id]);
+    }
+  });
 });
+
+async function runCount(): Promise<number> {
+  const { rows } = await database.pool.query("select count(*)::int as n from runs");
+  return rows[0].n;
+}

@@ -7,11 +7,12 @@ import {
   codeListSchema,
   codePreviewRequestSchema,
   codePreviewSchema,
-  codeRetirementRequestSchema,
   codeSchema,
+  codeUpdateRequestSchema,
 } from "../../shared/schemas/codes";
 import { requirePrincipal } from "../auth/principal";
 import { parseBody, parseParams, shape } from "../http/validate";
+import { setCodeHosts } from "../services/code-hosts.service";
 import { previewCode } from "../services/code-preview.service";
 import {
   createCode,
@@ -78,8 +79,10 @@ export function codeRoutes({ db }: RouteContext): Router {
   router.patch("/codes/:codeId", async (req, res) => {
     const principal = requirePrincipal(req);
     const { codeId } = parseParams(codeParams, req);
-    const { retired } = parseBody(codeRetirementRequestSchema, req);
-    res.json(shape(codeSchema, await setCodeRetired(db, principal, codeId, retired, clientIp(req))));
+    const { retired, hostIds } = parseBody(codeUpdateRequestSchema, req);
+    let code = hostIds ? await setCodeHosts(db, principal, codeId, hostIds, clientIp(req)) : null;
+    if (retired !== undefined) code = await setCodeRetired(db, principal, codeId, retired, clientIp(req));
+    res.json(shape(codeSchema, code!));
   });
 
   router.delete("/codes/:codeId", async (req, res) => {

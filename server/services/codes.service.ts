@@ -9,8 +9,8 @@ import { codeDefinitionSchema } from "../../shared/schemas/codes";
 import { isReservedRunFileName } from "../../shared/schemas/run-folder";
 import { recordAudit } from "../audit/record-audit";
 import type { Principal } from "../auth/principal";
-import type { Database } from "../db/client";
-import { codes, recipes } from "../db/schema";
+import type { Database, DbExecutor } from "../db/client";
+import { codeHosts, codes, hosts, recipes } from "../db/schema";
 import { outputRuleProblems } from "../execution/output-rule-checks";
 import { compileParameterSchema, ParameterSchemaError } from "../execution/parameters";
 import { checkCodeTemplates } from "../execution/templates/render";
@@ -20,13 +20,15 @@ import { requireGroupRole, requireRoleFor } from "./access";
 type CodeRow = typeof codes.$inferSelect;
 type Problem = { path: string; message: string };
 
-export function toCode(row: CodeRow): Code {
+/** A stored code as the API shows it; `hostIds` are the hosts it is pinned to (code-hosts.service). */
+export function toCode(row: CodeRow, hostIds: readonly string[] = []): Code {
   return {
     id: row.id,
     groupId: row.groupId,
     definition: codeDefinitionSchema.parse(row.definition),
     createdAt: row.createdAt.toISOString(),
     retiredAt: row.retiredAt ? row.retiredAt.toISOString() : null,
+    hostIds: [...hostIds],
   };
 }
 
@@ -105,7 +107,28 @@ export async function listCodes(db: Database, principal: Principal, groupId: str
     .from(codes)
     .where(eq(codes.groupId, groupId))
     .orderBy(asc(codes.name), asc(codes.createdAt));
-  return rows.map(toCode);
+  const pinned = await codeHostIds(
+    db,
+    rows.map((row) => row.id),
+  );
+  return rows.map((row) => toCode(row, pinned.get(row.id)));
+}
+
+/** The hosts each of `codeIds` is pinned to, in host-name order; codes pinned nowhere are absent. */
+export async function codeHostIds(
+  db: DbExecutor,
+  codeIds: readonly string[],
+): Promise<Map<string, string[]>> {
+  const pinned = new Map<string, string[]>();
+  if (codeIds.length === 0) return pinned;
+  const rows = await db
+    .select({ codeId: codeHosts.codeId, hostId: codeHosts.hostId })
+    .from(codeHosts)
+    .innerJoin(hosts, eq(hosts.id, codeHosts.hostId))
+    .where(inArray(codeHosts.codeId, [...codeIds]))
+    .orderBy(asc(hosts.name));
+  for (const row of rows) pinned.set(row.codeId, [...(pinned.get(row.codeId) ?? []), row.hostId]);
+  return pinned;
 }
 
 export async function codeForCaller(db: Database, principal: Principal, codeId: string) {
@@ -116,7 +139,8 @@ export async function codeForCaller(db: Database, principal: Principal, codeId: 
 }
 
 export async function getCode(db: Database, principal: Principal, codeId: string): Promise<Code> {
-  return toCode((await codeForCaller(db, principal, codeId)).row);
+  const { row } = await codeForCaller(db, principal, codeId);
+  return toCode(row, (await codeHostIds(db, [row.id])).get(row.id));
 }
 
 export async function createCode(
@@ -218,7 +242,8 @@ export async function setCodeRetired(
     // Recipe creation and run submission hold FOR SHARE on their codes, so retiring waits for them.
     const [current] = await tx.select().from(codes).where(eq(codes.id, codeId)).for("update");
     if (!current) throw notFound("Code");
-    if ((current.retiredAt !== null) === retired) return toCode(current);
+    const pinned = (await codeHostIds(tx, [codeId])).get(codeId);
+    if ((current.retiredAt !== null) === retired) return toCode(current, pinned);
     const [row] = await tx
       .update(codes)
       .set(
@@ -237,7 +262,7 @@ export async function setCodeRetired(
       details: { name: code.name, version: code.version },
       ip,
     });
-    return toCode(row!);
+    return toCode(row!, pinned);
   });
 }
 
@@ -316,6 +341,6 @@ export async function importCodes(
       ip,
     });
     const order = new Map(document.codes.map((d, i) => [key(d), i]));
-    return rows.sort((a, b) => order.get(key(a))! - order.get(key(b))!).map(toCode);
+    return rows.sort((a, b) => order.get(key(a))! - order.get(key(b))!).map((row) => toCode(row));
   });
 }

@@ -20,6 +20,7 @@ import { AppError, conflict } from "../http/errors";
 import { RUN_STEP_QUEUES } from "../queue/queues";
 import { requireGroupRole } from "./access";
 import { activeAllocation, reserveAgainstAllocation } from "./allocations.service";
+import { requireStageCodesOn } from "./code-hosts.service";
 import { chooseAccount } from "./host-accounts.service";
 import { getRunSummary } from "./run-reads.service";
 import { holdStageCodes, loadStages } from "./run-stages.service";
@@ -99,6 +100,7 @@ export async function prepareRun(
     );
   }
   const inputs = await loadStages(db, groupId, request);
+  await requireStageCodesOn(db, host, inputs);
   // The latest version of the target now; the run keeps this version whatever is saved later.
   const target = request.targetId ? await loadRunTarget(db, groupId, request.targetId) : null;
   // Stored with the resources it got, so a resubmission starts from exactly what this run asked for.
@@ -164,7 +166,9 @@ export async function createRun(
   const reserveCoreSeconds = reuse ? 0 : spec.resources.cores * spec.resources.wallTimeMinutes * 60;
 
   await withClientTransaction(deps.pool, async ({ db: tx, executeSql }) => {
+    // Again under the codes' locks: retiring a code or moving it to other hosts waits for this run.
     await holdStageCodes(tx, inputs);
+    await requireStageCodesOn(tx, host, inputs);
     const allocation = await activeAllocation(tx, groupId, new Date());
     if (!allocation)
       throw new AppError(

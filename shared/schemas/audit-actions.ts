@@ -48,6 +48,7 @@ export const AUDIT_ACTIONS = {
   "code.delete": { target: "code", sentence: "deleted the code {target}" },
   "code.retire": { target: "code", sentence: "retired the code {target}" },
   "code.restore": { target: "code", sentence: "brought back the code {target}" },
+  "code.hosts": { target: "code", sentence: "said the code {target} is installed on {installedOn}" },
   "recipe.create": { target: "recipe", sentence: "created the recipe {target}" },
   "recipe.delete": { target: "recipe", sentence: "deleted the recipe {target}" },
   "target.create": { target: "target", sentence: "entered the target {target}" },

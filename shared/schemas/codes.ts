@@ -96,15 +96,36 @@ export const codeSchema = z.object({
    * recipe or run may use it until it is brought back. (Optional on input so older documents still read.)
    */
   retiredAt: isoDateTimeSchema.nullable().optional(),
+  /**
+   * The group's hosts this version is installed on. Empty: not pinned, any of the group's hosts may run
+   * it. Runs of a recipe go only to a host where every pinned stage code is installed. (Optional on
+   * input so older documents still read.)
+   */
+  hostIds: z.array(uuidSchema).optional(),
 });
 export type Code = z.infer<typeof codeSchema>;
 export const codeListSchema = z.object({ codes: z.array(codeSchema) });
 
-/** Retires a code version (no new recipes or runs with it) or brings it back. */
-export const codeRetirementRequestSchema = z.strictObject({
-  retired: z.boolean({ error: "retired must be true or false" }),
-});
-export type CodeRetirementRequest = z.infer<typeof codeRetirementRequestSchema>;
+/** How many hosts one code version can be pinned to. */
+export const MAX_CODE_HOSTS = 50;
+
+/**
+ * PATCH /api/codes/:codeId: retires a code version (no new recipes or runs with it) or brings it back,
+ * and/or sets the hosts it is installed on (the whole list; empty unpins it). At least one of the two.
+ */
+export const codeUpdateRequestSchema = z
+  .strictObject({
+    retired: z.boolean({ error: "retired must be true or false" }).optional(),
+    hostIds: z
+      .array(uuidSchema, { error: "hostIds must be a list of host ids" })
+      .max(MAX_CODE_HOSTS, { error: `A code version can be pinned to at most ${MAX_CODE_HOSTS} hosts.` })
+      .refine((ids) => new Set(ids).size === ids.length, { error: "Each host may be listed once." })
+      .optional(),
+  })
+  .refine((body) => body.retired !== undefined || body.hostIds !== undefined, {
+    error: "Send retired, hostIds or both.",
+  });
+export type CodeUpdateRequest = z.infer<typeof codeUpdateRequestSchema>;
 
 /** A group's code definitions as exported (a group may have none). */
 export const codeExportSchema = z.strictObject({

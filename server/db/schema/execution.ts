@@ -117,6 +117,25 @@ export const codes = pgTable(
   (t) => [uniqueIndex("codes_group_name_version_key").on(t.groupId, t.name, t.version)],
 );
 
+/**
+ * The hosts a code version is installed on. A version with no rows here is not pinned: any of the
+ * group's hosts may run it.
+ */
+export const codeHosts = pgTable(
+  "code_hosts",
+  {
+    codeId: uuid("code_id")
+      .notNull()
+      .references(() => codes.id, { onDelete: "cascade" }),
+    hostId: uuid("host_id")
+      .notNull()
+      .references(() => hosts.id, { onDelete: "cascade" }),
+    createdBy: uuid("created_by").references(() => users.id, { onDelete: "set null" }),
+    createdAt: createdAt(),
+  },
+  (t) => [primaryKey({ columns: [t.codeId, t.hostId] }), index("code_hosts_host_idx").on(t.hostId)],
+);
+
 export const recipes = pgTable(
   "recipes",
   {

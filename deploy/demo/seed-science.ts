@@ -12,6 +12,7 @@ import type { Principal } from "../../server/auth/principal";
 import { createDatabase, type Database } from "../../server/db/client";
 import { codes, groups, hosts, recipes, runs, targets, users } from "../../server/db/schema";
 import { createBoss, createRunQueues } from "../../server/queue/queues";
+import { setCodeHosts } from "../../server/services/code-hosts.service";
 import { createCode } from "../../server/services/codes.service";
 import { createRecipe } from "../../server/services/recipes.service";
 import { createRun } from "../../server/services/run-create.service";
@@ -76,7 +77,14 @@ async function ensureTargets(
   return ids;
 }
 
-async function ensureCode(db: Database, principal: Principal, groupId: string, input: CodeDefinitionInput) {
+/** Registers a demo code unless present; a new one is pinned to the development host, where it is installed. */
+async function ensureCode(
+  db: Database,
+  principal: Principal,
+  groupId: string,
+  hostId: string,
+  input: CodeDefinitionInput,
+) {
   const definition = codeDefinitionSchema.parse(input);
   const [row] = await db
     .select({ id: codes.id })
@@ -84,7 +92,10 @@ async function ensureCode(db: Database, principal: Principal, groupId: string, i
     .where(
       and(eq(codes.groupId, groupId), eq(codes.name, definition.name), eq(codes.version, definition.version)),
     );
-  return row?.id ?? (await createCode(db, principal, groupId, definition, null)).id;
+  if (row) return row.id;
+  const created = await createCode(db, principal, groupId, definition, null);
+  await setCodeHosts(db, principal, created.id, [hostId], null);
+  return created.id;
 }
 
 /** Registers the demo codes and recipes; returns recipe ids by name. */
@@ -92,10 +103,11 @@ async function ensureRecipes(
   db: Database,
   principal: Principal,
   groupId: string,
+  hostId: string,
 ): Promise<Map<string, string>> {
   const codeIds = new Map<string, string>([
-    [hfOrbitalsCode.name, await ensureCode(db, principal, groupId, hfOrbitalsCode)],
-    [radialScatterCode.name, await ensureCode(db, principal, groupId, radialScatterCode)],
+    [hfOrbitalsCode.name, await ensureCode(db, principal, groupId, hostId, hfOrbitalsCode)],
+    [radialScatterCode.name, await ensureCode(db, principal, groupId, hostId, radialScatterCode)],
   ]);
   const ids = new Map<string, string>();
   for (const recipe of DEMO_RECIPES) {
@@ -140,7 +152,7 @@ export async function seedDemoScience(databaseUrl: string): Promise<{ queued: st
     const admin = await principalFor(db, "demo-group-admin");
     const researcher = await principalFor(db, "demo-researcher");
     const targetIds = await ensureTargets(db, researcher, group.id);
-    const recipeIds = await ensureRecipes(db, admin, group.id);
+    const recipeIds = await ensureRecipes(db, admin, group.id, host.id);
     const queued: string[] = [];
     for (const demoRun of DEMO_RUNS) {
       const [existing] = await db

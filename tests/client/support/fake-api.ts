@@ -2,6 +2,7 @@ import {
   type AdminUser,
   type ApiToken,
   type Group,
+  type Host,
   type Invitation,
   type Me,
   type Member,
@@ -28,6 +29,8 @@ type FakeApiState = {
   logs: Record<string, string | Uint8Array[]>;
   /** Derived results per run id; a run's `resultsState` and `resultsMessage` come with them. */
   results: Record<string, Result[]>;
+  /** Each group's hosts (none unless a test gives some). */
+  hosts: Record<string, Host[]>;
 };
 
 function apiError(status: number, code: string, message: string, details?: unknown) {
@@ -50,6 +53,7 @@ export function installFakeApi(initial: Partial<FakeApiState> = {}) {
     runs: {},
     logs: {},
     results: {},
+    hosts: {},
     ...initial,
   };
   const requests: RecordedRequest[] = [];
@@ -134,6 +138,9 @@ export function installFakeApi(initial: Partial<FakeApiState> = {}) {
       invitation.status = "revoked";
       return new HttpResponse(null, { status: 204 });
     }),
+    http.get("/api/groups/:groupId/hosts", ({ params }) =>
+      HttpResponse.json({ hosts: state.hosts[String(params.groupId)] ?? [] }),
+    ),
     http.get("/api/tokens", () => HttpResponse.json({ tokens: state.tokens })),
     http.post("/api/tokens", async ({ request }) => {
       const body = (await request.json()) as { name: string; expiresInDays: number | null };

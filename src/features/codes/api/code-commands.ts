@@ -33,6 +33,11 @@ export function setCodeRetired(codeId: string, retired: boolean) {
   return api.patch(`/api/codes/${encodeURIComponent(codeId)}`, { retired }, codeSchema);
 }
 
+/** Sets the hosts a code version is installed on (the whole list; empty: any of the group's hosts). */
+export function setCodeHosts(codeId: string, hostIds: string[]) {
+  return api.patch(`/api/codes/${encodeURIComponent(codeId)}`, { hostIds }, codeSchema);
+}
+
 export function deleteCode(codeId: string) {
   return api.command("DELETE", `/api/codes/${encodeURIComponent(codeId)}`);
 }

@@ -1,4 +1,4 @@
-import { codeListSchema, recipeListSchema, targetListSchema } from "@shared/schemas";
+import { codeListSchema, hostListSchema, recipeListSchema, targetListSchema } from "@shared/schemas";
 import { queryOptions } from "@tanstack/react-query";
 import { api } from "@/lib/api-client";
 
@@ -31,5 +31,15 @@ export const previewTargetQueries = {
       queryKey: ["targets", "list", groupId] as const,
       queryFn: ({ signal }) =>
         api.get(`/api/groups/${encodeURIComponent(groupId)}/targets`, targetListSchema, { signal }),
+    }),
+};
+
+/** The group's hosts, for naming where each code version is installed. */
+export const codeHostQueries = {
+  list: (groupId: string) =>
+    queryOptions({
+      queryKey: ["hosts", "list", groupId] as const,
+      queryFn: ({ signal }) =>
+        api.get(`/api/groups/${encodeURIComponent(groupId)}/hosts`, hostListSchema, { signal }),
     }),
 };

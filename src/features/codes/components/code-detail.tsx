@@ -11,6 +11,7 @@ import { deleteCode, setCodeRetired } from "../api/code-commands";
 import { codeQueries, recipeQueries } from "../api/code-queries";
 import { downloadJson, exportDocument } from "../lib/export-file";
 import { parameterRows, printBounds, printValue } from "../lib/parameter-rows";
+import { CodeHostsSection } from "./code-hosts-section";
 import { CodePreview } from "./code-preview";
 
 function List({ items, empty = "none" }: { items: string[]; empty?: string }) {
@@ -204,6 +205,8 @@ export function CodeDetail({ groupId, code, versions, canWrite, onSelect, onNewV
             </dd>
           </div>
         </dl>
+
+        <CodeHostsSection key={code.id} groupId={groupId} code={code} canWrite={canWrite} />
 
         <Table caption={`Parameters of ${definition.name} ${definition.version}`}>
           <THead>

@@ -8,7 +8,8 @@ import { TableSkeleton } from "@/components/ui/skeleton";
 import { Table, TBody, TD, TH, THead, TR } from "@/components/ui/table";
 import { cn } from "@/lib/cn";
 import { formatDate } from "@/lib/format";
-import { codeQueries } from "../api/code-queries";
+import { codeHostQueries, codeQueries } from "../api/code-queries";
+import { installedOnText } from "../lib/code-hosts";
 
 const names = (list: string[]) => (list.length === 0 ? "—" : list.join(", "));
 
@@ -31,6 +32,7 @@ export function CodesTable({
   onSelect?: (codeId: string) => void;
 }) {
   const codes = useQuery(codeQueries.list(groupId));
+  const hosts = useQuery(codeHostQueries.list(groupId));
   if (codes.isPending) return <TableSkeleton rows={4} label="Loading codes" />;
   if (codes.isError)
     return <ErrorState error={codes.error} onRetry={() => codes.refetch()} retrying={codes.isFetching} />;
@@ -52,11 +54,12 @@ export function CodesTable({
           <TH>Input files</TH>
           <TH>Collected files</TH>
           <TH>Defaults</TH>
+          <TH>Hosts</TH>
           <TH>Registered</TH>
         </TR>
       </THead>
       <TBody>
-        {activeFirst(codes.data.codes).map(({ id, definition, createdAt, retiredAt }) => (
+        {activeFirst(codes.data.codes).map(({ id, definition, createdAt, retiredAt, hostIds }) => (
           <TR
             key={id}
             className={cn(id === selectedId && "bg-flux-50", retiredAt && "text-ink-400 opacity-70")}
@@ -98,6 +101,7 @@ export function CodesTable({
             <TD className="font-mono text-xs">
               {definition.defaults.cores} × {definition.defaults.wallTimeMinutes} min
             </TD>
+            <TD className="text-xs">{installedOnText(hostIds, hosts.data?.hosts)}</TD>
             <TD className="text-xs">{formatDate(createdAt)}</TD>
           </TR>
         ))}

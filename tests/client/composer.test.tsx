@@ -17,6 +17,7 @@ import { TARGET_IDS, targetList } from "./support/target-fixtures";
 
 const RECIPE_ID = "5a1e0000-0000-4000-8000-0000000000aa";
 const HOST_ID = "5a1e0000-0000-4000-8000-0000000000bb";
+const DEV_HOST_ID = "5a1e0000-0000-4000-8000-0000000000cc";
 const CODE_ID = "c0de0000-0000-4000-8000-000000000002";
 const NEW_RUN_ID = "5a1e0000-0000-4000-8000-000000000077";
 const EARLIER_RUN_ID = "5a1e0000-0000-4000-8000-000000000002";
@@ -395,5 +396,38 @@ describe("run composer", () => {
       ),
     );
     expect(submissions).toHaveLength(0);
+  });
+
+  it("disables a host where a stage's code is not installed, and names it at the Host field", async () => {
+    setUp();
+    const devHost: Host = { ...host, id: DEV_HOST_ID, name: "dev-host", scheduler: "direct" };
+    server.use(
+      http.get("/api/groups/:groupId/hosts", () => HttpResponse.json({ hosts: [host, devHost] })),
+      http.get("/api/codes/:codeId", () => HttpResponse.json({ ...code, hostIds: [HOST_ID] })),
+    );
+    const { user } = renderApp(`/groups/${KESTREL_ID}/runs/new`);
+    await screen.findByRole("heading", { name: "New run" });
+    const hostSelect = await screen.findByLabelText("Host");
+    // Before a recipe is chosen any host will do.
+    const devOption = await within(hostSelect).findByRole("option", { name: "dev-host (direct)" });
+    expect(devOption).toBeEnabled();
+    await user.selectOptions(hostSelect, DEV_HOST_ID);
+    await user.selectOptions(screen.getByLabelText("Recipe"), RECIPE_ID);
+    // The recipe's scatter stage runs radial-scatter 1.0, installed on tern only.
+    await waitFor(() =>
+      expect(devOption).toHaveTextContent("dev-host (direct) — stage scatter's code is not installed here"),
+    );
+    expect(devOption).toBeDisabled();
+    expect(within(hostSelect).getByRole("option", { name: "tern (slurm)" })).toBeEnabled();
+    await waitFor(() => expect(hostSelect).toHaveAttribute("aria-invalid", "true"));
+    const errorId = hostSelect
+      .getAttribute("aria-describedby")!
+      .split(" ")
+      .find((id) => id.endsWith("-error"))!;
+    expect(document.getElementById(errorId)).toHaveTextContent(
+      "The code of stage scatter is not installed on this host.",
+    );
+    await user.selectOptions(hostSelect, HOST_ID);
+    await waitFor(() => expect(hostSelect).not.toHaveAttribute("aria-invalid"));
   });
 });

@@ -9,11 +9,11 @@ import {
 } from "@shared/schemas";
 import { queryOptions } from "@tanstack/react-query";
 import { api } from "@/lib/api-client";
-import { fetchStageSchemas } from "@/lib/stage-schemas";
+import { fetchStageCodes } from "./stage-codes";
 
 const group = (groupId: string) => `/api/groups/${encodeURIComponent(groupId)}`;
 
-export type { StageSchema } from "@/lib/stage-schemas";
+export type { StageSchema } from "./stage-codes";
 
 export const composerQueries = {
   all: ["composer"] as const,
@@ -32,11 +32,15 @@ export const composerQueries = {
       queryKey: [...composerQueries.all, "hosts", groupId] as const,
       queryFn: ({ signal }) => api.get(`${group(groupId)}/hosts`, hostListSchema, { signal }),
     }),
-  /** Each stage's declared parameters (JSON Schema); a code version never changes, so fetched once. */
+  /**
+   * Each stage's declared parameters (JSON Schema) and the hosts its code is installed on. A code
+   * version never changes, so fetched once: reading it again would reset the stage's fields. Should its
+   * hosts change meanwhile, the server's preview refuses the host at the Host field.
+   */
   stageSchemas: (recipeId: string) =>
     queryOptions({
       queryKey: [...composerQueries.all, "stage-schemas", recipeId] as const,
-      queryFn: ({ signal }) => fetchStageSchemas(recipeId, signal),
+      queryFn: ({ signal }) => fetchStageCodes(recipeId, signal),
       staleTime: Number.POSITIVE_INFINITY,
     }),
   /** What submitting this spec would cost, render and reuse; the server stores nothing. */

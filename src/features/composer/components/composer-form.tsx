@@ -17,6 +17,7 @@ import { Select } from "@/components/ui/select";
 import { isApiRequestError } from "@/lib/api-error";
 import { fieldErrorsFromDetails } from "@/lib/field-errors";
 import { composerQueries, type StageSchema, submitRun } from "../api/composer-queries";
+import { hostUnfitReason, stageNotInstalledOn } from "../host-fit";
 import { defaultValuesOf, fieldsOfSchema, parametersOf, type SchemaField } from "../parameter-fields";
 import { checkParameters } from "../parameter-resolver";
 import { ExtraFilesField } from "./extra-files-field";
@@ -88,6 +89,14 @@ export function ComposerForm({ groupId, onSubmitted, onOpenRun }: Props) {
       errors.name = { type: "zod", message: "Give the run a name (at most 120 characters)." };
     if (!values.recipeId) errors.recipeId = { type: "required", message: "Choose a recipe." };
     if (!values.hostId) errors.hostId = { type: "required", message: "Choose a host." };
+    else {
+      const missing = stageNotInstalledOn(stagesRef.current, values.hostId);
+      if (missing)
+        errors.hostId = {
+          type: "validate",
+          message: `The code of stage ${missing.stage} is not installed on this host.`,
+        };
+    }
     const cores = checkCount(runResourcesSchema.shape.cores, values.cores, "Cores");
     if (cores) errors.cores = { type: "zod", message: cores };
     const wall = checkCount(runResourcesSchema.shape.wallTimeMinutes, values.wallTimeMinutes, "Wall time");
@@ -242,11 +251,14 @@ export function ComposerForm({ groupId, onSubmitted, onOpenRun }: Props) {
               {(wiring) => (
                 <Select {...wiring} {...register("hostId")}>
                   <option value="">Choose a host…</option>
-                  {(hosts.data?.hosts ?? []).map((host) => (
-                    <option key={host.id} value={host.id} disabled={!host.hostKeyConfirmed}>
-                      {host.name} ({host.scheduler}){host.hostKeyConfirmed ? "" : " — host key not confirmed"}
-                    </option>
-                  ))}
+                  {(hosts.data?.hosts ?? []).map((host) => {
+                    const unfit = hostUnfitReason(host, recipeId ? stages : []);
+                    return (
+                      <option key={host.id} value={host.id} disabled={unfit !== undefined}>
+                        {host.name} ({host.scheduler}){unfit ? ` — ${unfit}` : ""}
+                      </option>
+                    );
+                  })}
                 </Select>
               )}
             </Field>

@@ -5,8 +5,8 @@ import type { Logger } from "../server/logger";
 import type { Mailer } from "../server/mail/mailer";
 import type { WorkerConfig } from "./config";
 import type { LogFollowers } from "./logs/log-follower";
+import type { RunClaims } from "./run-claims";
 import type { SshPool } from "./ssh/pool";
-import type { StagingClaims } from "./staging-claims";
 
 /** What every worker step receives. */
 export type WorkerContext = {
@@ -17,8 +17,10 @@ export type WorkerContext = {
   config: WorkerConfig;
   log: Logger;
   mailer: Mailer;
-  /** Keeps two attempts from staging the same run at once (see staging-claims.ts). */
-  stagingClaims: StagingClaims;
+  /** Keeps two attempts from staging the same run at once (see run-claims.ts). */
+  stagingClaims: RunClaims;
+  /** Keeps two workers from streaming the same log at once (see run-claims.ts). */
+  logFollowClaims: RunClaims;
   /** Running jobs' logs streamed as they are written (see logs/log-follower.ts). */
   logFollowers: LogFollowers;
 };

@@ -11,8 +11,8 @@ import { loadWorkerConfig } from "./config";
 import type { WorkerContext } from "./context";
 import { LogFollowers } from "./logs/log-follower";
 import { every, pollAllHosts, reconcileRunsInFlight, resumeHeldRuns } from "./maintenance";
+import { RunClaims } from "./run-claims";
 import { SshPool } from "./ssh/pool";
-import { StagingClaims } from "./staging-claims";
 import { cancelRunOnHost } from "./steps/cancel";
 import { collectRun } from "./steps/collect";
 import { postprocessRun, reconcilePendingResults } from "./steps/postprocess";
@@ -38,7 +38,8 @@ export async function startWorker(config = loadWorkerConfig()) {
     config,
     log,
     mailer: createMailer(config.smtp),
-    stagingClaims: new StagingClaims(config.databaseUrl),
+    stagingClaims: new RunClaims(config.databaseUrl, "staging"),
+    logFollowClaims: new RunClaims(config.databaseUrl, "log-follow"),
   };
   const ctx: WorkerContext = Object.assign(base, {
     logFollowers: undefined as unknown as LogFollowers,
@@ -94,6 +95,7 @@ export async function startWorker(config = loadWorkerConfig()) {
       await boss.stop({ graceful: true, wait: true, timeout: 10_000 });
       ssh.close();
       await ctx.stagingClaims.close();
+      await ctx.logFollowClaims.close();
       ctx.mailer.close();
       await pool.end();
     },

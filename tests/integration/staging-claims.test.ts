@@ -1,5 +1,5 @@
 /**
- * Staging of a run never overlaps itself (worker/staging-claims.ts). Regression: duplicate `run-stage`
+ * Staging of a run never overlaps itself (worker/run-claims.ts). Regression: duplicate `run-stage`
  * items (start-up reconcile, free-slot wake-ups) staged one run twice at once; one attempt unlinked the
  * files the other was checking ("sha256sum: … No such file or directory") or that the submitted job was
  * reading (the job ended with exit code 2, or its declared results were missing).
@@ -10,7 +10,7 @@ import pg from "pg";
 import type PgBoss from "pg-boss";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { createBoss, RUN_STEP_QUEUES } from "../../server/queue/queues";
-import { StagingClaims, stagingLockKey } from "../../worker/staging-claims";
+import { RunClaims, runLockKey } from "../../worker/run-claims";
 import {
   type FakeHost,
   registerDevHost,
@@ -38,8 +38,8 @@ afterAll(async () => {
 
 describe("staging claims", () => {
   it("let one attempt per run stage, in one process and across processes, until it releases", async () => {
-    const first = new StagingClaims(database.url);
-    const second = new StagingClaims(database.url);
+    const first = new RunClaims(database.url, "staging");
+    const second = new RunClaims(database.url, "staging");
     try {
       expect(await first.tryClaim(RUN_A)).toBe(true);
       expect(await first.tryClaim(RUN_A)).toBe(false); // same process: the in-process guard
@@ -54,8 +54,8 @@ describe("staging claims", () => {
   });
 
   it("are given up by PostgreSQL when the worker holding them dies", async () => {
-    const dying = new StagingClaims(database.url);
-    const survivor = new StagingClaims(database.url);
+    const dying = new RunClaims(database.url, "staging");
+    const survivor = new RunClaims(database.url, "staging");
     try {
       expect(await dying.tryClaim(RUN_A)).toBe(true);
       expect(await survivor.tryClaim(RUN_A)).toBe(false);
@@ -65,7 +65,7 @@ describe("staging claims", () => {
       const { rows } = await admin.query(
         `select pg_terminate_backend(pid) as ended from pg_locks
           where locktype = 'advisory' and objid = $1 and granted`,
-        [stagingLockKey(RUN_A)],
+        [runLockKey(RUN_A)],
       );
       await admin.end();
       expect(rows.map((row) => row.ended)).toEqual([true]);

@@ -10,8 +10,9 @@
  * rest of the log (the last line too) from the stored offset over SFTP. A log that cannot be streamed
  * (no spare channel, no `tail` on the host, the file not there yet) is read by the poller as before.
  * Bytes are stored only through `appendLogChunk`, which refuses a chunk whose offset was already
- * passed, so a follower and a poll, or two workers following the same log, never store a byte twice;
- * a follower that finds the log moved on skips what was stored and goes on.
+ * passed, so a follower and a poll never store a byte twice; a follower that finds the log moved on
+ * skips what was stored and goes on. Across workers a log is streamed once: each stream holds a claim
+ * on its run (run-claims.ts), and a worker that finds the claim taken leaves the log to the other.
  */
 import { eq } from "drizzle-orm";
 import { runs } from "../../server/db/schema";
@@ -213,14 +214,14 @@ export class LogFollowers {
     private readonly options: LogFollowOptions,
   ) {}
 
-  /** Whether the run's log is being streamed; the poller leaves a streamed log alone while the job runs. */
+  /** Whether this worker streams the run's log; the poller leaves a streamed log alone while the job runs. */
   isFollowing(runId: string): boolean {
     return this.followed.has(runId) || this.starting.has(runId);
   }
 
   /**
    * Starts streaming a running job's log if it is not streamed yet and a channel is spare. Returns
-   * whether the log is streamed now. `run` is the row as the poll read it; the stream starts from the
+   * whether the log is streamed now, here or by another worker. `run` is the row as the poll read it; the stream starts from the
    * offset stored now.
    */
   async follow(run: RunRow, session: RemoteSession): Promise<boolean> {
@@ -240,6 +241,18 @@ export class LogFollowers {
   }
 
   private async start(run: RunRow, session: RemoteSession): Promise<boolean> {
+    // One stream per log across the workers: a log another worker streams is left to it.
+    if (!(await this.ctx.logFollowClaims.tryClaim(run.id))) return true;
+    let streaming = false;
+    try {
+      streaming = await this.openStream(run, session);
+      return streaming;
+    } finally {
+      if (!streaming) await this.ctx.logFollowClaims.release(run.id);
+    }
+  }
+
+  private async openStream(run: RunRow, session: RemoteSession): Promise<boolean> {
     // The poll's copy of the row: if a chunk was stored since, the stream's first append finds the
     // offset moved, takes the stored position and skips those bytes (no query per poll for logs that
     // wait for a spare channel).
@@ -265,7 +278,10 @@ export class LogFollowers {
   }
 
   private gone(log: FollowedLog, end: RemoteStreamEnd | null): void {
-    if (this.followed.get(log.runId) === log) this.followed.delete(log.runId);
+    if (this.followed.get(log.runId) === log) {
+      this.followed.delete(log.runId);
+      this.releaseClaim(log.runId);
+    }
     this.notBefore.set(log.runId, Date.now() + this.options.retryAfterMs);
     if (end && end.code !== NO_LOG_YET && (end.error || end.code !== 0)) {
       this.ctx.log.info(
@@ -282,6 +298,12 @@ export class LogFollowers {
     if (!log) return;
     this.followed.delete(runId);
     await log.stop();
+    this.releaseClaim(runId);
+  }
+
+  private releaseClaim(runId: string): void {
+    // A lost claim connection took the lock with it; nothing else to undo.
+    this.ctx.logFollowClaims.release(runId).catch(() => undefined);
   }
 
   /** Stops streaming every log whose run is no longer submitted or running. */

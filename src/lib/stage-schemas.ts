@@ -1,6 +1,7 @@
 /**
  * Each stage of a recipe with the parameter schema its code declares, read from the recipe and its
- * codes. Shared by every form that edits a run's parameters (the composer, resubmission with changes).
+ * codes, and the hosts each code is installed on. Shared by every form that edits a run's parameters
+ * (the composer, resubmission with changes).
  */
 import { type Code, codeSchema, recipeSchema } from "@shared/schemas";
 import { api } from "@/lib/api-client";
@@ -11,6 +12,8 @@ export type StageSchema = {
   codeVersion: string;
   /** The code's parameters as a JSON Schema (the code definition's `parameters`). */
   parameters: Code["definition"]["parameters"];
+  /** The group's hosts the stage's code is installed on; empty: any of them may run it. */
+  hostIds: string[];
 };
 
 export async function fetchStageSchemas(recipeId: string, signal?: AbortSignal): Promise<StageSchema[]> {
@@ -23,6 +26,7 @@ export async function fetchStageSchemas(recipeId: string, signal?: AbortSignal):
         codeName: stage.codeName,
         codeVersion: stage.codeVersion,
         parameters: code.definition.parameters,
+        hostIds: code.hostIds ?? [],
       };
     }),
   );

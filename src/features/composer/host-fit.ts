@@ -1,4 +1,4 @@
-import type { StageSchema } from "./api/stage-codes";
+import type { StageSchema } from "@/lib/stage-schemas";
 
 /** The first stage whose code is pinned to hosts that do not include `hostId`, if any. */
 export function stageNotInstalledOn(stages: readonly StageSchema[], hostId: string): StageSchema | undefined {

@@ -9,11 +9,11 @@ import {
 } from "@shared/schemas";
 import { queryOptions } from "@tanstack/react-query";
 import { api } from "@/lib/api-client";
-import { fetchStageCodes } from "./stage-codes";
+import { fetchStageSchemas } from "@/lib/stage-schemas";
 
 const group = (groupId: string) => `/api/groups/${encodeURIComponent(groupId)}`;
 
-export type { StageSchema } from "./stage-codes";
+export type { StageSchema } from "@/lib/stage-schemas";
 
 export const composerQueries = {
   all: ["composer"] as const,
@@ -40,7 +40,7 @@ export const composerQueries = {
   stageSchemas: (recipeId: string) =>
     queryOptions({
       queryKey: [...composerQueries.all, "stage-schemas", recipeId] as const,
-      queryFn: ({ signal }) => fetchStageCodes(recipeId, signal),
+      queryFn: ({ signal }) => fetchStageSchemas(recipeId, signal),
       staleTime: Number.POSITIVE_INFINITY,
     }),
   /** What submitting this spec would cost, render and reuse; the server stores nothing. */

@@ -124,6 +124,64 @@ describe("target editor", () => {
     });
   });
 
+  it("enters a chosen XYZ file through the upload route, beside the form's fields", async () => {
+    const { posts } = install();
+    const uploads: { name: unknown; charge: unknown; multiplicity: unknown; hasFile: boolean }[] = [];
+    server.use(
+      http.post("/api/groups/:groupId/targets/upload", async ({ request }) => {
+        const form = await request.formData();
+        uploads.push({
+          name: form.get("name"),
+          charge: form.get("charge"),
+          multiplicity: form.get("multiplicity"),
+          // jsdom's File reaches Node's fetch without its bytes; the bytes themselves are checked in
+          // Chromium (tests/e2e/workspace-newcomer.test.ts) and at the route (targets-upload.test.ts).
+          hasFile: form.has("file"),
+        });
+        return HttpResponse.json(
+          { ...waterDetail(), id: "7a260000-0000-4000-8000-00000000000a" },
+          { status: 201 },
+        );
+      }),
+    );
+    const { user } = renderApp(targetsPath);
+    const form = await screen.findByRole("form", { name: "New target" });
+    await user.upload(
+      within(form).getByLabelText("XYZ file"),
+      new File([WATER_XYZ], "water.xyz", { type: "chemical/x-xyz" }),
+    );
+    await waitFor(() => expect(derivedValue("Point group / Abelian subgroup")).toBe("C2v / C2v"));
+    await user.click(within(form).getByRole("button", { name: "Save target" }));
+    await waitFor(() => expect(uploads).toHaveLength(1));
+    expect(uploads[0]).toEqual({ name: "Water", charge: "0", multiplicity: "", hasFile: true });
+    expect(posts).toHaveLength(0);
+  });
+
+  it("sends the atoms, not the file, once a row read from the file was changed", async () => {
+    const { posts } = install();
+    let uploaded = 0;
+    server.use(
+      http.post("/api/groups/:groupId/targets/upload", () => {
+        uploaded += 1;
+        return HttpResponse.json(waterDetail(), { status: 201 });
+      }),
+    );
+    const { user } = renderApp(targetsPath);
+    const form = await screen.findByRole("form", { name: "New target" });
+    await user.upload(
+      within(form).getByLabelText("XYZ file"),
+      new File([WATER_XYZ], "water.xyz", { type: "chemical/x-xyz" }),
+    );
+    await waitFor(() => expect(derivedValue("Point group / Abelian subgroup")).toBe("C2v / C2v"));
+    await user.selectOptions(within(form).getByLabelText("Atom 2 isotope"), "2");
+    await user.click(within(form).getByRole("button", { name: "Save target" }));
+    await waitFor(() => expect(posts).toHaveLength(1));
+    expect(posts[0]).toMatchObject({
+      atoms: [{ symbol: "O" }, { symbol: "H", massNumber: 2 }, { symbol: "H" }],
+    });
+    expect(uploaded).toBe(0);
+  });
+
   it("recentres the atoms on the centre of mass in one click", async () => {
     const { user, form } = await openEditorWithWater();
     await user.click(screen.getByRole("button", { name: "Recentre" }));

@@ -298,4 +298,37 @@ describe("the workspace for a newcomer", () => {
       .toBe(true);
     await screenshot(page, "newcomer-live-view");
   });
+
+  it("enters a chosen XYZ file as it is through the upload route", async () => {
+    const uploads: string[] = [];
+    const onRequest = (request: { url(): string; method(): string }) => {
+      if (request.method() === "POST" && /\/targets(\/upload)?$/.test(new URL(request.url()).pathname)) {
+        uploads.push(new URL(request.url()).pathname);
+      }
+    };
+    page.on("request", onRequest);
+    try {
+      await page.goto(`${env.appUrl}/groups/${groupId}/targets`);
+      const editor = page.getByRole("form", { name: "New target" });
+      await editor.getByLabel("XYZ file", { exact: true }).setInputFiles({
+        name: "aquilon-as-is.xyz",
+        mimeType: "text/plain",
+        buffer: Buffer.from(XYZ.replace(TARGET_NAME, `${TARGET_NAME} as filed`)),
+      });
+      await expect
+        .poll(() => editor.getByRole("status").textContent(), WAIT)
+        .toBe("3 atoms read from aquilon-as-is.xyz.");
+      await editor.getByRole("button", { name: "Save target" }).click();
+      await page.waitForURL(/\/targets\/[0-9a-f-]{36}$/);
+      expect(uploads).toEqual([`/api/groups/${groupId}/targets/upload`]);
+      const id = new URL(page.url()).pathname.split("/").at(-1)!;
+      // The server read the file itself: the atoms it stored are the file's, in its order.
+      const stored = await api("GET", `/api/targets/${id}`);
+      expect(stored.status).toBe(200);
+      expect(stored.body.name).toBe(`${TARGET_NAME} as filed`);
+      expect(stored.body.current.atoms.map((a: { symbol: string }) => a.symbol)).toEqual(["O", "H", "H"]);
+    } finally {
+      page.off("request", onRequest);
+    }
+  });
 });

@@ -8,7 +8,7 @@ import { Input, Textarea } from "@/components/ui/input";
 import { Notice } from "@/components/ui/notice";
 import { describeError } from "@/lib/describe-error";
 import { fieldErrorsFromError } from "@/lib/field-errors";
-import { createTarget, updateTarget } from "../api/target-commands";
+import { createTarget, updateTarget, uploadTarget } from "../api/target-commands";
 import { targetQueries } from "../api/target-queries";
 import { deriveTarget } from "../lib/derive-target";
 import { readXyzFile, readXyzText } from "../lib/read-xyz";
@@ -17,6 +17,7 @@ import {
   type DraftAtom,
   draftAtom,
   formatCoordinate,
+  sameAtoms,
   type TargetDraft,
 } from "../lib/target-draft";
 import { AtomTable } from "./atom-table";
@@ -61,6 +62,8 @@ export function TargetEditor({ groupId, target, onSaved }: TargetEditorProps) {
   const [basis, setBasis] = useState(DEFAULT_BASIS);
   const [diffuseExponent, setDiffuseExponent] = useState("0.03");
   const [dragging, setDragging] = useState(false);
+  /** The XYZ file the atoms came from, with the rows it gave, while they are unchanged. */
+  const [file, setFile] = useState<{ file: File; atoms: DraftAtom[] } | null>(null);
   const fileInput = useRef<HTMLInputElement>(null);
 
   const checked = useMemo(() => checkDraft(draft), [draft]);
@@ -82,10 +85,17 @@ export function TargetEditor({ groupId, target, onSaved }: TargetEditorProps) {
   );
 
   const save = useMutation({
-    mutationFn: async (request: NonNullable<typeof checked.request>) =>
-      target
-        ? (await updateTarget(target.id, { ...request, multiplicity: request.multiplicity ?? null })).id
-        : (await createTarget(groupId, request)).id,
+    mutationFn: async (request: NonNullable<typeof checked.request>) => {
+      if (target) {
+        return (await updateTarget(target.id, { ...request, multiplicity: request.multiplicity ?? null })).id;
+      }
+      // A new target whose atoms are still those of the chosen file is entered from the file itself.
+      if (file && sameAtoms(draft.atoms, file.atoms)) {
+        const { name, charge, multiplicity } = request;
+        return (await uploadTarget(groupId, file.file, { name, charge, multiplicity })).id;
+      }
+      return (await createTarget(groupId, request)).id;
+    },
     onSuccess: (id) => {
       void queryClient.invalidateQueries({ queryKey: targetQueries.all });
       onSaved?.(id);
@@ -110,9 +120,11 @@ export function TargetEditor({ groupId, target, onSaved }: TargetEditorProps) {
     setImportMessage({ ok: true, text: `${result.atoms.length} atoms read from ${source}.` });
   }
 
-  async function takeFile(file: File | undefined) {
-    if (!file) return;
-    take(await readXyzFile(file), file.name);
+  async function takeFile(chosen: File | undefined) {
+    if (!chosen) return;
+    const result = await readXyzFile(chosen);
+    take(result, chosen.name);
+    setFile(result.ok ? { file: chosen, atoms: result.atoms } : null);
   }
 
   function onDrop(event: DragEvent<HTMLDivElement>) {
@@ -225,7 +237,10 @@ export function TargetEditor({ groupId, target, onSaved }: TargetEditorProps) {
               <Button
                 variant="secondary"
                 size="sm"
-                onClick={() => take(readXyzText(xyzText), "the pasted text")}
+                onClick={() => {
+                  setFile(null);
+                  take(readXyzText(xyzText), "the pasted text");
+                }}
               >
                 Read into the table
               </Button>

@@ -16,6 +16,23 @@ export interface DraftAtom {
   z: string;
 }
 
+/** Whether two lists of rows hold the same atoms as typed (row identities aside). */
+export function sameAtoms(a: readonly DraftAtom[], b: readonly DraftAtom[]): boolean {
+  return (
+    a.length === b.length &&
+    a.every((atom, i) => {
+      const other = b[i]!;
+      return (
+        atom.symbol === other.symbol &&
+        atom.massNumber === other.massNumber &&
+        atom.x === other.x &&
+        atom.y === other.y &&
+        atom.z === other.z
+      );
+    })
+  );
+}
+
 export interface TargetDraft {
   name: string;
   charge: string;

@@ -16,6 +16,7 @@ import { Input } from "@/components/ui/input";
 import { Select } from "@/components/ui/select";
 import { isApiRequestError } from "@/lib/api-error";
 import { fieldErrorsFromDetails } from "@/lib/field-errors";
+import { formulaText } from "@/lib/formula";
 import { composerQueries, type StageSchema, submitRun } from "../api/composer-queries";
 import { hostUnfitReason, stageNotInstalledOn } from "../host-fit";
 import { defaultValuesOf, fieldsOfSchema, parametersOf, type SchemaField } from "../parameter-fields";
@@ -219,11 +220,11 @@ export function ComposerForm({ groupId, onSubmitted, onOpenRun }: Props) {
                 <option value="">No target (the recipe does not read one)</option>
                 {(targets.data?.targets ?? []).flatMap((target) => [
                   <option key={target.id} value={target.id}>
-                    {target.name} · {target.formula} · {target.pointGroup}
+                    {target.name} · {formulaText(target.formula)} · {target.pointGroup}
                   </option>,
                   ...target.isotopologues.map((iso) => (
                     <option key={iso.id} value={iso.id}>
-                      {"\u2003"}isotopologue {iso.name} · {iso.formula} · {iso.pointGroup}
+                      {"\u2003"}isotopologue {iso.name} · {formulaText(iso.formula)} · {iso.pointGroup}
                     </option>
                   )),
                 ])}

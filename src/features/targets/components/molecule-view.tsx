@@ -1,5 +1,6 @@
 import type { TargetInspection } from "@shared/science/geometry";
 import { useEffect, useRef, useState } from "react";
+import { formulaText } from "@/lib/formula";
 
 /** True when the browser can give a WebGL context (headless browsers and jsdom often cannot). */
 function webglAvailable(): boolean {
@@ -117,7 +118,7 @@ export function MoleculeView({ inspection }: { inspection: TargetInspection }) {
       ) : (
         <div
           ref={container}
-          aria-label={`3D view of ${inspection.formula}`}
+          aria-label={`3D view of ${formulaText(inspection.formula)}`}
           role="img"
           className="relative h-72 w-full overflow-hidden rounded-lg border border-ink-100"
         />

@@ -197,6 +197,15 @@ export function attachLiveFeed(
               reply({ ok: false, error: { code: error.code, message: error.message } });
               return;
             }
+            if (isPoolWaitTimeout(error)) {
+              // Every connection of the pool was busy for its whole wait: the browser asks again.
+              log.warn({ event }, "live feed: no database connection came free in time");
+              reply({
+                ok: false,
+                error: { code: "busy", message: "The server is busy; asking again shortly." },
+              });
+              return;
+            }
             log.error({ err: error, event }, "live feed: handling a client event failed");
             reply({
               ok: false,
@@ -351,4 +360,16 @@ export function attachLiveFeed(
       io.engine.close();
     },
   };
+}
+
+/**
+ * node-postgres's refusal when no pooled connection came free within `connectionTimeoutMillis`, also as
+ * the cause of Drizzle's query error.
+ */
+function isPoolWaitTimeout(error: unknown): boolean {
+  for (let current = error, depth = 0; current instanceof Error && depth < 5; depth++) {
+    if (current.message === "timeout exceeded when trying to connect") return true;
+    current = current.cause;
+  }
+  return false;
 }

@@ -165,6 +165,24 @@ async function terminalShown(): Promise<FakeTerminal> {
 }
 
 describe("the live run page", () => {
+  it("asks again when the server is busy, and shows a refusal only when it is final", async () => {
+    setUp();
+    const socket = await connected();
+    await terminalShown();
+    const logJoins = () => socket.sent("run:join").filter((sent) => (sent.payload as { log: boolean }).log);
+    await waitFor(() => expect(logJoins()).toHaveLength(1));
+    act(() => logJoins()[0]!.ack?.({ ok: false, error: { code: "busy", message: "The server is busy." } }));
+    // About a second later the same join goes again, from the same place in the log.
+    await waitFor(() => expect(logJoins()).toHaveLength(2), { timeout: 3_000 });
+    expect(logJoins()[1]!.payload).toEqual({ runId: RUN_IDS.running, afterSeq: 0, log: true });
+    expect(screen.queryByText("The server is busy.")).toBeNull();
+    // A final answer (no access) is shown, and not asked again.
+    act(() => logJoins()[1]!.ack?.({ ok: false, error: { code: "not_found", message: "Run not found." } }));
+    expect(await screen.findByText(/Run not found\./)).toBeInTheDocument();
+    await new Promise((resolve) => setTimeout(resolve, 1_500));
+    expect(logJoins()).toHaveLength(2);
+  });
+
   it("joins with the last sequence number held, and a reconnect neither loses nor repeats a chunk", async () => {
     setUp();
     const socket = await connected();

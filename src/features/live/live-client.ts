@@ -80,6 +80,10 @@ function toBytes(data: ArrayBufferView | ArrayBuffer): Uint8Array {
     : new Uint8Array(data);
 }
 
+/** Answers to a join that say "not now" rather than "no": the join is sent again after these delays. */
+const TRANSIENT_JOIN_ERRORS = new Set(["busy", "too_many_requests", "internal_error"]);
+const JOIN_RETRY_DELAYS_MS = [1_000, 2_000, 4_000, 8_000];
+
 export class LiveClient {
   private readonly socket: Socket;
   private currentStatus: LiveStatus = "connecting";
@@ -209,14 +213,22 @@ export class LiveClient {
     if (this.socket.connected) this.socket.emit(LIVE_EVENTS.leaveRun, { runId });
   }
 
-  private join(runId: string, event: typeof LIVE_EVENTS.joinRun | typeof LIVE_EVENTS.resumeRun) {
+  private join(runId: string, event: typeof LIVE_EVENTS.joinRun | typeof LIVE_EVENTS.resumeRun, attempt = 0) {
     const entry = this.runs.get(runId);
     if (!entry) return;
     // A page that shows no log (state and timings only) does not have the whole log replayed to it.
     const payload: LiveJoinRun = { runId, afterSeq: entry.lastSeq, log: entry.follower !== null };
     this.socket.emit(event, payload, (raw: unknown) => {
       const ack = liveAckSchema.safeParse(raw);
-      if (ack.success && !ack.data.ok) entry.follower?.onRefused?.(ack.data.error.message);
+      if (!ack.success || ack.data.ok) return;
+      // A busy server is asked again, later each time; a refusal (no access, no such run) is final.
+      if (TRANSIENT_JOIN_ERRORS.has(ack.data.error.code) && attempt < JOIN_RETRY_DELAYS_MS.length) {
+        setTimeout(() => {
+          if (this.runs.get(runId) === entry && this.socket.connected) this.join(runId, event, attempt + 1);
+        }, JOIN_RETRY_DELAYS_MS[attempt]);
+        return;
+      }
+      entry.follower?.onRefused?.(ack.data.error.message);
     });
   }
 

@@ -280,6 +280,7 @@ describe("the live run page", () => {
     const socket = await connected();
     await screen.findByRole("heading", { name: "HNCO cc-pVDZ inner region" });
     await user.click(screen.getByRole("button", { name: "Cancel" }));
+    await user.click(within(await screen.findByRole("dialog")).getByRole("button", { name: "Cancel run" }));
     expect(await screen.findByRole("button", { name: "Cancelling…" })).toBeDisabled();
     expect(
       api.requests.some((r) => r.method === "POST" && r.path === `/api/runs/${RUN_IDS.running}/cancel`),

@@ -32,6 +32,11 @@ describe("runs page", () => {
     expect(within(done).getByRole("button", { name: "Resubmit" })).toBeInTheDocument();
 
     await user.click(within(running).getByRole("button", { name: "Cancel" }));
+    // Asked first, with the safe answer focused; nothing is sent before the confirmation.
+    const dialog = await screen.findByRole("dialog", { name: "Cancel HNCO cc-pVDZ inner region?" });
+    expect(within(dialog).getByRole("button", { name: "Keep it" })).toHaveFocus();
+    expect(api.requests.some((r) => r.method === "POST")).toBe(false);
+    await user.click(within(dialog).getByRole("button", { name: "Cancel run" }));
     await waitFor(() => expect(api.requests.some((r) => r.method === "POST")).toBe(true));
     const post = api.requests.find((r) => r.method === "POST");
     expect(post?.path).toBe(`/api/runs/${RUN_IDS.running}/cancel`);

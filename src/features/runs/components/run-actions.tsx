@@ -2,6 +2,7 @@ import type { RunSpec, RunSummary } from "@shared/schemas";
 import { useMutation, useQueryClient } from "@tanstack/react-query";
 import { useState } from "react";
 import { Button } from "@/components/ui/button";
+import { ConfirmDialog } from "@/components/ui/dialog";
 import { Notice } from "@/components/ui/notice";
 import { describeError } from "@/lib/describe-error";
 import { cancelRun, resubmitRun } from "../api/run-commands";
@@ -21,8 +22,15 @@ export function RunActions({
 }) {
   const queryClient = useQueryClient();
   const [editing, setEditing] = useState(false);
+  const [confirmingCancel, setConfirmingCancel] = useState(false);
   const refresh = () => queryClient.invalidateQueries({ queryKey: runQueries.all });
-  const cancel = useMutation({ mutationFn: () => cancelRun(run.id), onSuccess: refresh });
+  const cancel = useMutation({
+    mutationFn: () => cancelRun(run.id),
+    onSuccess: () => {
+      setConfirmingCancel(false);
+      return refresh();
+    },
+  });
   const resubmit = useMutation({
     mutationFn: () => resubmitRun(run.id),
     onSuccess: (created) => {
@@ -30,7 +38,8 @@ export function RunActions({
       onResubmitted?.(created.id);
     },
   });
-  const failure = cancel.error ?? resubmit.error;
+  // A failed cancel is shown in its dialog.
+  const failure = resubmit.error;
   const spec = run.spec;
   return (
     <div className="flex flex-col items-end gap-2">
@@ -55,8 +64,9 @@ export function RunActions({
           <Button
             size="sm"
             variant="ghost-danger"
-            onClick={() => cancel.mutate()}
+            onClick={() => setConfirmingCancel(true)}
             disabled={cancel.isPending || run.cancelRequested}
+            aria-haspopup="dialog"
           >
             {run.cancelRequested ? "Cancelling…" : "Cancel"}
           </Button>
@@ -67,6 +77,20 @@ export function RunActions({
           {describeError(failure).message}
         </Notice>
       ) : null}
+      <ConfirmDialog
+        open={confirmingCancel}
+        title={`Cancel ${run.name}?`}
+        confirmLabel="Cancel run"
+        cancelLabel="Keep it"
+        pending={cancel.isPending}
+        error={cancel.error}
+        onConfirm={() => cancel.mutate()}
+        onClose={() => setConfirmingCancel(false)}
+      >
+        {run.state === "queued"
+          ? "It has not started: it will not start."
+          : "It is stopped on its host; the core-hours it used so far are charged."}
+      </ConfirmDialog>
       {editing && spec ? (
         <ResubmitDialog
           run={{ id: run.id, name: run.name, recipeId: run.recipeId, spec }}

@@ -1,6 +1,7 @@
 import type { RunListSort, RunSummary } from "@shared/schemas";
 import { useQuery } from "@tanstack/react-query";
 import {
+  type CellContext,
   type ColumnDef,
   flexRender,
   getCoreRowModel,
@@ -173,9 +174,18 @@ function columnsFor(groupId: string, canAct: boolean, options: RunFilterOptions)
       id: "actions",
       enableSorting: false,
       header: () => <span className="sr-only sm:not-sr-only">Actions</span>,
-      cell: ({ row }) => <RunActions run={row.original} />,
+      cell: RunActionsCell,
     },
   ];
+}
+
+/**
+ * The actions cell as a component of its own: react-table renders a cell function as a component, so
+ * one written inline would be a new component whenever the columns are made again (the filter options
+ * arriving) and would lose its state, such as an open confirmation.
+ */
+function RunActionsCell({ row }: CellContext<RunSummary, unknown>) {
+  return <RunActions run={row.original} />;
 }
 
 export function RunsTable({

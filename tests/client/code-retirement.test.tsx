@@ -4,11 +4,12 @@
  * confirmation) and Bring back buttons on a version's detail, and the recipe builder leaving retired
  * versions out.
  */
-import type { Code, CodeDefinition } from "@shared/schemas";
+import type { Code } from "@shared/schemas";
 import { screen, waitFor, within } from "@testing-library/react";
 import userEvent from "@testing-library/user-event";
 import { HttpResponse, http } from "msw";
 import { describe, expect, it } from "vitest";
+import { codeDefinition } from "./support/code-fixtures";
 import { installFakeApi } from "./support/fake-api";
 import { KESTREL_ID, kestrel, people } from "./support/fixtures";
 import { renderApp } from "./support/render-app";
@@ -19,23 +20,6 @@ const codesPath = `/groups/${KESTREL_ID}/codes`;
 const CREATED = "2026-11-21T08:00:00.000Z";
 const RETIRED = "2026-11-28T10:00:00.000Z";
 
-function definition(name: string, version: string): CodeDefinition {
-  return {
-    name,
-    version,
-    description: "",
-    executable: `/opt/codes/bin/${name}`,
-    arguments: [],
-    setupLines: [],
-    inputTemplates: [],
-    parameters: { type: "object", properties: {} },
-    outputFiles: [],
-    outputRules: { progress: [], timings: [] },
-    resultFiles: [],
-    defaults: { cores: 4, wallTimeMinutes: 30 },
-  };
-}
-
 const ids = {
   old: "c0de0000-0000-4000-8000-000000000001",
   current: "c0de0000-0000-4000-8000-000000000002",
@@ -45,18 +29,23 @@ const ids = {
 /** hf-orbitals 1.0 (retired), hf-orbitals 1.1 and radial-scatter 0.3, in the API's order by name. */
 function installCodesApi() {
   const codes: Code[] = [
-    { id: ids.old, groupId: KESTREL_ID, definition: definition("hf-orbitals", "1.0"), createdAt: CREATED },
+    {
+      id: ids.old,
+      groupId: KESTREL_ID,
+      definition: codeDefinition({ name: "hf-orbitals", version: "1.0" }),
+      createdAt: CREATED,
+    },
     {
       id: ids.current,
       groupId: KESTREL_ID,
-      definition: definition("hf-orbitals", "1.1"),
+      definition: codeDefinition({ name: "hf-orbitals", version: "1.1" }),
       createdAt: CREATED,
       retiredAt: null,
     },
     {
       id: ids.scatter,
       groupId: KESTREL_ID,
-      definition: definition("radial-scatter", "0.3"),
+      definition: codeDefinition({ name: "radial-scatter", version: "0.3" }),
       createdAt: CREATED,
       retiredAt: null,
     },

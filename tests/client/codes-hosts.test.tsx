@@ -4,10 +4,11 @@
  * "Installed on" ticks of a version's detail saved with PATCH /api/codes/:codeId { hostIds }, the
  * server's refusal beside them, and a collaborator reading them without Save.
  */
-import type { Code, CodeDefinition, Host } from "@shared/schemas";
+import type { Code } from "@shared/schemas";
 import { screen, waitFor, within } from "@testing-library/react";
 import { HttpResponse, http } from "msw";
 import { describe, expect, it } from "vitest";
+import { codeDefinition, hostFixture } from "./support/code-fixtures";
 import { apiError, installFakeApi } from "./support/fake-api";
 import { KESTREL_ID, kestrel, people } from "./support/fixtures";
 import { renderApp } from "./support/render-app";
@@ -24,41 +25,6 @@ const ids = {
   petrel: "4057aaaa-0000-4000-8000-000000000002",
 };
 
-function definition(name: string, version: string): CodeDefinition {
-  return {
-    name,
-    version,
-    description: "",
-    executable: `/opt/codes/bin/${name}`,
-    arguments: [],
-    setupLines: [],
-    inputTemplates: [],
-    parameters: { type: "object", properties: {} },
-    outputFiles: [],
-    outputRules: { progress: [], timings: [] },
-    resultFiles: [],
-    defaults: { cores: 4, wallTimeMinutes: 30 },
-  };
-}
-
-function host(id: string, name: string, scheduler: Host["scheduler"]): Host {
-  return {
-    id,
-    groupId: KESTREL_ID,
-    name,
-    address: `${name}.example`,
-    port: 22,
-    scheduler,
-    remoteBaseDir: "/scratch/sigmaflow",
-    maxConcurrentRuns: 4,
-    hostKeyFingerprint: "SHA256:abc",
-    hostKeyConfirmed: true,
-    status: "ok",
-    statusMessage: null,
-    createdAt: CREATED,
-  };
-}
-
 /** hf-orbitals 1.1 (not pinned) and radial-scatter 0.3 (installed on petrel); hosts tern and petrel. */
 function installCodesApi(role: "member" | "collaborator" = "member") {
   const me = {
@@ -68,13 +34,15 @@ function installCodesApi(role: "member" | "collaborator" = "member") {
   installFakeApi({
     me,
     groups: [{ ...kestrel, myRole: role }],
-    hosts: { [KESTREL_ID]: [host(ids.tern, "tern", "slurm"), host(ids.petrel, "petrel", "direct")] },
+    hosts: {
+      [KESTREL_ID]: [hostFixture(ids.tern, "tern", "slurm"), hostFixture(ids.petrel, "petrel", "direct")],
+    },
   });
   const codes: Code[] = [
     {
       id: ids.orbitals,
       groupId: KESTREL_ID,
-      definition: definition("hf-orbitals", "1.1"),
+      definition: codeDefinition({ name: "hf-orbitals", version: "1.1" }),
       createdAt: CREATED,
       retiredAt: null,
       hostIds: [],
@@ -82,7 +50,7 @@ function installCodesApi(role: "member" | "collaborator" = "member") {
     {
       id: ids.scatter,
       groupId: KESTREL_ID,
-      definition: definition("radial-scatter", "0.3"),
+      definition: codeDefinition({ name: "radial-scatter", version: "0.3" }),
       createdAt: CREATED,
       retiredAt: null,
       hostIds: [ids.petrel],

@@ -8,6 +8,7 @@ import { screen, waitFor, within } from "@testing-library/react";
 import userEvent from "@testing-library/user-event";
 import { HttpResponse, http } from "msw";
 import { afterEach, beforeEach, describe, expect, it, vi } from "vitest";
+import { codeDefinition } from "./support/code-fixtures";
 import { installFakeApi } from "./support/fake-api";
 import { KESTREL_ID, kestrel, people } from "./support/fixtures";
 import { renderApp } from "./support/render-app";
@@ -17,24 +18,7 @@ import { TARGET_IDS, targetList } from "./support/target-fixtures";
 const codesPath = `/groups/${KESTREL_ID}/codes`;
 const CREATED = "2026-11-21T08:00:00.000Z";
 
-function definition(overrides: Partial<CodeDefinition> & Pick<CodeDefinition, "name">): CodeDefinition {
-  return {
-    version: "1.0",
-    description: "",
-    executable: `/opt/codes/bin/${overrides.name}`,
-    arguments: [],
-    setupLines: [],
-    inputTemplates: [],
-    parameters: { type: "object", properties: {} },
-    outputFiles: [],
-    outputRules: { progress: [], timings: [] },
-    resultFiles: [],
-    defaults: { cores: 4, wallTimeMinutes: 30 },
-    ...overrides,
-  };
-}
-
-const orbitals = definition({
+const orbitals = codeDefinition({
   name: "orbital-scf",
   version: "2.0",
   description: "Target orbitals",
@@ -55,7 +39,7 @@ const orbitals = definition({
   resultFiles: [{ fileName: "orbitals.dat", reader: "orbital-table" }],
 });
 
-const solver = definition({
+const solver = codeDefinition({
   name: "kmatrix-solver",
   stdinFile: "solve.in",
   inputTemplates: [{ fileName: "solve.in", format: "text", template: "read orbitals.dat\n" }],

@@ -8,6 +8,7 @@ import type { Code, Host, Recipe, RunDetail, RunPreview } from "@shared/schemas"
 import { screen, waitFor, within } from "@testing-library/react";
 import { HttpResponse, http } from "msw";
 import { describe, expect, it } from "vitest";
+import { hostFixture } from "./support/code-fixtures";
 import { installFakeApi } from "./support/fake-api";
 import { KESTREL_ID, kestrel, people } from "./support/fixtures";
 import { renderApp } from "./support/render-app";
@@ -76,21 +77,7 @@ const code: Code = {
   },
 };
 
-const host: Host = {
-  id: HOST_ID,
-  groupId: KESTREL_ID,
-  name: "tern",
-  address: "tern.example",
-  port: 22,
-  scheduler: "slurm",
-  remoteBaseDir: "/scratch/sigmaflow",
-  maxConcurrentRuns: 4,
-  hostKeyFingerprint: "SHA256:abc",
-  hostKeyConfirmed: true,
-  status: "ok",
-  statusMessage: null,
-  createdAt: "2026-11-01T09:00:00.000Z",
-};
+const host = hostFixture(HOST_ID, "tern", "slurm");
 
 type SpecBody = {
   name: string;

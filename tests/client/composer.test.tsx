@@ -8,7 +8,7 @@ import type { Code, Host, Recipe, RunDetail, RunPreview } from "@shared/schemas"
 import { screen, waitFor, within } from "@testing-library/react";
 import { HttpResponse, http } from "msw";
 import { describe, expect, it } from "vitest";
-import { hostFixture } from "./support/code-fixtures";
+import { codeDefinition, hostFixture } from "./support/code-fixtures";
 import { installFakeApi } from "./support/fake-api";
 import { KESTREL_ID, kestrel, people } from "./support/fixtures";
 import { renderApp } from "./support/render-app";
@@ -61,20 +61,12 @@ const code: Code = {
   id: CODE_ID,
   groupId: KESTREL_ID,
   createdAt: "2026-11-01T09:00:00.000Z",
-  definition: {
+  definition: codeDefinition({
     name: "radial-scatter",
-    version: "1.0",
-    description: "",
     executable: "/usr/bin/true",
-    arguments: [],
-    setupLines: [],
-    inputTemplates: [],
     parameters,
-    outputFiles: [],
-    outputRules: { progress: [], timings: [] },
-    resultFiles: [],
     defaults: { cores: 1, wallTimeMinutes: 60 },
-  },
+  }),
 };
 
 const host = hostFixture(HOST_ID, "tern", "slurm");

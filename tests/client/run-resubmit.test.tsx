@@ -8,6 +8,7 @@ import type { Code, Recipe, RunDetail } from "@shared/schemas";
 import { screen, waitFor, within } from "@testing-library/react";
 import { HttpResponse, http } from "msw";
 import { describe, expect, it } from "vitest";
+import { codeDefinition } from "./support/code-fixtures";
 import { apiError, installFakeApi } from "./support/fake-api";
 import { KESTREL_ID, kestrel, people } from "./support/fixtures";
 import { renderApp } from "./support/render-app";
@@ -36,20 +37,13 @@ function code(id: string, name: string, version: string, parameters: Record<stri
     id,
     groupId: KESTREL_ID,
     createdAt: "2026-11-01T09:00:00.000Z",
-    definition: {
+    definition: codeDefinition({
       name,
       version,
-      description: "",
       executable: "/usr/bin/true",
-      arguments: [],
-      setupLines: [],
-      inputTemplates: [],
       parameters,
-      outputFiles: [],
-      outputRules: { progress: [], timings: [] },
-      resultFiles: [],
       defaults: { cores: 1, wallTimeMinutes: 60 },
-    },
+    }),
   };
 }
 

@@ -8,7 +8,7 @@ import { screen, waitFor, within } from "@testing-library/react";
 import { HttpResponse, http } from "msw";
 import { describe, expect, it } from "vitest";
 import { installFakeApi } from "./support/fake-api";
-import { KESTREL_ID, kestrel, people, USER_IDS } from "./support/fixtures";
+import { KESTREL_ID, kestrel, people, tomasAsCollaborator, USER_IDS } from "./support/fixtures";
 import { renderApp } from "./support/render-app";
 import { kestrelRuns, RUN_IDS } from "./support/run-fixtures";
 import { server } from "./support/server";
@@ -212,12 +212,8 @@ describe("bulk actions on the selected runs", () => {
   });
 
   it("offers no selection to collaborators", async () => {
-    const collaborator = {
-      ...people.tomas,
-      memberships: people.tomas.memberships.map((m) => ({ ...m, role: "collaborator" as const })),
-    };
     installFakeApi({
-      me: collaborator,
+      me: tomasAsCollaborator(),
       groups: [{ ...kestrel, myRole: "collaborator" }],
       runs: { [KESTREL_ID]: kestrelRuns() },
     });

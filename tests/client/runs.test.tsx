@@ -7,7 +7,7 @@
 import { screen, waitFor, within } from "@testing-library/react";
 import { describe, expect, it } from "vitest";
 import { installFakeApi } from "./support/fake-api";
-import { KESTREL_ID, kestrel, people } from "./support/fixtures";
+import { KESTREL_ID, kestrel, people, tomasAsCollaborator } from "./support/fixtures";
 import { renderApp } from "./support/render-app";
 import { kestrelRuns, RUN_IDS } from "./support/run-fixtures";
 
@@ -45,12 +45,8 @@ describe("runs page", () => {
   });
 
   it("gives collaborators no actions", async () => {
-    const collaborator = {
-      ...people.tomas,
-      memberships: people.tomas.memberships.map((m) => ({ ...m, role: "collaborator" as const })),
-    };
     installFakeApi({
-      me: collaborator,
+      me: tomasAsCollaborator(),
       groups: [{ ...kestrel, myRole: "collaborator" }],
       runs: { [KESTREL_ID]: kestrelRuns() },
     });

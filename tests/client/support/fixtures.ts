@@ -118,6 +118,14 @@ export function kestrelMembers(): Member[] {
   ];
 }
 
+/** Tomás as a read-only collaborator of his groups: what a collaborator's session looks like. */
+export function tomasAsCollaborator(): Me {
+  return {
+    ...people.tomas,
+    memberships: people.tomas.memberships.map((m) => ({ ...m, role: "collaborator" as const })),
+  };
+}
+
 export function pendingInvitation(overrides: Partial<Invitation> = {}): Invitation {
   return {
     id: "c0ffee00-1234-4abc-9def-000000000001",

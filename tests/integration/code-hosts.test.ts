@@ -8,17 +8,18 @@
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { type Api, apiClient } from "./support/api-client";
 import {
+  type EngineScenario,
   type FakeHost,
   registerDevHost,
   registerShellRecipe,
   runSpec,
   type Sigmaflow,
-  startFakeHost,
-  startSigmaflow,
+  startEngineScenario,
 } from "./support/lifecycle-harness";
 import { addMember, createGroup, createUser, tokenFor } from "./support/people";
-import { createTestDatabase, type TestDatabase } from "./support/test-database";
+import type { TestDatabase } from "./support/test-database";
 
+let scenario: EngineScenario;
 let database: TestDatabase;
 let sf: Sigmaflow;
 let host: FakeHost;
@@ -31,10 +32,11 @@ let prepareLabel = "";
 const as: { collaborator: Api; otherAdmin: Api } = {} as never;
 
 beforeAll(async () => {
-  database = await createTestDatabase("code_hosts");
-  sf = await startSigmaflow(database, { inProcessWorker: false });
-  host = await startFakeHost();
-  installedHostId = await registerDevHost(sf, host, { name: "orbital-node" });
+  scenario = await startEngineScenario("code_hosts", {
+    sigmaflow: { inProcessWorker: false },
+    host: { name: "orbital-node" },
+  });
+  ({ database, sf, host, hostId: installedHostId } = scenario);
   otherHostId = await registerDevHost(sf, host, { name: "spare-node" });
   recipeId = await registerShellRecipe(sf, "pinned");
   const recipe = await sf.api("GET", `/api/recipes/${recipeId}`);
@@ -62,9 +64,7 @@ beforeAll(async () => {
 }, 60_000);
 
 afterAll(async () => {
-  await sf?.close();
-  await host?.stop();
-  await database?.drop();
+  await scenario?.close();
 });
 
 const pin = (api: Api, hostIds: unknown) => api("PATCH", `/api/codes/${prepareCodeId}`, { hostIds });

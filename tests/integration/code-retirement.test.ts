@@ -7,21 +7,19 @@
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { type Api, apiClient } from "./support/api-client";
 import {
-  type FakeHost,
-  registerDevHost,
+  type EngineScenario,
   registerShellRecipe,
   runSpec,
   type Sigmaflow,
-  startFakeHost,
-  startSigmaflow,
+  startEngineScenario,
 } from "./support/lifecycle-harness";
 import { addMember, createGroup, createUser, tokenFor } from "./support/people";
-import { createTestDatabase, type TestDatabase } from "./support/test-database";
+import type { TestDatabase } from "./support/test-database";
 import { waitFor } from "./support/wait-for";
 
+let scenario: EngineScenario;
 let database: TestDatabase;
 let sf: Sigmaflow;
-let host: FakeHost;
 let hostId = "";
 let recipeId = "";
 let prepareCode = { id: "", name: "", version: "" };
@@ -30,10 +28,11 @@ let earlierRunId = "";
 const as: { member: Api; collaborator: Api; otherAdmin: Api } = {} as never;
 
 beforeAll(async () => {
-  database = await createTestDatabase("code_retirement");
-  sf = await startSigmaflow(database, { inProcessWorker: false });
-  host = await startFakeHost();
-  hostId = await registerDevHost(sf, host, { name: "retirement-host" });
+  scenario = await startEngineScenario("code_retirement", {
+    sigmaflow: { inProcessWorker: false },
+    host: { name: "retirement-host" },
+  });
+  ({ database, sf, hostId } = scenario);
   recipeId = await registerShellRecipe(sf, "retiring");
   const recipe = await sf.api("GET", `/api/recipes/${recipeId}`);
   expect(recipe.status, JSON.stringify(recipe.body)).toBe(200);
@@ -64,9 +63,7 @@ beforeAll(async () => {
 }, 60_000);
 
 afterAll(async () => {
-  await sf?.close();
-  await host?.stop();
-  await database?.drop();
+  await scenario?.close();
 });
 
 const retire = (api: Api, codeId: string, retired: unknown) =>

@@ -7,17 +7,18 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { apiClient } from "./support/api-client";
 import { type Caller, createMatrixCallers, describeMatrix, groupWrite } from "./support/authorization-matrix";
 import {
+  type EngineScenario,
   type FakeHost,
   registerDevHost,
   registerShellRecipe,
   runSpec,
   type Sigmaflow,
-  startFakeHost,
-  startSigmaflow,
+  startEngineScenario,
 } from "./support/lifecycle-harness";
 import { addMember, createGroup, createUser, tokenFor } from "./support/people";
-import { createTestDatabase, type TestDatabase } from "./support/test-database";
+import type { TestDatabase } from "./support/test-database";
 
+let scenario: EngineScenario;
 let database: TestDatabase;
 let sf: Sigmaflow;
 let host: FakeHost;
@@ -31,10 +32,11 @@ const matrix = { groupId: "", hostId: "", recipeId: "", tokens: new Map<Caller, 
 const GRANTED_CORE_HOURS = 1000;
 
 beforeAll(async () => {
-  database = await createTestDatabase("run_preview");
-  sf = await startSigmaflow(database, { coreHours: GRANTED_CORE_HOURS, inProcessWorker: false });
-  host = await startFakeHost();
-  hostId = await registerDevHost(sf, host, { name: "preview-host" });
+  scenario = await startEngineScenario("run_preview", {
+    sigmaflow: { coreHours: GRANTED_CORE_HOURS, inProcessWorker: false },
+    host: { name: "preview-host" },
+  });
+  ({ database, sf, host, hostId } = scenario);
   recipeId = await registerShellRecipe(sf, "preview");
 
   const callers = await createMatrixCallers(database.db);
@@ -57,9 +59,7 @@ beforeAll(async () => {
 }, 60_000);
 
 afterAll(async () => {
-  await sf?.close();
-  await host?.stop();
-  await database?.drop();
+  await scenario?.close();
 });
 
 const preview = (spec: unknown) => sf.api("POST", `/api/groups/${sf.groupId}/runs/preview`, { spec });

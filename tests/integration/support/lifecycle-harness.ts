@@ -183,10 +183,13 @@ export function registerDevHost(
  */
 export async function startEngineScenario(
   label: string,
-  options: { host?: Parameters<typeof registerDevHost>[2] } = {},
+  options: {
+    host?: Parameters<typeof registerDevHost>[2];
+    sigmaflow?: Parameters<typeof startSigmaflow>[1];
+  } = {},
 ) {
   const database = await createTestDatabase(label);
-  const sf = await startSigmaflow(database);
+  const sf = await startSigmaflow(database, options.sigmaflow);
   const host = await startFakeHost();
   const hostId = await registerDevHost(sf, host, options.host);
   return {

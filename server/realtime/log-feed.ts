@@ -25,37 +25,39 @@ import type { Socket } from "socket.io";
 import { LIVE_EVENTS, type LiveLogChunk } from "../../shared/schemas/live";
 import type { Database } from "../db/client";
 import type { Logger } from "../logger";
-import { readRunLogChunks } from "../services/run-log.service";
+import { readRunLogPage } from "../services/run-log.service";
 
 /**
- * Chunks read per query while catching up: a chunk holds at most 256 KiB (the worker's read per poll),
- * so a page stays within 8 MiB even of the largest chunks.
+ * A page read while catching up: the chunks that fit in 4 MiB (at least one; a chunk holds at most
+ * 256 KiB, the worker's read per poll), at most 1 024 of them. Streamed logs are stored in many small
+ * chunks, so a page by bytes takes a late joiner through a long log in few queries.
  */
-const PAGE_CHUNKS = 32;
+const PAGE_MAX_CHUNKS = 1024;
+const PAGE_MAX_BYTES = 4 * 1024 * 1024;
 /** After this long without an acknowledgement socket.io forgets the callback; the bytes stay counted. */
 const ACK_TIMEOUT_MS = 120_000;
 /** Pause before a failed read of the stored log is tried again. */
 export const READ_RETRY_MS = 1000;
 
-type LogPage = Awaited<ReturnType<typeof readRunLogChunks>>;
+type LogPage = Awaited<ReturnType<typeof readRunLogPage>>;
 
 /**
- * Reads of stored log pages shared by the feeds of one process: a read of (run, after seq, page size)
- * asked for while the same one is in flight joins it. `forget(runId)` (new chunks were stored) lets
+ * Reads of stored log pages shared by the feeds of one process: a read of (run, after seq) asked for
+ * while the same one is in flight joins it. `forget(runId)` (new chunks were stored) lets
  * later readers start a fresh read, so nobody woken by a notice is served a page read before it.
  */
 export class SharedLogReads {
-  private readonly inFlight = new Map<string, Map<string, Promise<LogPage>>>();
+  private readonly inFlight = new Map<string, Map<number, Promise<LogPage>>>();
 
   constructor(private readonly db: Database) {}
 
-  read(logRunId: string, afterSeq: number, limit: number): Promise<LogPage> {
-    const reads = this.inFlight.get(logRunId) ?? new Map<string, Promise<LogPage>>();
+  read(logRunId: string, afterSeq: number): Promise<LogPage> {
+    const reads = this.inFlight.get(logRunId) ?? new Map<number, Promise<LogPage>>();
     this.inFlight.set(logRunId, reads);
-    const key = `${afterSeq}:${limit}`;
+    const key = afterSeq;
     const existing = reads.get(key);
     if (existing) return existing;
-    const page = readRunLogChunks(this.db, logRunId, afterSeq, limit).finally(() => {
+    const page = readRunLogPage(this.db, logRunId, afterSeq, PAGE_MAX_CHUNKS, PAGE_MAX_BYTES).finally(() => {
       if (reads.get(key) !== page) return;
       reads.delete(key);
       if (reads.size === 0 && this.inFlight.get(logRunId) === reads) this.inFlight.delete(logRunId);
@@ -198,11 +200,11 @@ export class RunLogFeed {
       for (;;) {
         const generation = this.generation;
         // Shared with the process's other feeds of this run: the page is read-only here.
-        const page = await reads.read(this.logRunId, this.lastSentSeq, PAGE_CHUNKS);
+        const page = await reads.read(this.logRunId, this.lastSentSeq);
         if (this.stopped || this.paused) return;
         // Restarted while reading: this page starts at the old cursor; read from the new one.
         if (generation !== this.generation) continue;
-        for (const chunk of page) {
+        for (const chunk of page.chunks) {
           if (chunk.seq <= this.lastSentSeq) continue;
           if (!budget.allows(chunk.content.byteLength)) {
             this.paused = true;
@@ -222,7 +224,7 @@ export class RunLogFeed {
           });
           this.lastSentSeq = chunk.seq;
         }
-        if (page.length < PAGE_CHUNKS) break;
+        if (!page.more) break;
       }
     } while (this.again && !this.stopped && !this.paused);
   }

@@ -51,8 +51,8 @@ export async function readRunLogChunks(
  * and whether more chunks follow. Sizes are read first (`octet_length` of a bytea needs no detoasting),
  * then only the chosen chunks' bytes.
  */
-async function readPage(
-  db: Database,
+export async function readRunLogPage(
+  db: DbExecutor | Database,
   runId: string,
   afterSeq: number,
   limit: number,
@@ -102,7 +102,7 @@ export async function readRunLog(
 ): Promise<RunLog> {
   const run = await visibleRun(db, principal, runId, "collaborator");
   const final = FINAL_RUN_STATES.includes(run.state);
-  const page = await readPage(
+  const page = await readRunLogPage(
     db,
     run.reusedFrom ?? run.id,
     query.afterSeq,

@@ -4,11 +4,11 @@
  * as the run used them, typed from the stage's code; only changed values are sent; mistakes and the
  * server's 422 are shown beside the field they are about.
  */
-import type { Code, Recipe, RunDetail } from "@shared/schemas";
+import type { Code, Host, Recipe, RunDetail } from "@shared/schemas";
 import { screen, waitFor, within } from "@testing-library/react";
 import { HttpResponse, http } from "msw";
 import { describe, expect, it } from "vitest";
-import { codeDefinition } from "./support/code-fixtures";
+import { codeDefinition, hostFixture } from "./support/code-fixtures";
 import { apiError, installFakeApi } from "./support/fake-api";
 import { KESTREL_ID, kestrel, people } from "./support/fixtures";
 import { renderApp } from "./support/render-app";
@@ -62,7 +62,7 @@ const codes: Record<string, Code> = {
   }),
 };
 
-function setUp() {
+function setUp(hosts: Host[] = []) {
   const runs = kestrelRuns();
   const done = runs.find((run) => run.id === RUN_IDS.done)!;
   done.spec = {
@@ -76,6 +76,7 @@ function setUp() {
     me: people.tomas,
     groups: [{ ...kestrel, myRole: "member" }],
     runs: { [KESTREL_ID]: runs },
+    hosts: { [KESTREL_ID]: hosts },
   });
   const posts: { path: string; csrf: string | null; body: unknown }[] = [];
   server.use(
@@ -119,6 +120,36 @@ async function openForm() {
 }
 
 describe("resubmit with changes", () => {
+  it("sends another host when one is chosen, and offers no host where a stage's code is missing", async () => {
+    const runs = kestrelRuns();
+    const currentHostId = runs.find((run) => run.id === RUN_IDS.done)!.spec.hostId;
+    const gannet = hostFixture("4057aaaa-0000-4000-8000-0000000000a1", "gannet");
+    const petrel = hostFixture("4057aaaa-0000-4000-8000-0000000000a2", "petrel", "direct");
+    const { posts } = setUp([hostFixture(currentHostId, "tern"), gannet, petrel]);
+    // The scatter code is installed on tern and gannet only.
+    server.use(
+      http.get("/api/codes/:codeId", ({ params }) => {
+        const code = codes[String(params.codeId)]!;
+        return HttpResponse.json(
+          params.codeId === SCATTER_CODE_ID ? { ...code, hostIds: [currentHostId, gannet.id] } : code,
+        );
+      }),
+    );
+    const { user, dialog } = await openForm();
+    const hostSelect = within(dialog).getByLabelText("Host");
+    await waitFor(() => expect(within(hostSelect).getAllByRole("option")).toHaveLength(3));
+    expect(hostSelect).toHaveValue(currentHostId);
+    const petrelOption = within(hostSelect).getByRole("option", { name: /^petrel/ });
+    expect(petrelOption).toBeDisabled();
+    expect(petrelOption).toHaveTextContent("petrel (direct) — stage scatter's code is not installed here");
+    expect(within(hostSelect).getByRole("option", { name: /^gannet/ })).toBeEnabled();
+
+    await user.selectOptions(hostSelect, gannet.id);
+    await user.click(within(dialog).getByRole("button", { name: "Resubmit with these changes" }));
+    await waitFor(() => expect(posts).toHaveLength(1));
+    expect(posts[0]!.body).toEqual({ changes: { hostId: gannet.id } });
+  });
+
   it("sends exactly the changed parameter and opens the new run", async () => {
     const { posts } = setUp();
     const { user, dialog, router } = await openForm();

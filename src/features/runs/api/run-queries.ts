@@ -76,6 +76,14 @@ export const runQueries = {
       },
       staleTime: 60_000,
     }),
+  /** The group's hosts, for choosing where a resubmitted run goes. */
+  hosts: (groupId: string) =>
+    queryOptions({
+      queryKey: [...runQueries.all, "hosts", groupId] as const,
+      queryFn: ({ signal }) =>
+        api.get(`/api/groups/${encodeURIComponent(groupId)}/hosts`, hostListSchema, { signal }),
+      staleTime: 60_000,
+    }),
   detail: (runId: string) =>
     queryOptions({
       queryKey: [...runQueries.all, "detail", runId] as const,

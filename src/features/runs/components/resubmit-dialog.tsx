@@ -11,11 +11,12 @@ import { Spinner } from "@/components/ui/spinner";
 import { useModalFocus } from "@/components/ui/use-modal-focus";
 import { describeError } from "@/lib/describe-error";
 import { fieldErrorsFromError } from "@/lib/field-errors";
+import { hostUnfitReason, stageNotInstalledOn } from "@/lib/host-fit";
 import { resubmitRun } from "../api/run-commands";
 import { runQueries } from "../api/run-queries";
 import { initialText, type ParameterField, parameterFields, readField } from "../parameter-fields";
 
-type ResubmittableRun = Pick<RunDetail, "id" | "name" | "recipeId" | "spec">;
+type ResubmittableRun = Pick<RunDetail, "id" | "groupId" | "name" | "recipeId" | "spec">;
 
 function hint(field: ParameterField): string | undefined {
   const parts: string[] = [];
@@ -92,6 +93,7 @@ export function ResubmitDialog({
   const panelRef = useRef<HTMLDivElement>(null);
   const queryClient = useQueryClient();
   const schemas = useQuery(runQueries.stageParameters(run.recipeId));
+  const hosts = useQuery(runQueries.hosts(run.groupId));
   const stages = parameterFields(run.spec.parameters, schemas.data);
   const [fieldErrors, setFieldErrors] = useState<Record<string, string>>({});
   const [formMessage, setFormMessage] = useState<string | null>(null);
@@ -124,6 +126,9 @@ export function ResubmitDialog({
       else if (reading.change)
         parameters[field.stage] = { ...parameters[field.stage], [field.name]: reading.value };
     }
+    const hostId = String(form.get("hostId") ?? run.spec.hostId);
+    const unfit = schemas.data ? stageNotInstalledOn(schemas.data, hostId) : undefined;
+    if (unfit) errors.hostId = `The code of stage ${unfit.stage} is not installed on this host.`;
     const name = String(form.get("name") ?? "").trim();
     if (name === "") errors.name = "Give the new run a name.";
     else if (name.length > 120) errors.name = "Keep the name to 120 characters.";
@@ -135,6 +140,7 @@ export function ResubmitDialog({
     }
     const changes: RunSpecChanges = {};
     if (name !== run.name) changes.name = name;
+    if (hostId !== run.spec.hostId) changes.hostId = hostId;
     if (Object.keys(parameters).length > 0) changes.parameters = parameters;
     if (Object.keys(changes).length === 0) {
       setFormMessage("Nothing was changed. Change a value, or use Resubmit to run it again as it was.");
@@ -147,7 +153,8 @@ export function ResubmitDialog({
   const unplacedServerError =
     resubmit.error &&
     !stages.some((stage) => stage.fields.some((field) => serverFieldError(serverErrors, field))) &&
-    !serverErrors["changes.name"];
+    !serverErrors["changes.name"] &&
+    !serverErrors["spec.hostId"];
 
   return createPortal(
     <div className="fixed inset-0 z-50 flex items-center justify-center p-4">
@@ -179,6 +186,28 @@ export function ResubmitDialog({
         >
           <Field label="Name of the new run" error={fieldErrors.name ?? serverErrors["changes.name"]}>
             {(control) => <Input {...control} name="name" defaultValue={run.name} autoComplete="off" />}
+          </Field>
+          <Field
+            label="Host"
+            hint="Where the new run goes; a host without a stage's code cannot be chosen."
+            error={fieldErrors.hostId ?? serverErrors["spec.hostId"]}
+          >
+            {(control) => (
+              <Select {...control} name="hostId" defaultValue={run.spec.hostId}>
+                {(hosts.data?.hosts ?? []).some((host) => host.id === run.spec.hostId) ? null : (
+                  <option value={run.spec.hostId}>This run's host</option>
+                )}
+                {(hosts.data?.hosts ?? []).map((host) => {
+                  const reason =
+                    host.id === run.spec.hostId ? undefined : hostUnfitReason(host, schemas.data ?? []);
+                  return (
+                    <option key={host.id} value={host.id} disabled={reason !== undefined}>
+                      {host.name} ({host.scheduler}){reason ? ` — ${reason}` : ""}
+                    </option>
+                  );
+                })}
+              </Select>
+            )}
           </Field>
           {schemas.isPending ? <Spinner label="Reading the parameters the codes declare…" /> : null}
           {schemas.isError ? (

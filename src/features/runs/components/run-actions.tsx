@@ -93,7 +93,7 @@ export function RunActions({
       </ConfirmDialog>
       {editing && spec ? (
         <ResubmitDialog
-          run={{ id: run.id, name: run.name, recipeId: run.recipeId, spec }}
+          run={{ id: run.id, groupId: run.groupId, name: run.name, recipeId: run.recipeId, spec }}
           onClose={() => setEditing(false)}
           onResubmitted={onResubmitted}
         />

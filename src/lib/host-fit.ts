@@ -1,3 +1,4 @@
+/** Whether a host can take a run of a recipe: its key confirmed, and every pinned stage code installed there. */
 import type { StageSchema } from "@/lib/stage-schemas";
 
 /** The first stage whose code is pinned to hosts that do not include `hostId`, if any. */

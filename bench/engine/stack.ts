@@ -10,13 +10,11 @@ import { randomBytes } from "node:crypto";
 import { appendFileSync, mkdtempSync, rmSync } from "node:fs";
 import { tmpdir } from "node:os";
 import path from "node:path";
-import pg from "pg";
 import { createDatabase } from "../../server/db/client";
-import { applyMigrations } from "../../server/db/migrate";
 import { type Api, apiClient } from "../../tests/integration/support/api-client";
 import { addMember, createGroup, createUser, tokenFor } from "../../tests/integration/support/people";
-import { startPrivatePostgres } from "../../tests/integration/support/private-postgres";
 import { waitFor } from "../../tests/integration/support/wait-for";
+import { startBenchDatabase } from "../support/bench-database";
 import {
   type FakeClusterProcess,
   freePort,
@@ -47,17 +45,11 @@ const SECRETS_KEY = randomBytes(32).toString("hex");
 
 export async function startEngineStack(options: StackOptions) {
   const work = mkdtempSync(path.join(tmpdir(), "sigmaflow-engine-bench-"));
-  const postgres = await startPrivatePostgres({
+  const { postgres, url: databaseUrl } = await startBenchDatabase({
     maxConnections: 300,
     durable: options.durable ?? true,
     extraOptions: options.statementStatistics ? "-c shared_preload_libraries=pg_stat_statements" : "",
   });
-  const adminClient = new pg.Client({ connectionString: postgres.adminUrl });
-  await adminClient.connect();
-  await adminClient.query("create database sigmaflow_bench");
-  await adminClient.end();
-  const databaseUrl = postgres.adminUrl.replace(/\/postgres$/, "/sigmaflow_bench");
-  await applyMigrations(databaseUrl);
   const { db, pool } = createDatabase(databaseUrl);
   if (options.statementStatistics) await pool.query("create extension if not exists pg_stat_statements");
 

@@ -12,13 +12,11 @@
  * queries one catch-up makes and the bytes it reads.
  */
 import { sql } from "drizzle-orm";
-import pg from "pg";
 import { createDatabase, type Database } from "../../server/db/client";
-import { applyMigrations } from "../../server/db/migrate";
 import { runLogChunks } from "../../server/db/schema";
 import { readRunLogChunks, readRunLogPage } from "../../server/services/run-log.service";
-import { startPrivatePostgres } from "../../tests/integration/support/private-postgres";
 import { insertRuns, seedRunListGroup, spreadRuns } from "../../tests/integration/support/run-list-seed";
+import { startBenchDatabase } from "../support/bench-database";
 
 const smallChunks = Number(process.argv.slice(2).find((arg) => /^\d+$/.test(arg)) ?? 20_000);
 const repeat = Number(process.argv.find((arg) => arg.startsWith("--repeat="))?.split("=")[1] ?? 5);
@@ -76,14 +74,8 @@ async function time(read: () => Promise<CatchUp>) {
   return { median: ms[Math.floor(ms.length / 2)]!, max: ms.at(-1)!, ...last };
 }
 
-const postgres = await startPrivatePostgres({ durable: true });
+const { postgres, url } = await startBenchDatabase();
 try {
-  const admin = new pg.Client({ connectionString: postgres.adminUrl });
-  await admin.connect();
-  await admin.query("create database sigmaflow_bench");
-  await admin.end();
-  const url = postgres.adminUrl.replace(/\/postgres$/, "/sigmaflow_bench");
-  await applyMigrations(url);
   const { db, pool } = createDatabase(url);
   const group = await seedRunListGroup(db, "bench-catch-up");
   const [streamed, polled] = await insertRuns(db, group, spreadRuns(group, 2, { seed: 3 }));

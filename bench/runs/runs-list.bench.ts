@@ -14,27 +14,19 @@
  * summaries.
  */
 import { sql } from "drizzle-orm";
-import pg from "pg";
 import type { Principal } from "../../server/auth/principal";
 import { createDatabase } from "../../server/db/client";
-import { applyMigrations } from "../../server/db/migrate";
 import { runs } from "../../server/db/schema";
 import { listRuns, runListConditions, runListPageIdsQuery } from "../../server/services/run-list.service";
 import { type RunListQueryInput, runListQuerySchema, runListSortSchema } from "../../shared/schemas/runs";
-import { startPrivatePostgres } from "../../tests/integration/support/private-postgres";
 import { insertRuns, seedRunListGroup, spreadRuns } from "../../tests/integration/support/run-list-seed";
+import { startBenchDatabase } from "../support/bench-database";
 
 const runCount = Number(process.argv.slice(2).find((arg) => /^\d+$/.test(arg)) ?? 10_000);
 const repeat = Number(process.argv.find((arg) => arg.startsWith("--repeat="))?.split("=")[1] ?? 9);
 
-const postgres = await startPrivatePostgres({ durable: true });
+const { postgres, url } = await startBenchDatabase();
 try {
-  const admin = new pg.Client({ connectionString: postgres.adminUrl });
-  await admin.connect();
-  await admin.query("create database sigmaflow_bench");
-  await admin.end();
-  const url = postgres.adminUrl.replace(/\/postgres$/, "/sigmaflow_bench");
-  await applyMigrations(url);
   const { db, pool } = createDatabase(url);
 
   const seedStart = performance.now();
